@@ -1,0 +1,66 @@
+"""Writing output files atomically, never over the user's files without force."""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+from ._errors import OutputExistsError
+
+__all__ = ["write_atomic", "check_writable"]
+
+
+def check_writable(path, force: bool = False) -> Path:
+    """Return `path` as a Path, raising if it exists and `force` is false.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The output file.
+    force : bool
+        Whether an existing file may be replaced.
+    """
+    path = Path(path)
+    if path.exists() and not force:
+        raise OutputExistsError(path)
+    return path
+
+
+def write_atomic(path, data, force: bool = False) -> Path:
+    """Write `data` to `path` through a temporary file and a rename.
+
+    An interrupted write leaves either the old file or the new one, never a
+    half-written file, because ``os.replace`` is atomic on one file system.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The output file; its folder is created if needed.
+    data : str or bytes
+        The content; text is written as UTF-8.
+    force : bool
+        Whether an existing file may be replaced.
+
+    Returns
+    -------
+    pathlib.Path
+        The path written.
+    """
+    path = check_writable(path, force)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    raw = data.encode("utf-8") if isinstance(data, str) else bytes(data)
+    fd, tmp = tempfile.mkstemp(prefix="." + path.name + ".", suffix=".part", dir=path.parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(raw)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except FileNotFoundError:
+            pass
+        raise
+    return path

@@ -1,0 +1,37 @@
+"""The ``zfit`` command: a thin shell over the Python API."""
+
+from __future__ import annotations
+
+import importlib
+
+import typer
+
+from ._cli_common import app
+from ._version import __version__
+
+# Each module registers its command(s) on `app` when imported.
+_COMMAND_MODULES = (
+    "_cli_info",
+)
+
+
+def _version(value: bool):
+    if value:
+        typer.echo(f"zfit {__version__}")
+        raise typer.Exit()
+
+
+@app.callback()
+def _root(
+    version: bool = typer.Option(False, "--version", callback=_version, is_eager=True, help="Print the version and exit."),
+):
+    """Equivalent circuits of inductors and capacitors from bench measurements."""
+
+
+for _name in _COMMAND_MODULES:
+    importlib.import_module(f"zfit.{_name}")
+
+
+def main() -> None:
+    """Entry point of the ``zfit`` console script."""
+    app()
