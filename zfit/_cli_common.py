@@ -11,13 +11,19 @@ from __future__ import annotations
 
 import functools
 import warnings
+from pathlib import Path
+from typing import Annotated, Optional
 
 import typer
 
 from ._errors import MeasurementWarning, ZfitError, ZfitInputError
 from ._units import parse_quantity
 
-__all__ = ["app", "guarded", "quantity", "quantities", "echo", "warn_line"]
+__all__ = [
+    "app", "guarded", "quantity", "quantities", "echo", "warn_line", "sweep_from_options",
+    "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
+    "LoadOpt", "LoadValueOpt", "PortDelayOpt", "ForceOpt",
+]
 
 app = typer.Typer(
     name="zfit",
@@ -88,3 +94,81 @@ def quantity(text: str | None, what: str) -> float | None:
 def quantities(texts, what: str) -> tuple[float, ...]:
     """Parse a repeated option (``--at 100k --at 1M``)."""
     return tuple(parse_quantity(t, what) for t in (texts or ()))
+
+
+# Options shared by every command that reads a sweep (info, identify, batch).
+# Declared once so that the commands spell them the same way.
+ConnectionOpt = Annotated[
+    Optional[str],
+    typer.Option(
+        "--connection", "-c",
+        help="How the analyser saw the part: reflection (S11), shunt-thru (S21, part to ground) "
+        "or series-thru (S21, part in series). Needed for .s2p files.",
+    ),
+]
+NoiseRelOpt = Annotated[
+    Optional[float],
+    typer.Option("--noise-rel", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/noise.md."),
+]
+NoiseFloorOpt = Annotated[
+    Optional[float],
+    typer.Option("--noise-floor", help="Noise floor: linear |S| for S-parameters (1e-5 = -100 dB), ohm for tables."),
+]
+ColumnsOpt = Annotated[
+    Optional[str],
+    typer.Option("--columns", help="Column mapping of a table, e.g. 'f=1,Ls=2,Rs=3' or 'freq_kHz,Zmag,phase_deg'; overrides the guess."),
+]
+OpenOpt = Annotated[Optional[Path], typer.Option("--open", help="Open-fixture measurement for compensation.")]
+ShortOpt = Annotated[Optional[Path], typer.Option("--short", help="Short-fixture measurement for compensation.")]
+LoadOpt = Annotated[Optional[Path], typer.Option("--load", help="Load-standard measurement (open/short/load compensation).")]
+LoadValueOpt = Annotated[Optional[str], typer.Option("--load-value", help="Known impedance of the load standard in ohm, e.g. 50 or 100.")]
+PortDelayOpt = Annotated[Optional[str], typer.Option("--port-delay", help="Port extension for reflection: one-way delay of the line to remove, e.g. 35p.")]
+ForceOpt = Annotated[bool, typer.Option("--force", help="Overwrite output files that exist.")]
+
+
+def sweep_from_options(
+    path: Path,
+    connection: str | None = None,
+    noise_rel: float | None = None,
+    noise_floor: float | None = None,
+    columns: str | None = None,
+    open_: Path | None = None,
+    short: Path | None = None,
+    load: Path | None = None,
+    load_value: str | None = None,
+    port_delay: str | None = None,
+):
+    """Return the `Sweep` that the shared reading options describe.
+
+    Reads the file, applies the port extension, then fixture compensation:
+    the order a bench engineer applies them in.
+    """
+    from ._connection import InstrumentNoise
+    from ._readers import read_sweep
+
+    noise = None
+    if noise_rel is not None or noise_floor is not None:
+        from ._readers import default_noise
+
+        base = default_noise(path)
+        noise = InstrumentNoise(
+            base.rel if noise_rel is None else noise_rel,
+            base.floor if noise_floor is None else noise_floor,
+        )
+    sweep = read_sweep(path, connection=connection, noise=noise, columns=columns)
+    if port_delay is not None:
+        from ._fixture import port_extended
+
+        sweep = port_extended(sweep, parse_quantity(port_delay, "--port-delay"))
+    if open_ is not None or short is not None or load is not None:
+        from ._fixture import compensate_from_files
+
+        sweep = compensate_from_files(
+            sweep,
+            open_path=open_,
+            short_path=short,
+            load_path=load,
+            load_ohm=None if load_value is None else parse_quantity(load_value, "--load-value"),
+            connection=connection,
+        )
+    return sweep

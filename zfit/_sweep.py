@@ -7,6 +7,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ._connection import InstrumentNoise
 from ._errors import MeasurementWarning, ZfitInputError
 
 __all__ = ["Sweep", "make_sweep", "MIN_POINTS", "CONNECTIONS"]
@@ -46,6 +47,11 @@ class Sweep:
         What the reader understood of the file (e.g. ``"Touchstone 1.x, RI, GHz"``).
     noise_model : str
         The noise model that produced `sigma_ohm`, in words.
+    s_param : numpy.ndarray or None
+        The measured S11 or S21 behind each point, for S-parameter data.
+    noise : InstrumentNoise or None
+        The noise model itself (on S for S-parameter data, on Z for tables),
+        so that later steps (port extension, compensation) can propagate it.
     """
 
     f_hz: np.ndarray
@@ -58,6 +64,7 @@ class Sweep:
     data_format: str = ""
     noise_model: str = ""
     s_param: np.ndarray | None = field(default=None, repr=False)
+    noise: "InstrumentNoise | None" = None
 
     def __post_init__(self):
         for name in ("f_hz", "z_ohm", "sigma_ohm", "s_param"):
@@ -111,7 +118,8 @@ def make_sweep(
     s_param : array_like, optional
         The measured S-parameter behind each impedance (kept for checks).
     **extra
-        Further `Sweep` fields (`reference_ohm`, `data_format`, `noise_model`).
+        Further `Sweep` fields (`reference_ohm`, `data_format`, `noise_model`,
+        `noise`).
 
     Raises
     ------
