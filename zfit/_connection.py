@@ -73,11 +73,23 @@ class InstrumentNoise:
             raise ZfitInputError(f"noise model needs rel >= 0 and floor >= 0, not both zero (got {self.rel}, {self.floor})")
 
     def sigma(self, value) -> np.ndarray:
-        """Standard deviation (complex-circular) of a measured quantity `value`."""
+        """Return the standard deviation (complex-circular) of a measured quantity.
+
+        Parameters
+        ----------
+        value : array_like of complex
+            The measured S-parameter (or impedance, for tables).
+        """
         return self.rel * np.abs(value) + self.floor
 
     def describe(self, quantity: str) -> str:
-        """One line that states the model, e.g. for ``zfit info``."""
+        """Return one line that states the model, e.g. for ``zfit info``.
+
+        Parameters
+        ----------
+        quantity : {'S', 'Z'}
+            What the noise is on.
+        """
         unit = "" if quantity == "S" else " ohm"
         return f"sigma({quantity}) = {self.rel:g} * |{quantity}| + {self.floor:g}{unit} (complex-circular)"
 
@@ -120,7 +132,16 @@ def impedance_from_s(s, connection: str, z0: float = 50.0) -> np.ndarray:
 def s_from_impedance(z, connection: str, z0: float = 50.0) -> np.ndarray:
     """Return the S11 or S21 an ideal analyser measures for impedance `z`.
 
-    The inverse of `impedance_from_s`; see there for the parameters.
+    The inverse of `impedance_from_s`.
+
+    Parameters
+    ----------
+    z : array_like of complex
+        The part's impedance in ohm.
+    connection : {'reflection', 'shunt-thru', 'series-thru'}
+        How the part is connected.
+    z0 : float
+        Reference impedance of the ports in ohm.
     """
     _check(connection)
     z = np.asarray(z, dtype=complex)
@@ -136,6 +157,15 @@ def dz_ds(s, connection: str, z0: float = 50.0) -> np.ndarray:
 
     The conversions are holomorphic in S, so a complex-circular error ``dS``
     becomes ``dZ = (dZ/dS) dS``, again circular, with ``|dZ| = |dZ/dS| |dS|``.
+
+    Parameters
+    ----------
+    s : array_like of complex
+        The measured S-parameter.
+    connection : {'reflection', 'shunt-thru', 'series-thru'}
+        How the part is connected.
+    z0 : float
+        Reference impedance of the ports in ohm.
     """
     _check(connection)
     s = np.asarray(s, dtype=complex)
@@ -172,6 +202,13 @@ def conditioning_warning(s, connection: str) -> str | None:
     line) and a series-thru measurement with ``|S21|`` near 1 (a low
     impedance in series) all put the part's impedance in the small
     difference ``1 - S``, where the analyser's noise dominates.
+
+    Parameters
+    ----------
+    s : array_like of complex
+        The measured S-parameter.
+    connection : {'reflection', 'shunt-thru', 'series-thru'}
+        How the part is connected.
     """
     _check(connection)
     s = np.asarray(s, dtype=complex)

@@ -1,0 +1,72 @@
+import numpy as np
+import pytest
+
+from zfit._connection import (
+    InstrumentNoise,
+    dz_ds,
+    impedance_from_s,
+    s_from_impedance,
+    sigma_z_from_s,
+)
+from zfit._errors import MeasurementWarning, ZfitInputError
+from zfit._sweep import make_sweep
+
+
+def _arrays(n=20):
+    f = np.logspace(3, 7, n)
+    z = 1.0 + 2j * np.pi * f * 1e-6
+    return f, z, np.full(n, 1e-3)
+
+
+def test_make_sweep_sorts_and_drops_repeats():
+    f, z, s = _arrays()
+    f = np.concatenate([f[::-1], f[:1]])
+    z = np.concatenate([z[::-1], z[:1]])
+    s = np.concatenate([s, s[:1]])
+    with pytest.warns(MeasurementWarning, match="1 repeated frequencies dropped"):
+        sw = make_sweep(f, z, s, source="x.csv", lines=np.arange(5, 5 + f.size))
+    assert np.all(np.diff(sw.f_hz) > 0)
+    assert sw.n_points == 20
+    assert not sw.f_hz.flags.writeable
+
+
+def test_make_sweep_names_line_of_nan():
+    f, z, s = _arrays()
+    z[3] = np.nan
+    with pytest.raises(ZfitInputError, match=r"^x\.csv:13: value is not a finite number"):
+        make_sweep(f, z, s, source="x.csv", lines=np.arange(10, 30))
+
+
+def test_make_sweep_rejects_active_one_port():
+    f, z, s = _arrays()
+    z[7] = -1.0 + 0j
+    with pytest.raises(ZfitInputError, match="not a passive one-port"):
+        make_sweep(f, z, s, source="x.csv")
+
+
+def test_make_sweep_needs_ten_points():
+    f, z, s = _arrays(9)
+    with pytest.raises(ZfitInputError, match="only 9 frequency points"):
+        make_sweep(f, z, s, source="x.csv")
+
+
+@pytest.mark.parametrize("connection", ["reflection", "shunt-thru", "series-thru"])
+def test_connection_formulas_invert_and_derivative(connection):
+    z = np.array([0.005, 1.0 + 3j, 50.0, 2e3 - 5e3j, 5e4j])
+    s = s_from_impedance(z, connection, 50.0)
+    # 1e-9, not 1e-15: recovering 5 milliohm in series-thru goes through 1 - S ~ 5e-5.
+    np.testing.assert_allclose(impedance_from_s(s, connection, 50.0), z, rtol=1e-9)
+    # Central difference of the holomorphic map Z(S) (definition of the derivative).
+    h = 1e-7 * np.maximum(np.abs(s), 1e-3)
+    num = (impedance_from_s(s + h, connection) - impedance_from_s(s - h, connection)) / (2 * h)
+    np.testing.assert_allclose(dz_ds(s, connection), num, rtol=1e-5)
+
+
+def test_reflection_of_milliohms_is_noise_dominated():
+    # Common practice: a 5 milliohm part measured by reflection at 50 ohm is
+    # unresolvable; the propagated sigma exceeds the value itself.
+    s = s_from_impedance(np.array([0.005]), "reflection")
+    sig = sigma_z_from_s(s, "reflection", 50.0, InstrumentNoise(1e-3, 1e-5))
+    # |dZ/dS| = 2 Z0 / |1 - S|^2 ~ 25 ohm at S = -1, times sigma(S) = 1e-3 + 1e-5
+    # -> 25.25 milliohm, five times the part's value.
+    assert sig[0] == pytest.approx(0.02525, rel=1e-3)
