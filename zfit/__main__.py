@@ -1,0 +1,5 @@
+"""``python -m zfit`` runs the command line."""
+
+from ._cli import main
+
+main()
