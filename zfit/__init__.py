@@ -49,6 +49,8 @@ _EXPORTS = {
     "read_sweep": "_readers",
     "vector_fit": "_vectfit",
     "RationalModel": "_vectfit",
+    "fit_impedance": "_vectfit",
+    "PassivityViolation": "_vectfit",
     "identify": "_identify",
     "Identification": "_identify",
 }
