@@ -53,6 +53,11 @@ _EXPORTS = {
     "PassivityViolation": "_vectfit",
     "identify": "_identify",
     "Identification": "_identify",
+    "read_limits": "_limits",
+    "Limits": "_limits",
+    "conformity": "_limits",
+    "run_batch": "_batch",
+    "BatchResult": "_batch",
 }
 
 __all__ = ["__version__", *_EXPORTS]
