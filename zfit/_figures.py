@@ -1,0 +1,492 @@
+"""The figures engineers quote: SRF, Q, ESR, D, |Z| at resonance, spot readouts.
+
+Definitions (stated with every number, because users compare them):
+
+* self-resonant frequency (SRF): where the reactance X = Im Z crosses zero;
+  for the inductor circuit ``omega^2 = 1/(L C_p) - (R_s/L)^2``, for the
+  capacitor ``omega^2 = 1/(ESL C)`` (minus ``1/(R_leak C)^2`` with leakage);
+* measured Q: ``|X| / R`` of the part's impedance (read from the rational
+  model, which follows the data to within the noise); the model Q:
+  ``omega L / R_s`` of the series branch of the inductor circuit.  They agree
+  well below resonance and differ near it, where C_p takes over;
+* ESR(f): ``Re Z`` of the part; D(f) = ``tan(delta) = R / |X|`` of the part
+  (measured), ``omega C ESR`` of the capacitor circuit (model), the handbook
+  definition for a capacitor with series loss;
+* effective inductance and capacitance at a frequency: ``L_eff = X / omega``,
+  ``C_eff = -1 / (omega X)``.
+
+Uncertainties of figures read from the rational model come from its
+covariance (with the poles' own uncertainty, where the vector-fitting model
+provides it); those of circuit figures from the circuit's covariance by
+first-order propagation (JCGM 100:2008, 5.1.2).
+
+References
+----------
+.. [1] C. Bowick, *RF Circuit Design*, 2nd ed., Newnes, 2008, ch. 1 (Q of
+   real inductors, self-resonance).
+.. [2] IEC 60384-1:2021, *Fixed capacitors for use in electronic equipment --
+   Part 1: Generic specification*, tangent of loss angle (from memory: the
+   definition D = ESR / |X_C| = omega C ESR).
+.. [3] JCGM 100:2008, *Guide to the expression of uncertainty in
+   measurement*, section 5.1.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = [
+    "Estimate",
+    "Figure",
+    "SRF",
+    "SpotReadout",
+    "Figures",
+    "srf_of_circuit",
+    "srf_of_rational",
+    "rational_reading",
+    "spot_readout",
+    "figures_of",
+    "Q_MEASURED",
+    "Q_MODEL",
+    "D_MEASURED",
+    "D_MODEL",
+    "ESR_MEASURED",
+]
+
+_TWO_PI = 2.0 * math.pi
+
+#: Definitions printed next to each figure.
+Q_MEASURED = "|X|/R of the measured impedance (rational model)"
+Q_MODEL = "omega L / R_s of the equivalent circuit"
+D_MEASURED = "R/|X| of the measured impedance (rational model)"
+D_MODEL = "omega C ESR (+ 1/(omega C R_leak)) of the equivalent circuit"
+ESR_MEASURED = "Re Z of the measured impedance (rational model)"
+
+
+def _num(x):
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+@dataclass(frozen=True)
+class Estimate:
+    """A value with its standard uncertainty and unit.
+
+    Attributes
+    ----------
+    value : float
+        The estimate in SI units.
+    std : float or None
+        Its standard uncertainty (None when it cannot be given).
+    unit : str
+        ``"H"``, ``"F"``, ``"ohm"``, ``"Hz"``, ``"deg"`` or ``""``.
+    """
+
+    value: float
+    std: float | None
+    unit: str = ""
+
+    def to_dict(self) -> dict:
+        """Return ``{"value": float, "std": float|null, "unit": str}``."""
+        return {"value": _num(self.value), "std": _num(self.std), "unit": self.unit}
+
+
+@dataclass(frozen=True)
+class Figure:
+    """A derived figure at a frequency, with its definition.
+
+    Attributes
+    ----------
+    value : float
+        The figure in SI units.
+    std : float or None
+        Its standard uncertainty.
+    unit : str
+        Its unit (``""`` for Q and D).
+    f_hz : float or None
+        The frequency it refers to.
+    definition : str
+        What was computed, in words.
+    source : {'rational', 'circuit'}
+        Which model it was read from.
+    """
+
+    value: float
+    std: float | None
+    unit: str
+    f_hz: float | None
+    definition: str
+    source: str
+
+    def to_dict(self) -> dict:
+        """Return the JSON object of the figure."""
+        return {
+            "value": _num(self.value), "std": _num(self.std), "unit": self.unit,
+            "f_hz": _num(self.f_hz), "definition": self.definition, "source": self.source,
+        }
+
+
+@dataclass(frozen=True)
+class SRF:
+    """The self-resonant frequency and where it lies.
+
+    Attributes
+    ----------
+    value_hz : float or None
+        The estimate (from the model; None when the reactance never crosses
+        zero).
+    std_hz : float or None
+        Its standard uncertainty.
+    where : {'in-band', 'above-band', 'below-band', 'none'}
+        Whether the data contain it.
+    bound_hz : float or None
+        Outside the band, the bound the data themselves set: a lower bound
+        (the top of the band) for ``above-band``, an upper bound (the bottom
+        of the band) for ``below-band``; None in band or without an SRF.
+    source : {'circuit', 'rational'}
+        Which model `value_hz` comes from.
+    """
+
+    value_hz: float | None
+    std_hz: float | None
+    where: str
+    bound_hz: float | None
+    source: str = "circuit"
+
+    def to_dict(self) -> dict:
+        """Return the ``srf`` object of the JSON contract."""
+        return {
+            "value_hz": _num(self.value_hz), "std_hz": _num(self.std_hz), "where": self.where,
+            "bound_hz": _num(self.bound_hz), "source": self.source,
+        }
+
+
+@dataclass(frozen=True)
+class SpotReadout:
+    """Figures of the part at one frequency.
+
+    Attributes
+    ----------
+    f_hz : float
+        The frequency asked for.
+    in_band : bool
+        Whether it lies inside the measured band (outside, the values are
+        the circuit's extrapolation).
+    source : {'rational', 'circuit'}
+        Which model the values were read from.
+    R, X, Z_mag : Estimate
+        Resistance, reactance and magnitude of Z in ohm.
+    Z_phase_deg : Estimate
+        Phase of Z in degrees.
+    L_eff : Estimate
+        ``X / omega`` in H (negative where the part is capacitive).
+    C_eff : Estimate
+        ``-1 / (omega X)`` in F (negative where the part is inductive).
+    Q : Estimate
+        ``|X| / R``.
+    D : Estimate
+        ``R / |X|``.
+    """
+
+    f_hz: float
+    in_band: bool
+    source: str
+    R: Estimate
+    X: Estimate
+    Z_mag: Estimate
+    Z_phase_deg: Estimate
+    L_eff: Estimate
+    C_eff: Estimate
+    Q: Estimate
+    D: Estimate
+
+    def to_dict(self) -> dict:
+        """Return one entry of the ``spot`` list of the JSON contract."""
+        out = {"f_hz": float(self.f_hz), "in_band": bool(self.in_band), "source": self.source}
+        for key in ("R", "X", "Z_mag", "Z_phase_deg", "L_eff", "C_eff", "Q", "D"):
+            out[key] = getattr(self, key).to_dict()
+        return out
+
+
+@dataclass(frozen=True)
+class Figures:
+    """The derived figures of an identification (None where not applicable).
+
+    Attributes
+    ----------
+    z_at_srf : Figure or None
+        ``|Z|`` at the self-resonance (in band: read from the rational model;
+        otherwise the circuit's value there).
+    q_peak : Figure or None
+        Peak of the measured Q, ``|X|/R``, below the SRF (inductors).
+    q_model_at_q_peak : Figure or None
+        The model's ``omega L / R_s`` at the frequency of `q_peak`.
+    esr_min : Figure or None
+        The smallest ESR in the band and where (capacitors).
+    d_at_f_min : Figure or None
+        The measured D at the lowest frequency of the band (capacitors).
+    d_model_at_f_min : Figure or None
+        The model's ``omega C ESR`` there.
+    """
+
+    z_at_srf: Figure | None = None
+    q_peak: Figure | None = None
+    q_model_at_q_peak: Figure | None = None
+    esr_min: Figure | None = None
+    d_at_f_min: Figure | None = None
+    d_model_at_f_min: Figure | None = None
+
+    def to_dict(self) -> dict:
+        """Return the ``figures`` object of the JSON contract."""
+        names = ("z_at_srf", "q_peak", "q_model_at_q_peak", "esr_min", "d_at_f_min", "d_model_at_f_min")
+        return {n: (None if getattr(self, n) is None else getattr(self, n).to_dict()) for n in names}
+
+
+def _where(value, band):
+    lo, hi = band
+    if value is None:
+        return "none", None
+    if value > hi:
+        return "above-band", hi
+    if value < lo:
+        return "below-band", lo
+    return "in-band", None
+
+
+def srf_of_circuit(refinement, band) -> SRF:
+    """Return the SRF of a refined circuit with its propagated uncertainty.
+
+    Parameters
+    ----------
+    refinement : Refinement
+        The fitted circuit.
+    band : tuple of float
+        The measured band ``(f_min, f_max)`` in Hz.
+    """
+    circuit = refinement.circuit
+    value = circuit.srf_hz(refinement.values)
+    std = None
+    if value is not None:
+        std = refinement.std_of(circuit.srf_hz)
+    where, bound = _where(value, band)
+    return SRF(value, std, where, bound, "circuit")
+
+
+def rational_reading(rational, f_hz):
+    """Return (Z, cov) of the rational model: values and 2x2 covariances of (R, X).
+
+    The poles' uncertainty is included where the model provides it.
+
+    Parameters
+    ----------
+    rational : RationalModel
+        The vector-fitting model.
+    f_hz : array_like
+        Frequencies in Hz.
+    """
+    f = np.atleast_1d(np.asarray(f_hz, float))
+    z = rational.impedance(f)
+    cov = None
+    fn = getattr(rational, "impedance_covariance", None)
+    if fn is not None:
+        try:
+            cov = np.asarray(fn(f, include_poles=True), float)
+        except (TypeError, ValueError, np.linalg.LinAlgError):
+            cov = None
+        if cov is not None and not np.all(np.isfinite(cov)):
+            cov = None
+    if cov is None:
+        s2 = np.asarray(rational.impedance_std(f), float) ** 2 / 2.0
+        cov = np.zeros((f.size, 2, 2))
+        cov[:, 0, 0] = cov[:, 1, 1] = s2
+    return z, cov
+
+
+def _crossings(f, x):
+    """Indices i where x changes sign between f[i] and f[i+1]."""
+    sgn = np.sign(x)
+    return np.flatnonzero((sgn[:-1] != 0) & (sgn[:-1] != sgn[1:]))
+
+
+def _refine_crossing(fn, a, b):
+    from scipy.optimize import brentq
+
+    try:
+        return float(brentq(lambda lf: float(fn(np.array([math.exp(lf)]))[0]), math.log(a), math.log(b), xtol=1e-12))
+    except ValueError:
+        return None
+
+
+def srf_of_rational(rational, band, f_hz=None) -> SRF:
+    """Return the first frequency where the rational model's X crosses zero.
+
+    Searched on the band first; when the band holds no crossing, up to a
+    decade beyond each edge (an extrapolation, reported as above- or
+    below-band with the band edge as the bound).
+
+    Parameters
+    ----------
+    rational : RationalModel
+        The vector-fitting model.
+    band : tuple of float
+        The measured band in Hz.
+    f_hz : array_like, optional
+        Frequencies to scan (default: 2000 points log-spaced over the band).
+    """
+    lo, hi = band
+    xfn = lambda f: rational.impedance(f).imag  # noqa: E731
+    grids = [
+        (np.geomspace(lo, hi, 2000) if f_hz is None else np.asarray(f_hz, float), "in-band"),
+        (np.geomspace(hi, 10 * hi, 400), "above-band"),
+        (np.geomspace(lo / 10, lo, 400)[::-1], "below-band"),
+    ]
+    for grid, where in grids:
+        x = xfn(grid)
+        idx = _crossings(grid, x)
+        if idx.size:
+            i = int(idx[0])
+            a, b = sorted((grid[i], grid[i + 1]))
+            lf = _refine_crossing(xfn, a, b)
+            if lf is None:
+                continue
+            f0 = math.exp(lf)
+            # std of X at the crossing over the slope dX/df there.
+            _, cov = rational_reading(rational, [f0])
+            h = 1e-6 * f0
+            slope = float((xfn(np.array([f0 + h])) - xfn(np.array([f0 - h])))[0] / (2 * h))
+            std = math.sqrt(max(cov[0, 1, 1], 0.0)) / abs(slope) if slope != 0 else None
+            bound = None if where == "in-band" else (hi if where == "above-band" else lo)
+            return SRF(f0, std, where, bound, "rational")
+    return SRF(None, None, "none", None, "rational")
+
+
+def _readout(f, z, cov):
+    """Figures at one frequency from Z and the 2x2 covariance of (R, X)."""
+    w = _TWO_PI * f
+    r, x = float(z.real), float(z.imag)
+    mag = math.hypot(r, x)
+
+    def prop(grad):
+        g = np.asarray(grad, float)
+        return float(math.sqrt(max(g @ cov @ g, 0.0)))
+
+    ax = abs(x) if x != 0 else 1e-300
+    sx = math.copysign(1.0, x) if x != 0 else 1.0
+    ar = r if r != 0 else 1e-300
+    q = ax / ar
+    d = ar / ax
+    out = dict(
+        R=Estimate(r, prop([1, 0]), "ohm"),
+        X=Estimate(x, prop([0, 1]), "ohm"),
+        Z_mag=Estimate(mag, prop([r / mag, x / mag]) if mag > 0 else None, "ohm"),
+        Z_phase_deg=Estimate(math.degrees(math.atan2(x, r)), math.degrees(prop([-x / mag**2, r / mag**2])) if mag > 0 else None, "deg"),
+        L_eff=Estimate(x / w, prop([0, 1 / w]), "H"),
+        C_eff=Estimate(-1.0 / (w * x) if x != 0 else math.inf, prop([0, 1.0 / (w * x * x)]) if x != 0 else None, "F"),
+        Q=Estimate(q, prop([-q / ar, sx / ar]), ""),
+        D=Estimate(d, prop([1 / ax, -sx * d / ax]), ""),
+    )
+    return out
+
+
+def spot_readout(f_hz: float, band, rational=None, refinement=None) -> SpotReadout:
+    """Return the figures at one frequency.
+
+    In band they are read from the rational model (it follows the data to
+    within the noise), with its uncertainty; outside the band, or without a
+    rational model, from the circuit, with the circuit's propagated
+    uncertainty.
+
+    Parameters
+    ----------
+    f_hz : float
+        The frequency in Hz.
+    band : tuple of float
+        The measured band in Hz.
+    rational : RationalModel, optional
+        The vector-fitting model.
+    refinement : Refinement, optional
+        The fitted circuit.
+    """
+    f = float(f_hz)
+    lo, hi = band
+    in_band = lo <= f <= hi
+    if rational is not None and (in_band or refinement is None):
+        z, cov = rational_reading(rational, [f])
+        return SpotReadout(f, in_band, "rational", **_readout(f, z[0], cov[0]))
+    if refinement is None:
+        raise ValueError("a spot readout needs a rational model or a circuit")
+    circuit, p = refinement.circuit, refinement.values
+    z = complex(circuit.impedance(p, np.array([f]))[0])
+    jac = circuit.log_jacobian(p, np.array([f]))[0]
+    jr = np.stack([jac.real, jac.imag])
+    cov = jr @ refinement.log_cov @ jr.T
+    return SpotReadout(f, in_band, "circuit", **_readout(f, z, cov))
+
+
+def _q_peak(rational, band, srf_hz, n=2000):
+    lo, hi = band
+    top = hi if srf_hz is None or not (lo < srf_hz < hi) else srf_hz
+    grid = np.geomspace(lo, top, n)
+    z = rational.impedance(grid)
+    ok = (z.imag > 0) & (z.real > 0)
+    if not ok.any():
+        return None
+    q = np.where(ok, z.imag / np.where(z.real > 0, z.real, 1.0), -np.inf)
+    i = int(np.argmax(q))
+    return float(grid[i])
+
+
+def figures_of(family: str, band, srf: SRF, rational=None, refinement=None) -> Figures:
+    """Return the derived figures of an identification.
+
+    Parameters
+    ----------
+    family : {'inductor', 'capacitor', 'rational'}
+        The model chosen.
+    band : tuple of float
+        The measured band in Hz.
+    srf : SRF
+        The self-resonance already found.
+    rational : RationalModel, optional
+        The vector-fitting model.
+    refinement : Refinement, optional
+        The fitted circuit.
+    """
+    lo, hi = band
+    out = {}
+    src_model = rational if rational is not None else None
+    if srf.value_hz is not None:
+        f0 = srf.value_hz
+        if srf.where == "in-band" and src_model is not None:
+            sp = spot_readout(f0, band, rational=src_model)
+            out["z_at_srf"] = Figure(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, "|Z| at the SRF", "rational")
+        elif refinement is not None:
+            sp = spot_readout(f0, (f0, f0), refinement=refinement)
+            out["z_at_srf"] = Figure(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, "|Z| at the SRF (circuit, outside the band)", "circuit")
+    if family == "inductor" and src_model is not None:
+        fq = _q_peak(src_model, band, srf.value_hz)
+        if fq is not None:
+            sp = spot_readout(fq, band, rational=src_model)
+            out["q_peak"] = Figure(sp.Q.value, sp.Q.std, "", fq, Q_MEASURED, "rational")
+            if refinement is not None:
+                circuit = refinement.circuit
+                fn = lambda p: float(circuit.model_q(p, np.array([fq]))[0])  # noqa: E731
+                out["q_model_at_q_peak"] = Figure(fn(refinement.values), refinement.std_of(fn), "", fq, Q_MODEL, "circuit")
+    if family == "capacitor":
+        if src_model is not None:
+            grid = np.geomspace(lo, hi, 2000)
+            i = int(np.argmin(src_model.impedance(grid).real))
+            sp = spot_readout(float(grid[i]), band, rational=src_model)
+            out["esr_min"] = Figure(sp.R.value, sp.R.std, "ohm", float(grid[i]), ESR_MEASURED, "rational")
+            sp = spot_readout(lo, band, rational=src_model)
+            out["d_at_f_min"] = Figure(sp.D.value, sp.D.std, "", lo, D_MEASURED, "rational")
+        if refinement is not None:
+            circuit = refinement.circuit
+            fn = lambda p: float(circuit.model_d(p, np.array([lo]))[0])  # noqa: E731
+            out["d_model_at_f_min"] = Figure(fn(refinement.values), refinement.std_of(fn), "", lo, D_MODEL, "circuit")
+    return Figures(**out)

@@ -1,0 +1,832 @@
+"""Identification: from a sweep to the equivalent circuit, its uncertainties and figures.
+
+The steps (docs/identify.md gives the reasons and the references):
+
+1. a rational model of Z(s) by vector fitting, weighted by the sweep's sigma,
+   with the pole count chosen automatically;
+2. each candidate circuit refined by weighted nonlinear least squares in
+   log-parameters, from the rational model's and the data's initial guesses
+   (several starts where the resonance is sharp);
+3. the family (inductor or capacitor) chosen by the Bayesian information
+   criterion, the optional element (R_p, R_leak) kept only if it lowers the
+   criterion by more than `BIC_MARGIN`;
+4. the band where the circuit's residual is within the noise (compared with
+   the rational model's over sliding windows); where the circuit does not
+   hold over the whole band, it is refitted over its valid band, and the
+   rational model stays the description of the full band;
+5. SRF, Q, ESR, D and spot readouts with their uncertainties.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._errors import FitError, MeasurementWarning, ZfitInputError
+from ._figures import SRF, Estimate, Figures, SpotReadout
+
+__all__ = [
+    "identify",
+    "Identification",
+    "FitQuality",
+    "Candidate",
+    "ParameterMap",
+    "Estimate",
+    "MODELS",
+    "SCHEMA",
+    "BIC_MARGIN",
+    "DEFAULT_RDC_REL",
+]
+
+#: The `model` argument's choices.
+MODELS = ("auto", "inductor", "capacitor", "rational")
+
+#: Identifier of the JSON contract.
+SCHEMA = "zfit.identify/1"
+
+#: An optional element is kept only when it lowers the BIC by more than this
+#: ("very strong" evidence on the scale of Kass & Raftery 1995, a difference
+#: above 10).
+BIC_MARGIN = 10.0
+
+#: Default relative uncertainty of a measured DC resistance when none is
+#: given: 1 % of reading, common practice for a bench four-wire ohmmeter
+#: reading of a winding (meter accuracy, lead contact and self-heating).
+DEFAULT_RDC_REL = 0.01
+
+#: A parameter whose relative uncertainty exceeds this is reported as not
+#: resolved by the sweep.
+UNRESOLVED_REL = 0.5
+
+_PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
+
+
+class ParameterMap(Mapping):
+    """An immutable, picklable mapping of parameter key to `Estimate`.
+
+    Parameters
+    ----------
+    items : iterable of (str, Estimate)
+        The entries, in the circuit's order.
+    """
+
+    __slots__ = ("_items", "_index")
+
+    def __init__(self, items=()):
+        items = tuple((str(k), v) for k, v in items)
+        object.__setattr__(self, "_items", items)
+        object.__setattr__(self, "_index", {k: i for i, (k, _) in enumerate(items)})
+
+    def __setattr__(self, name, value):
+        raise AttributeError("ParameterMap is immutable")
+
+    def __getitem__(self, key):
+        return self._items[self._index[key]][1]
+
+    def __iter__(self):
+        return (k for k, _ in self._items)
+
+    def __len__(self):
+        return len(self._items)
+
+    def __repr__(self):
+        return f"ParameterMap({dict(self._items)!r})"
+
+    def __reduce__(self):
+        return (ParameterMap, (self._items,))
+
+    def values_si(self) -> dict:
+        """Return ``{key: value}`` in SI units (what `circuit_impedance` takes)."""
+        return {k: v.value for k, v in self._items}
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One circuit that was fitted while choosing the model.
+
+    Attributes
+    ----------
+    topology : str
+        The circuit.
+    n_params : int
+        Its number of parameters.
+    bic : float
+        Its Bayesian information criterion on the fitted points.
+    rms_normalized_residual : float
+        RMS of the normalised residual.
+    chosen : bool
+        Whether it is the reported circuit.
+    """
+
+    topology: str
+    n_params: int
+    bic: float
+    rms_normalized_residual: float
+    chosen: bool = False
+
+    def to_dict(self) -> dict:
+        """Return the JSON object of the candidate."""
+        return {
+            "topology": self.topology, "n_params": int(self.n_params), "bic": _num(self.bic),
+            "rms_normalized_residual": _num(self.rms_normalized_residual), "chosen": bool(self.chosen),
+        }
+
+
+@dataclass(frozen=True)
+class FitQuality:
+    """How well the reported model describes the sweep.
+
+    Attributes
+    ----------
+    rms_normalized_residual : float
+        RMS over the fitted points of ``|Z_model - Z| / sigma`` (taken on S
+        for analyser data, see `domain`): about 1 when only noise is left.
+    points : int
+        Number of points the reported model was fitted to.
+    f_min_hz, f_max_hz : float
+        The band of the sweep.
+    valid_band_hz : tuple of float
+        The band where the model's residual is within the noise.
+    fitted_band_hz : tuple of float
+        The band the reported values were fitted over.
+    reduced_chi_square : float
+        Chi-square per degree of freedom of the fit.
+    domain : {'S', 'Z'}
+        Whether residuals were taken on the measured S-parameter or on Z.
+    criterion : str
+        The model-choice criterion (``"BIC"``).
+    rational_rms_normalized_residual : float or None
+        The same RMS for the rational model over the full band.
+    rational_poles : int or None
+        Its number of poles (besides an origin pole).
+    worse_than_rational : bool
+        Whether the circuit describes the full band worse than the rational
+        model by the criterion.
+    starts : int
+        Starting points ranked for the refinement of the reported circuit.
+    """
+
+    rms_normalized_residual: float
+    points: int
+    f_min_hz: float
+    f_max_hz: float
+    valid_band_hz: tuple
+    fitted_band_hz: tuple
+    reduced_chi_square: float
+    domain: str
+    criterion: str = "BIC"
+    rational_rms_normalized_residual: float | None = None
+    rational_poles: int | None = None
+    worse_than_rational: bool = False
+    starts: int = 0
+
+    def to_dict(self) -> dict:
+        """Return the ``fit`` object of the JSON contract."""
+        return {
+            "rms_normalized_residual": _num(self.rms_normalized_residual),
+            "points": int(self.points),
+            "f_min_hz": float(self.f_min_hz),
+            "f_max_hz": float(self.f_max_hz),
+            "valid_band_hz": [_num(self.valid_band_hz[0]), _num(self.valid_band_hz[1])],
+            "fitted_band_hz": [_num(self.fitted_band_hz[0]), _num(self.fitted_band_hz[1])],
+            "reduced_chi_square": _num(self.reduced_chi_square),
+            "domain": self.domain,
+            "criterion": self.criterion,
+            "rational_rms_normalized_residual": _num(self.rational_rms_normalized_residual),
+            "rational_poles": None if self.rational_poles is None else int(self.rational_poles),
+            "worse_than_rational": bool(self.worse_than_rational),
+            "starts": int(self.starts),
+        }
+
+
+def _num(x):
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+@dataclass(frozen=True)
+class Identification:
+    """The result of `identify`.
+
+    Attributes
+    ----------
+    sweep : Sweep
+        The measurement.
+    model : {'inductor', 'capacitor', 'rational'}
+        The model reported.
+    topology : str
+        The circuit's descriptive name (or ``"rational model with N poles"``).
+    parameters : ParameterMap
+        Key -> `Estimate` (empty for the rational model).
+    rational : RationalModel or None
+        The vector-fitting model of the full band (None only if it failed).
+    srf : SRF
+        The self-resonant frequency and where it lies.
+    fit : FitQuality
+        Residuals, points, band, valid band.
+    spot : tuple of SpotReadout
+        Readouts at the frequencies asked for.
+    warnings : tuple of str
+        What the user should know about this result.
+    figures : Figures
+        Q peak, ESR, D, |Z| at resonance.
+    candidates : tuple of Candidate
+        The circuits compared while choosing the model.
+    correlation : numpy.ndarray or None
+        Correlation matrix of the parameters, in `parameters` order.
+    rdc : Estimate or None
+        The measured DC resistance that constrained R_s or ESR.
+    refinement : Refinement or None
+        The circuit fit itself (values, log-covariance), for further use.
+    """
+
+    sweep: object
+    model: str
+    topology: str
+    parameters: ParameterMap
+    rational: object
+    srf: SRF
+    fit: FitQuality
+    spot: tuple = ()
+    warnings: tuple = ()
+    figures: Figures = Figures()
+    candidates: tuple = ()
+    correlation: np.ndarray | None = None
+    rdc: Estimate | None = None
+    refinement: object = None
+
+    def __post_init__(self):
+        if self.correlation is not None:
+            c = np.array(self.correlation, float)
+            c.flags.writeable = False
+            object.__setattr__(self, "correlation", c)
+
+    @property
+    def circuit(self):
+        """The fitted `Circuit`, or None for the rational model."""
+        return None if self.refinement is None else self.refinement.circuit
+
+    def impedance(self, f_hz) -> np.ndarray:
+        """Return the reported model's impedance (ohm) at `f_hz`.
+
+        The equivalent circuit's, or the rational model's when ``model`` is
+        ``"rational"``.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        f = np.asarray(f_hz, dtype=float)
+        if self.refinement is not None:
+            return self.refinement.impedance(f)
+        return self.rational.impedance(f)
+
+    def measured_impedance(self, f_hz) -> np.ndarray:
+        """Return the rational model's impedance: the measured part, smoothed.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        if self.rational is None:
+            return self.impedance(f_hz)
+        return self.rational.impedance(np.asarray(f_hz, dtype=float))
+
+    def q_measured(self, f_hz) -> np.ndarray:
+        """Return the measured Q, ``|X| / R``, at `f_hz` (from the rational model).
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        z = self.measured_impedance(f_hz)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.abs(z.imag) / z.real
+
+    def q_model(self, f_hz) -> np.ndarray | None:
+        """Return the inductor model's ``omega L / R_s`` at `f_hz` (None otherwise).
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        if self.model != "inductor":
+            return None
+        return self.circuit.model_q(self.refinement.values, np.asarray(f_hz, dtype=float))
+
+    def esr(self, f_hz) -> np.ndarray:
+        """Return ESR(f) = Re Z of the measured part (rational model), ohm.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        return self.measured_impedance(f_hz).real
+
+    def dissipation(self, f_hz) -> np.ndarray:
+        """Return the measured D(f) = ``R / |X|`` (rational model).
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        z = self.measured_impedance(f_hz)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return z.real / np.abs(z.imag)
+
+    def dissipation_model(self, f_hz) -> np.ndarray | None:
+        """Return the capacitor model's ``omega C ESR`` at `f_hz` (None otherwise).
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        if self.model != "capacitor":
+            return None
+        return self.circuit.model_d(self.refinement.values, np.asarray(f_hz, dtype=float))
+
+    def normalized_residual(self) -> np.ndarray:
+        """Return ``|Z_model - Z| / sigma`` of the reported model at each sweep point.
+
+        Taken in the fit's domain (on S for analyser data), so it is what
+        the fit minimised; about 1 where only noise is left.
+        """
+        from ._refine import Observation
+
+        obs = Observation.from_sweep(self.sweep)
+        return np.abs(obs.normalized(self.impedance(self.sweep.f_hz)))
+
+    def to_dict(self) -> dict:
+        """Return the ``zfit.identify/1`` JSON object (see docs/identify.md).
+
+        Floats are numbers in SI units; a missing value is null, never a
+        string.
+        """
+        from ._version import __version__
+
+        corr = None
+        if self.correlation is not None and len(self.parameters):
+            corr = {
+                "keys": list(self.parameters),
+                "matrix": [[_num(v) for v in row] for row in self.correlation],
+            }
+        return {
+            "schema": SCHEMA,
+            "zfit_version": __version__,
+            "source": str(self.sweep.source),
+            "connection": self.sweep.connection,
+            "model": self.model,
+            "topology": self.topology,
+            "parameters": {k: v.to_dict() for k, v in self.parameters.items()},
+            "correlation": corr,
+            "srf": self.srf.to_dict(),
+            "figures": self.figures.to_dict(),
+            "fit": self.fit.to_dict(),
+            "candidates": [c.to_dict() for c in self.candidates],
+            "rational": _rational_dict(self.rational),
+            "rdc": None if self.rdc is None else self.rdc.to_dict(),
+            "spot": [s.to_dict() for s in self.spot],
+            "warnings": list(self.warnings),
+            "notes": list(self.sweep.notes),
+        }
+
+
+def _rational_dict(rm):
+    if rm is None:
+        return None
+    poles = np.asarray(rm.poles, complex)
+    res = np.asarray(rm.residues, complex)
+    return {
+        "poles_rad_per_s": [[float(p.real), float(p.imag)] for p in poles],
+        "residues": [[float(r.real), float(r.imag)] for r in res],
+        "constant_ohm": float(rm.constant),
+        "proportional_h": float(rm.proportional),
+        "origin_residue": float(rm.origin_residue),
+        "rms_normalized_residual": _num(getattr(rm, "rms_normalized_residual", None)),
+        "passive": bool(_passive(rm)),
+    }
+
+
+def _passive(rm) -> bool:
+    try:
+        return bool(rm.is_passive)
+    except (AttributeError, ValueError, ArithmeticError):
+        return True
+
+
+def _bic(chi2: float, rows: int, k: int) -> float:
+    """Schwarz's criterion for Gaussian residuals with a common unknown scale.
+
+    ``n ln(chi2 / n) + k ln n`` (Schwarz 1978): the noise level is taken from
+    the data rather than trusted blindly, so a noise model that is off by a
+    constant factor does not bias the choice.
+    """
+    return rows * math.log(max(chi2, 1e-300) / rows) + k * math.log(rows)
+
+
+def _run_length_band(ok):
+    """Return (start, stop) indices of the longest run of True in `ok`."""
+    best = (0, 0)
+    n = ok.size
+    if n == 0:
+        return best
+    d = np.diff(np.concatenate([[0], ok.astype(np.int8), [0]]))
+    starts, stops = np.flatnonzero(d == 1), np.flatnonzero(d == -1)
+    if starts.size == 0:
+        return best
+    i = int(np.argmax(stops - starts))
+    return int(starts[i]), int(stops[i])
+
+
+def _window_mean(e, w):
+    c = np.concatenate([[0.0], np.cumsum(e)])
+    n = e.size
+    h = w // 2
+    lo = np.clip(np.arange(n) - h, 0, n)
+    hi = np.clip(np.arange(n) + h + 1, 0, n)
+    return (c[hi] - c[lo]) / (hi - lo), hi - lo
+
+
+def valid_mask(e_circuit, e_rational=None) -> np.ndarray:
+    """Return the points where a circuit's residual is within the noise.
+
+    Over a sliding window of ``max(9, N/25)`` points the mean squared
+    normalised residual of the circuit is compared with the noise level
+    (1, or the rational model's own level where that is higher: a noise
+    model that is too optimistic is then not held against the circuit).
+    A point passes when the circuit's window mean is below
+    ``level * (1 + 5 / sqrt(w))``: the mean of w unit-mean exponential
+    terms has a standard deviation of ``1 / sqrt(w)``, so a right model fails
+    a window only by a five-sigma fluctuation.
+
+    Parameters
+    ----------
+    e_circuit : array_like
+        ``|normalised residual|^2`` of the circuit at each point.
+    e_rational : array_like, optional
+        The same for the rational model.
+    """
+    e = np.asarray(e_circuit, float)
+    n = e.size
+    w = max(9, n // 25)
+    if w % 2 == 0:
+        w += 1
+    mc, cnt = _window_mean(e, w)
+    level = np.ones(n)
+    if e_rational is not None:
+        mr, _ = _window_mean(np.asarray(e_rational, float), w)
+        level = np.maximum(level, mr)
+    return mc <= level * (1.0 + 5.0 / np.sqrt(cnt))
+
+
+def _looks_capacitive(sweep) -> bool:
+    # Reactance at the bottom of the band: negative for a capacitor below its
+    # SRF (and for an inductor measured only above its SRF, which the model
+    # choice then sorts out).
+    n = max(3, sweep.n_points // 20)
+    return bool(np.median(sweep.z_ohm[:n].imag) < 0)
+
+
+def _rational_fit(sweep, kind, n_poles):
+    from . import _vectfit
+
+    fit = getattr(_vectfit, "fit_impedance", None)
+    if fit is not None:
+        return fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, kind=kind, n_poles=n_poles)
+    opts = {"inductor": dict(constant=False, proportional=False, origin_pole=False),
+            "capacitor": dict(constant=True, proportional=True, origin_pole=True),
+            "general": dict(constant=True, proportional=True, origin_pole=False)}[kind]
+    return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts)
+
+
+def _rational_k(rm) -> int:
+    n_points = int(getattr(rm, "n_points", 0) or 0)
+    dof = int(getattr(rm, "dof", 0) or 0)
+    if n_points and dof:
+        return 2 * n_points - dof
+    extra = int(bool(rm.constant)) + int(bool(rm.proportional)) + int(bool(rm.origin_residue))
+    return 2 * len(rm.poles) + extra
+
+
+def _n_poles(rm) -> int:
+    return int(len(rm.poles))
+
+
+def _fit_family(family, obs, rational, prior, margin):
+    """Refine the base circuit of a family and the one with its optional element."""
+    from ._circuits import circuits_of
+    from ._refine import refine
+
+    base, full = circuits_of(family)
+    f, z, sig = obs.f_hz, obs.z_ohm, obs.sigma_ohm
+    starts = base.starts(f, z, sig, rational)
+    n_best = 3 if len(starts) > 2 else len(starts)
+    rb = refine(base, obs, starts, prior=prior, n_best=n_best)
+    # The optional element from the base fit (small, middling, large) and from the data.
+    zmax = float(np.max(np.abs(z)))
+    if family == "inductor":
+        extra = [zmax * 100.0, zmax * 3.0, zmax]
+    else:
+        c = rb.values[0]
+        extra = [x / (2 * math.pi * f[0] * c) for x in (1e4, 1e2, 10.0)]
+    fstarts = [np.append(rb.values, e) for e in extra] + full.starts(f, z, sig, rational)[:2]
+    try:
+        rf = refine(full, obs, fstarts, prior=prior, n_best=3)
+    except FitError:
+        rf = None
+    return rb, rf
+
+
+def _summary(ref, rows):
+    return _bic(ref.chi2, rows, ref.circuit.n_params)
+
+
+def _estimates(ref):
+    stds = ref.stds
+    return ParameterMap(
+        (k, Estimate(float(v), float(s) if math.isfinite(s) else None, ref.circuit.units[k]))
+        for k, v, s in zip(ref.circuit.keys, ref.values, stds)
+    )
+
+
+def _correlation(ref):
+    c = ref.log_cov
+    d = np.sqrt(np.clip(np.diag(c), 1e-300, None))
+    corr = c / np.outer(d, d)
+    return np.clip(corr, -1.0, 1.0)
+
+
+def identify(
+    sweep,
+    model: str = "auto",
+    at=(),
+    *,
+    rdc: float | None = None,
+    rdc_std: float | None = None,
+    n_poles: int | None = None,
+    margin: float = BIC_MARGIN,
+) -> Identification:
+    """Return the equivalent circuit of a part with uncertainties, SRF, Q and D.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The measured impedance with its per-point uncertainty.
+    model : {'auto', 'inductor', 'capacitor', 'rational'}
+        ``auto`` chooses the family by the BIC and adds the optional element
+        (R_p, R_leak) only when it lowers the BIC by more than `margin`;
+        ``inductor`` / ``capacitor`` fix the family (the optional element is
+        still chosen); ``rational`` reports the vector-fitting model alone.
+    at : sequence of float
+        Frequencies (Hz) for spot readouts of R, X, L_eff, C_eff, Q and D.
+    rdc : float, optional
+        A measured DC resistance in ohm (four-wire ohmmeter): it constrains
+        R_s (inductor) or ESR (capacitor) as a prior measurement.
+    rdc_std : float, optional
+        Its standard uncertainty in ohm (default `DEFAULT_RDC_REL` of `rdc`).
+    n_poles : int, optional
+        Pole count of the rational model (automatic by default).
+    margin : float
+        BIC difference an optional element must win by.
+
+    Returns
+    -------
+    Identification
+        The result; ``to_dict()`` is the ``zfit.identify/1`` JSON object.
+
+    Raises
+    ------
+    ZfitInputError
+        On an unknown model, non-positive spot frequencies or DC resistance.
+    FitError
+        When neither the rational model nor any circuit can be fitted.
+
+    Warns
+    -----
+    MeasurementWarning
+        For each entry of ``Identification.warnings`` (a circuit worse than
+        the rational model, a narrower valid band, parameters the sweep does
+        not resolve, spot readouts outside the band, a DC resistance that
+        disagrees with the sweep).
+
+    References
+    ----------
+    .. [1] B. Gustavsen and A. Semlyen, "Rational approximation of frequency
+       domain responses by vector fitting", IEEE Trans. Power Delivery 14(3),
+       1052-1061, 1999, doi:10.1109/61.772353.
+    .. [2] G. Schwarz, "Estimating the dimension of a model", Ann. Statist.
+       6(2), 461-464, 1978, doi:10.1214/aos/1176344136.
+    .. [3] R. E. Kass and A. E. Raftery, "Bayes factors", J. Amer. Statist.
+       Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
+    """
+    from ._circuits import FAMILIES
+    from ._figures import figures_of, spot_readout, srf_of_circuit, srf_of_rational
+    from ._refine import Observation, Prior, refine
+
+    if model not in MODELS:
+        raise ZfitInputError(f"unknown model {model!r}; use one of {', '.join(MODELS)}", sweep.source)
+    at = tuple(float(x) for x in (at or ()))
+    for x in at:
+        if not (math.isfinite(x) and x > 0):
+            raise ZfitInputError(f"spot frequency {x:g} Hz is not a positive number")
+    if rdc is not None:
+        rdc = float(rdc)
+        if not (math.isfinite(rdc) and rdc > 0):
+            raise ZfitInputError(f"--rdc must be a positive resistance in ohm, got {rdc:g}")
+        rdc_std = DEFAULT_RDC_REL * rdc if rdc_std is None else float(rdc_std)
+        if not (math.isfinite(rdc_std) and rdc_std > 0):
+            raise ZfitInputError(f"--rdc-std must be a positive resistance in ohm, got {rdc_std:g}")
+    elif rdc_std is not None:
+        raise ZfitInputError("--rdc-std needs --rdc")
+
+    notes = []
+    band = sweep.band_hz
+    obs = Observation.from_sweep(sweep)
+    rows_full = 2 * sweep.n_points
+
+    # 1. The rational model of the full band.
+    kind = {"inductor": "inductor", "capacitor": "capacitor", "rational": "general"}.get(model)
+    if kind is None:
+        kind = "capacitor" if _looks_capacitive(sweep) else "inductor"
+    rational = None
+    try:
+        rational = _rational_fit(sweep, kind, n_poles)
+    except FitError as exc:
+        if model == "rational":
+            raise
+        notes.append(f"no rational model of the sweep ({exc}); figures are read from the circuit")
+    e_rat = None
+    rat_rms = None
+    bic_rat = None
+    if rational is not None:
+        e_rat = np.abs(obs.normalized(rational.impedance(sweep.f_hz))) ** 2
+        rat_rms = float(math.sqrt(np.mean(e_rat)))
+        bic_rat = _bic(float(2 * e_rat.sum()), rows_full, _rational_k(rational))
+
+    if model == "rational":
+        if rdc is not None:
+            notes.append("--rdc does not apply to the rational model; ignored")
+        srf = srf_of_rational(rational, band)
+        spots = tuple(spot_readout(x, band, rational=rational) for x in at)
+        for s in spots:
+            if not s.in_band:
+                notes.append(f"spot readout at {s.f_hz:.6g} Hz is outside the band: the rational model is extrapolated")
+        k = _rational_k(rational)
+        fit = FitQuality(
+            rms_normalized_residual=rat_rms, points=sweep.n_points, f_min_hz=band[0], f_max_hz=band[1],
+            valid_band_hz=band, fitted_band_hz=band,
+            reduced_chi_square=float(2 * e_rat.sum() / max(rows_full - k, 1)),
+            domain="S" if obs.on_s else "Z", rational_rms_normalized_residual=rat_rms,
+            rational_poles=_n_poles(rational),
+        )
+        return _finish(Identification(
+            sweep=sweep, model="rational", topology=f"rational model with {_n_poles(rational)} poles",
+            parameters=ParameterMap(), rational=rational, srf=srf, fit=fit, spot=spots,
+            figures=figures_of("rational", band, srf, rational=rational), rdc=None,
+        ), notes)
+
+    # 2-3. Circuits of each family, the family and the optional element by BIC.
+    families = FAMILIES if model == "auto" else (model,)
+    fitted = {}
+    for fam in families:
+        prior = None if rdc is None else Prior(_PRIOR_KEY[fam], rdc, rdc_std)
+        try:
+            fitted[fam] = _fit_family(fam, obs, rational, prior, margin)
+        except FitError as exc:
+            notes.append(f"{fam} circuit could not be fitted: {exc}")
+    if not fitted:
+        if rational is None:
+            raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
+        return identify(sweep, "rational", at, n_poles=n_poles)
+    cands = []
+    for fam, (rb, rf) in fitted.items():
+        cands.append((_summary(rb, rows_full), rb))
+        if rf is not None:
+            cands.append((_summary(rf, rows_full), rf))
+    family = min(fitted, key=lambda fam: _summary(fitted[fam][0], rows_full))
+    rb, rf = fitted[family]
+    chosen = rb
+    if rf is not None and _summary(rf, rows_full) < _summary(rb, rows_full) - margin:
+        chosen = rf
+    prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
+
+    # 4. The band where the circuit holds; refit over it when it is not the whole band.
+    def residual_energy(ref):
+        return np.abs(obs.normalized(ref.impedance(sweep.f_hz))) ** 2
+
+    e_c = residual_energy(chosen)
+    ok = valid_mask(e_c, e_rat)
+    i0, i1 = _run_length_band(ok)
+    fitted_mask = None
+    k = chosen.circuit.n_params
+    if (i1 - i0) < 0.97 * sweep.n_points and (i1 - i0) >= max(10, 4 * k):
+        mask = np.zeros(sweep.n_points, bool)
+        mask[i0:i1] = True
+        sub = obs.subset(mask)
+        try:
+            starts = [chosen.values] + chosen.circuit.starts(sub.f_hz, sub.z_ohm, sub.sigma_ohm, rational)
+            refit = refine(chosen.circuit, sub, starts, prior=prior, n_best=3)
+            e_new = residual_energy(refit)
+            ok_new = valid_mask(e_new, e_rat)
+            j0, j1 = _run_length_band(ok_new)
+            if (j1 - j0) >= (i1 - i0):
+                chosen, e_c, (i0, i1) = refit, e_new, (j0, j1)
+                fitted_mask = mask
+        except FitError:
+            pass
+    if i1 <= i0:
+        i0, i1 = 0, 0
+    valid_band = (float(sweep.f_hz[i0]), float(sweep.f_hz[max(i1 - 1, i0)])) if i1 > i0 else (math.nan, math.nan)
+    fitted_band = band if fitted_mask is None else (float(sweep.f_hz[fitted_mask][0]), float(sweep.f_hz[fitted_mask][-1]))
+    bic_c_full = _bic(float(2 * e_c.sum()), rows_full, k)
+    worse = bic_rat is not None and bic_c_full > bic_rat + margin
+    if model == "auto" and rational is not None and (i1 - i0) < max(10, 0.25 * sweep.n_points):
+        notes.append(
+            f"no equivalent circuit describes this part: the best, {chosen.circuit.topology}, is within the noise "
+            f"over {i1 - i0} of {sweep.n_points} points only; the rational model is reported"
+        )
+        res = identify(sweep, "rational", at, n_poles=n_poles)
+        return _finish(res, notes)
+    if worse:
+        rms_full = float(math.sqrt(np.mean(e_c)))
+        if fitted_mask is not None or (i1 - i0) < sweep.n_points:
+            notes.append(
+                f"the {chosen.circuit.topology} describes the data to within the noise only from "
+                f"{valid_band[0]:.4g} Hz to {valid_band[1]:.4g} Hz (normalised RMS residual {rms_full:.3g} over the "
+                f"full band, rational model {rat_rms:.3g}); the rational model describes the full band"
+            )
+        else:
+            notes.append(
+                f"the {chosen.circuit.topology} fits worse than the rational model (normalised RMS residual "
+                f"{rms_full:.3g} against {rat_rms:.3g}); its values carry a model error beyond the noise"
+            )
+
+    # 5. Figures.
+    est = _estimates(chosen)
+    for key, e in est.items():
+        if e.std is None or not (e.std <= UNRESOLVED_REL * abs(e.value)):
+            rel = "unknown" if e.std is None else f"{100 * e.std / abs(e.value):.0f} %"
+            hint = " (a four-wire --rdc measurement can pin it)" if key in ("R_s", "ESR") and rdc is None else ""
+            notes.append(f"{key} is not resolved by this sweep (relative uncertainty {rel}){hint}")
+    if prior is not None and chosen.prior_pull is not None and abs(chosen.prior_pull) > 3.0:
+        notes.append(
+            f"the DC resistance given ({rdc:.4g} ohm) and the sweep disagree: the fitted {prior.key} is "
+            f"{chosen.prior_pull:+.1f} standard uncertainties from it (skin effect or a different part?)"
+        )
+    srf = srf_of_circuit(chosen, band)
+    if srf.where == "in-band" and rational is not None:
+        rs = srf_of_rational(rational, band)
+        if rs.where == "in-band" and rs.value_hz and rs.std_hz and srf.std_hz:
+            diff = abs(rs.value_hz - srf.value_hz) / math.hypot(rs.std_hz, srf.std_hz)
+            if diff > 5 and abs(rs.value_hz / srf.value_hz - 1) > 1e-3:
+                notes.append(
+                    f"the circuit's SRF ({srf.value_hz:.6g} Hz) and the measured zero of X "
+                    f"({rs.value_hz:.6g} Hz) differ by {diff:.1f} combined standard uncertainties"
+                )
+    spots = tuple(spot_readout(x, band, rational=rational, refinement=chosen) for x in at)
+    for s in spots:
+        if not s.in_band:
+            notes.append(f"spot readout at {s.f_hz:.6g} Hz is outside the band: extrapolated from the circuit")
+    figures = figures_of(family, band, srf, rational=rational, refinement=chosen)
+    n_fit = sweep.n_points if fitted_mask is None else int(fitted_mask.sum())
+    fit = FitQuality(
+        rms_normalized_residual=chosen.rms_normalized_residual, points=n_fit, f_min_hz=band[0], f_max_hz=band[1],
+        valid_band_hz=valid_band, fitted_band_hz=fitted_band, reduced_chi_square=chosen.reduced_chi2,
+        domain="S" if obs.on_s else "Z", rational_rms_normalized_residual=rat_rms,
+        rational_poles=None if rational is None else _n_poles(rational), worse_than_rational=bool(worse),
+        starts=chosen.starts,
+    )
+    candidates = tuple(
+        Candidate(ref.circuit.topology, ref.circuit.n_params, b, ref.rms_normalized_residual,
+                  chosen=(ref.circuit == chosen.circuit))
+        for b, ref in cands
+    )
+    return _finish(Identification(
+        sweep=sweep, model=family, topology=chosen.circuit.topology, parameters=est, rational=rational,
+        srf=srf, fit=fit, spot=spots, figures=figures, candidates=candidates,
+        correlation=_correlation(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
+        refinement=chosen,
+    ), notes)
+
+
+def _finish(result: Identification, notes) -> Identification:
+    """Attach the new warnings to the result and raise them as MeasurementWarning."""
+    import dataclasses
+
+    new = tuple(notes)
+    for text in new:
+        warnings.warn(f"{result.sweep.source}: {text}" if result.sweep.source else text, MeasurementWarning, stacklevel=3)
+    return dataclasses.replace(result, warnings=tuple(new) + tuple(result.warnings))

@@ -1,0 +1,423 @@
+"""Weighted nonlinear least squares of an equivalent circuit, with covariance.
+
+The unknowns are the logarithms of the element values, so every element
+stays positive (and the circuit passive) without bounds that would distort
+the covariance.  Each point contributes two residual rows,
+``sqrt(2) Re(Z_model - Z) / sigma`` and ``sqrt(2) Im(Z_model - Z) / sigma``:
+``sigma`` is complex-circular (``sigma/sqrt(2)`` on each of Re and Im), so each
+row has unit variance when the noise model is right.  A measured DC
+resistance enters as one more row, ``(R - R_dc) / u(R_dc)``.
+
+The covariance of the log-parameters is ``(J^T J)^-1`` with the data rows
+scaled by the reduced chi-square ``s^2 = chi^2 / (2N - k)`` (the usual
+weighted-least-squares estimate when the noise level is known only up to a
+factor), the prior row not scaled (its uncertainty is what the user stated).
+
+References
+----------
+.. [1] W. H. Press, S. A. Teukolsky, W. T. Vetterling and B. P. Flannery,
+   *Numerical Recipes*, 3rd ed., Cambridge University Press, 2007,
+   section 15.5 (nonlinear models, covariance from the Jacobian).
+.. [2] JCGM 100:2008, *Evaluation of measurement data -- Guide to the
+   expression of uncertainty in measurement*, section 5.1 (propagation).
+.. [3] M. A. Branch, T. F. Coleman and Y. Li, "A subspace, interior, and
+   conjugate gradient method for large-scale bound-constrained minimization
+   problems", SIAM J. Sci. Comput. 21(1), 1-23, 1999,
+   doi:10.1137/S1064827595289108 (the trust-region method of
+   ``scipy.optimize.least_squares``).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._circuits import Circuit
+from ._errors import FitError
+
+__all__ = ["Observation", "Prior", "Refinement", "refine", "log_gradient"]
+
+_SQRT2 = math.sqrt(2.0)
+# Log-parameters may move at most this far from their start (e^25 ~ 7e10):
+# wide enough for any guess, narrow enough that an unresolved element
+# cannot run off to 1e-300.
+_LOG_SPAN = 25.0
+
+
+@dataclass(frozen=True)
+class Observation:
+    """The data a circuit is fitted to, in the domain where the noise is Gaussian.
+
+    For a network-analyser sweep whose impedances still follow from its
+    S-parameters, the residuals are taken on S (``(S_model - S) / sigma_S``):
+    where the part's impedance sits in the small difference ``1 - S`` (a
+    kilohm-level peak in shunt-thru, milliohms in series-thru), the
+    first-order propagation of the analyser's noise to Z no longer holds,
+    the measured Z is biased and heavy-tailed, and a Z-domain fit would
+    trust those points far too much.  Elsewhere the two are the same to first
+    order.  Tables and captures are fitted on Z with the sweep's sigma.
+
+    Attributes
+    ----------
+    f_hz, z_ohm, sigma_ohm : numpy.ndarray
+        The sweep (or the part of it that is used).
+    connection : str or None
+        The analyser connection when fitting on S, else None.
+    z0 : float or None
+        Reference impedance when fitting on S.
+    s : numpy.ndarray or None
+        The measured S11 or S21 when fitting on S.
+    sigma_s : numpy.ndarray or None
+        Its complex-circular standard uncertainty.
+    """
+
+    f_hz: np.ndarray
+    z_ohm: np.ndarray
+    sigma_ohm: np.ndarray
+    connection: str | None = None
+    z0: float | None = None
+    s: np.ndarray | None = None
+    sigma_s: np.ndarray | None = None
+
+    @classmethod
+    def from_sweep(cls, sweep, mask=None) -> "Observation":
+        """Return the observation of a `Sweep` (on S when that is sound).
+
+        Parameters
+        ----------
+        sweep : Sweep
+            The measurement.
+        mask : array_like of bool, optional
+            The points to use (all by default).
+        """
+        from ._connection import NA_CONNECTIONS, impedance_from_s
+
+        sel = slice(None) if mask is None else np.asarray(mask, bool)
+        f, z, sig = sweep.f_hz[sel], sweep.z_ohm[sel], sweep.sigma_ohm[sel]
+        s = sweep.s_param
+        if (
+            s is not None and sweep.noise is not None and sweep.reference_ohm is not None
+            and sweep.connection in NA_CONNECTIONS
+        ):
+            s = np.asarray(s)[sel]
+            with np.errstate(all="ignore"):
+                zs = impedance_from_s(s, sweep.connection, sweep.reference_ohm)
+            # Only when Z still is the plain conversion of S (no fixture correction since).
+            if np.all(np.isfinite(zs)) and np.allclose(zs, z, rtol=1e-7, atol=0.0):
+                return cls(f, z, sig, sweep.connection, float(sweep.reference_ohm), s, sweep.noise.sigma(s))
+        return cls(f, z, sig)
+
+    @property
+    def on_s(self) -> bool:
+        """Whether residuals are taken on S."""
+        return self.connection is not None
+
+    def subset(self, mask) -> "Observation":
+        """Return the observation restricted to the points in `mask`.
+
+        Parameters
+        ----------
+        mask : array_like of bool
+            The points to keep.
+        """
+        m = np.asarray(mask, bool)
+        pick = lambda a: None if a is None else a[m]  # noqa: E731
+        return Observation(self.f_hz[m], self.z_ohm[m], self.sigma_ohm[m], self.connection, self.z0, pick(self.s), pick(self.sigma_s))
+
+    def _s_and_slope(self, z_model):
+        z0, zm = self.z0, z_model
+        if self.connection == "reflection":
+            d = zm + z0
+            return (zm - z0) / d, 2.0 * z0 / (d * d)
+        if self.connection == "shunt-thru":
+            d = 2.0 * zm + z0
+            return 2.0 * zm / d, 2.0 * z0 / (d * d)
+        d = 2.0 * z0 + zm
+        return 2.0 * z0 / d, -2.0 * z0 / (d * d)
+
+    def normalized(self, z_model) -> np.ndarray:
+        """Return the complex normalised residual of a model impedance.
+
+        ``(S_model - S) / sigma_S`` on S, ``(Z_model - Z) / sigma`` on Z; its
+        squared magnitude has mean 1 per point for a right model.
+
+        Parameters
+        ----------
+        z_model : array_like of complex
+            The model's impedance at `f_hz`.
+        """
+        z_model = np.asarray(z_model, complex)
+        if self.on_s:
+            sm, _ = self._s_and_slope(z_model)
+            return (sm - self.s) / self.sigma_s
+        return (z_model - self.z_ohm) / self.sigma_ohm
+
+    def slope(self, z_model) -> np.ndarray:
+        """Return d(normalised residual)/dZ_model at each point.
+
+        Parameters
+        ----------
+        z_model : array_like of complex
+            The model's impedance at `f_hz`.
+        """
+        if self.on_s:
+            _, ds = self._s_and_slope(np.asarray(z_model, complex))
+            return ds / self.sigma_s
+        return 1.0 / self.sigma_ohm
+
+
+@dataclass(frozen=True)
+class Prior:
+    """An independent measurement of one parameter (e.g. a four-wire R_dc).
+
+    Attributes
+    ----------
+    key : str
+        The parameter it constrains (``R_s`` or ``ESR``).
+    value : float
+        The measured value in SI units.
+    std : float
+        Its standard uncertainty.
+    """
+
+    key: str
+    value: float
+    std: float
+
+
+@dataclass(frozen=True)
+class Refinement:
+    """The result of refining a circuit.
+
+    Attributes
+    ----------
+    circuit : Circuit
+        The circuit that was fitted.
+    values : numpy.ndarray
+        Best element values in `circuit.keys` order, SI units.
+    log_cov : numpy.ndarray
+        Covariance of the natural logarithms of the values.
+    chi2 : float
+        Sum of squared normalised data residual rows (prior row excluded).
+    rows : int
+        Number of data residual rows (twice the points used).
+    rms_normalized_residual : float
+        RMS over the points used of ``|Z_model - Z| / sigma``.
+    reduced_chi2 : float
+        ``chi2 / (rows - n_params)``.
+    starts : int
+        How many starting points were tried.
+    nfev : int
+        Function evaluations over all starts.
+    prior_pull : float or None
+        ``(value - prior) / prior std`` of the constrained parameter at the
+        optimum, None without a prior.
+    """
+
+    circuit: Circuit
+    values: np.ndarray
+    log_cov: np.ndarray
+    chi2: float
+    rows: int
+    rms_normalized_residual: float
+    reduced_chi2: float
+    starts: int
+    nfev: int
+    prior_pull: float | None = None
+
+    def __post_init__(self):
+        for name in ("values", "log_cov"):
+            a = np.array(getattr(self, name), dtype=float)
+            a.flags.writeable = False
+            object.__setattr__(self, name, a)
+
+    @property
+    def stds(self) -> np.ndarray:
+        """Standard uncertainty of each value (first order: ``value * std(ln value)``)."""
+        return self.values * np.sqrt(np.clip(np.diag(self.log_cov), 0.0, None))
+
+    @property
+    def cov(self) -> np.ndarray:
+        """Covariance of the values themselves (first order)."""
+        return self.log_cov * np.outer(self.values, self.values)
+
+    def impedance(self, f_hz) -> np.ndarray:
+        """Return the fitted circuit's impedance at `f_hz`.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        return self.circuit.impedance(self.values, f_hz)
+
+    def std_of(self, fn) -> float:
+        """Return the standard uncertainty of a derived figure ``fn(values)``.
+
+        First-order propagation through a central-difference gradient in the
+        log-parameters (JCGM 100:2008, 5.1.2).
+
+        Parameters
+        ----------
+        fn : callable
+            Maps a parameter vector to a float.
+        """
+        g = log_gradient(fn, self.values)
+        if g is None:
+            return math.nan
+        return float(math.sqrt(max(g @ self.log_cov @ g, 0.0)))
+
+
+def log_gradient(fn, values, step: float = 1e-6):
+    """Return ``d fn / d ln(p_k)`` by central differences, or None if fn fails.
+
+    Parameters
+    ----------
+    fn : callable
+        Maps a parameter vector to a float (may return None where undefined).
+    values : array_like
+        The parameter vector.
+    step : float
+        Relative step in each parameter.
+    """
+    values = np.asarray(values, float)
+    g = np.empty(values.size)
+    for k in range(values.size):
+        up, dn = values.copy(), values.copy()
+        up[k] *= math.exp(step)
+        dn[k] *= math.exp(-step)
+        a, b = fn(up), fn(dn)
+        if a is None or b is None:
+            return None
+        g[k] = (a - b) / (2.0 * step)
+    return g
+
+
+def _rows(theta, circuit, obs, prior_index, prior):
+    p = np.exp(theta)
+    d = obs.normalized(circuit.impedance(p, obs.f_hz)) * _SQRT2
+    r = np.concatenate([d.real, d.imag])
+    if prior is not None:
+        r = np.append(r, (p[prior_index] - prior.value) / prior.std)
+    return r
+
+
+def _jac(theta, circuit, obs, prior_index, prior):
+    p = np.exp(theta)
+    zm = circuit.impedance(p, obs.f_hz)
+    j = circuit.log_jacobian(p, obs.f_hz) * (_SQRT2 * obs.slope(zm))[:, None]
+    out = np.concatenate([j.real, j.imag], axis=0)
+    if prior is not None:
+        row = np.zeros((1, theta.size))
+        row[0, prior_index] = p[prior_index] / prior.std
+        out = np.concatenate([out, row], axis=0)
+    return out
+
+
+def refine(
+    circuit: Circuit, obs: Observation, starts, *, prior: Prior | None = None, n_best: int = 3, max_nfev: int = 200
+) -> Refinement:
+    """Return the weighted least-squares fit of `circuit` to a sweep.
+
+    The starting points are ranked by their cost; the `n_best` lowest are
+    refined by ``scipy.optimize.least_squares`` (trust-region reflective,
+    analytic Jacobian) in log-parameters, and the refined one with the
+    lowest cost is kept.
+
+    Parameters
+    ----------
+    circuit : Circuit
+        The equivalent circuit.
+    obs : Observation
+        The data (see `Observation.from_sweep`).
+    starts : sequence of array_like
+        Initial parameter vectors (SI units, positive).
+    prior : Prior, optional
+        An independent measurement of one parameter.
+    n_best : int
+        How many of the best-ranked starts are refined.
+    max_nfev : int
+        Largest number of function evaluations per start.
+
+    Raises
+    ------
+    FitError
+        When no start is usable or there are fewer residual rows than
+        parameters.
+    """
+    from scipy.optimize import least_squares
+
+    k = circuit.n_params
+    rows = 2 * obs.f_hz.size
+    if rows <= k:
+        raise FitError(f"{circuit.topology}: {obs.f_hz.size} points cannot determine {k} parameters")
+    prior_index = None
+    if prior is not None:
+        if prior.key not in circuit.keys:
+            raise FitError(f"{circuit.topology} has no parameter {prior.key}")
+        prior_index = circuit.keys.index(prior.key)
+
+    ranked = []
+    for p0 in starts:
+        p0 = np.asarray(p0, float)
+        if p0.shape != (k,) or not np.all(np.isfinite(p0)) or np.any(p0 <= 0):
+            continue
+        theta0 = np.log(p0)
+        if prior is not None:
+            theta0[prior_index] = math.log(max(prior.value, 1e-300))
+        with np.errstate(all="ignore"):
+            r0 = _rows(theta0, circuit, obs, prior_index, prior)
+        c0 = float(r0 @ r0)
+        if math.isfinite(c0):
+            ranked.append((c0, len(ranked), theta0))
+    ranked.sort(key=lambda t: (t[0], t[1]))
+    best = None
+    nfev = 0
+    used = len(ranked)
+    for _, _, theta0 in ranked[: max(1, n_best)]:
+        try:
+            sol = least_squares(
+                _rows, theta0, jac=_jac, method="trf", x_scale="jac",
+                bounds=(theta0 - _LOG_SPAN, theta0 + _LOG_SPAN),
+                args=(circuit, obs, prior_index, prior),
+                max_nfev=max_nfev, xtol=1e-12, ftol=1e-12, gtol=1e-12,
+            )
+        except (ValueError, FloatingPointError, np.linalg.LinAlgError):
+            continue
+        nfev += sol.nfev
+        if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
+            best = sol
+    if best is None:
+        raise FitError(f"{circuit.topology}: no usable starting point for the refinement")
+
+    theta = best.x
+    r = _rows(theta, circuit, obs, prior_index, prior)
+    data_r = r[:rows]
+    chi2 = float(data_r @ data_r)
+    red = chi2 / (rows - k)
+    jac = _jac(theta, circuit, obs, prior_index, prior)
+    # Data rows scaled by the reduced chi-square, the prior row by the user's own uncertainty.
+    jd = jac[:rows] / math.sqrt(max(red, 1e-300))
+    info = jd.T @ jd
+    if prior is not None:
+        info = info + np.outer(jac[rows], jac[rows])
+    try:
+        # A pseudo-inverse: an unresolved element gets a huge (not a failed) uncertainty.
+        log_cov = np.linalg.pinv(info, rcond=1e-15, hermitian=True)
+    except np.linalg.LinAlgError:
+        log_cov = np.full((k, k), np.inf)
+    pull = None if prior is None else float(r[rows])
+    return Refinement(
+        circuit=circuit,
+        values=np.exp(theta),
+        log_cov=log_cov,
+        chi2=chi2,
+        rows=rows,
+        rms_normalized_residual=math.sqrt(chi2 / rows),
+        reduced_chi2=red,
+        starts=used,
+        nfev=nfev,
+        prior_pull=pull,
+    )
