@@ -48,6 +48,7 @@ from typing import Mapping, Sequence
 
 from ._errors import ZfitError, ZfitInputError
 from ._limits import PARAMETER_UNITS, VERDICTS, Limits, decide, figure_name
+from ._readers import TABLE_EXTENSIONS, TOUCHSTONE_EXTENSIONS
 
 __all__ = [
     "ReadOptions",
@@ -72,12 +73,12 @@ __all__ = [
     "Progress",
 ]
 
-#: File suffixes taken from a folder given as input.
-SWEEP_SUFFIXES = (".s1p", ".s2p", ".csv", ".tsv", ".txt", ".dat")
+#: File suffixes taken from a folder given as input: every kind the readers read.
+SWEEP_SUFFIXES = (*TOUCHSTONE_EXTENSIONS, *TABLE_EXTENSIONS)
 
 #: Parameter keys in the order of the summary's columns.
 _PARAM_ORDER = tuple(PARAMETER_UNITS)
-_SPOT_KEYS = ("R", "X", "Z_abs", "L_eff", "C_eff", "Q", "D", "ESR")
+_SPOT_KEYS = ("R", "X", "Z_mag", "L_eff", "C_eff", "Q", "D", "ESR")
 SUMMARY_NAME, LOT_CSV_NAME, LOT_JSON_NAME = "summary.csv", "lot.csv", "lot.json"
 DECISION_RULE = (
     "guarded acceptance (JCGM 106:2012, 8.3.2): pass when value +- k u lies inside the limits, "
@@ -410,13 +411,13 @@ def _spot_figures(spot: dict) -> dict:
             out[key] = _pair((val, spot.get(key + "_std")))
     if "ESR" not in out and "R" in out:
         out["ESR"] = out["R"]
-    if "Z_abs" not in out and "R" in out and "X" in out and None not in (out["R"][0], out["X"][0]):
+    if "Z_mag" not in out and "R" in out and "X" in out and None not in (out["R"][0], out["X"][0]):
         r, x = out["R"], out["X"]
         mag = math.hypot(r[0], x[0])
         std = None
         if r[1] is not None and x[1] is not None and mag > 0:
             std = math.hypot(r[0] * r[1], x[0] * x[1]) / mag
-        out["Z_abs"] = (mag, std)
+        out["Z_mag"] = (mag, std)
     return out
 
 
@@ -1054,7 +1055,8 @@ def _run_local(tasks, jobs, on_done):
         ctx = mp.get_context("spawn")
     size = _chunk_size(len(tasks), jobs)
     chunks = _chunks(tasks, size)
-    with cf.ProcessPoolExecutor(max_workers=jobs, mp_context=ctx) as pool:
+    pool = cf.ProcessPoolExecutor(max_workers=jobs, mp_context=ctx)
+    try:
         pending = {}
         it = iter(chunks)
         # A bounded number of chunks in flight: memory stays flat for a lot
@@ -1076,6 +1078,12 @@ def _run_local(tasks, jobs, on_done):
                 nxt = next(it, None)
                 if nxt is not None:
                     pending[pool.submit(_identify_chunk, nxt)] = nxt
+    except BaseException:
+        # Interrupted (Ctrl-C): drop the queued parts instead of finishing
+        # them; the parts already written stay, and a rerun resumes.
+        pool.shutdown(wait=False, cancel_futures=True)
+        raise
+    pool.shutdown(wait=True)
 
 
 def _run_dask(tasks, address, on_done):
@@ -1094,7 +1102,7 @@ def _run_dask(tasks, address, on_done):
         futures = {}
         for chunk in chunks:
             futures[client.submit(_identify_chunk, chunk, pure=False)] = chunk
-        for fut in as_completed(list(futures)):
+        for fut in as_completed(list(futures), loop=client.loop):
             chunk = futures.pop(fut)
             try:
                 outs = fut.result()
@@ -1106,6 +1114,25 @@ def _run_dask(tasks, address, on_done):
         return f"Dask scheduler {address} ({n} threads)"
     finally:
         client.close()
+
+
+def _run_tasks(todo, cluster, n_jobs, on_done, progress) -> str:
+    """Run the parts, calling `on_done` with each finished batch of outcomes;
+    return how the work was run, in words."""
+    try:
+        if not todo:
+            return "nothing to do"
+        if cluster:
+            return _run_dask(todo, cluster, on_done)
+        if n_jobs == 1 or len(todo) == 1:
+            for t in todo:
+                on_done([_identify_part(t)])
+            return "in-process"
+        n = min(n_jobs, len(todo))
+        _run_local(todo, n, on_done)
+        return f"{n} local processes"
+    finally:
+        progress.close()
 
 
 def run_batch(
@@ -1165,6 +1192,10 @@ def run_batch(
         When the inputs name nothing, or the Dask scheduler cannot be reached.
     """
     t0 = time.perf_counter()
+    n_jobs = jobs if jobs is not None else (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
+                                             else (os.cpu_count() or 1))
+    if n_jobs < 1:
+        raise ZfitInputError(f"--jobs {n_jobs}: give 1 or more")
     out = Path(out)
     items = expand_inputs(inputs, exclude=out)
     if model is None:
@@ -1206,25 +1237,10 @@ def run_batch(
                 progress.message(f"zfit: error: {o.error}")
         progress.update(len(outs), bad)
 
-    n_jobs = jobs if jobs is not None else (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
-                                             else (os.cpu_count() or 1))
-    if n_jobs < 1:
-        raise ZfitInputError(f"--jobs {n_jobs}: give 1 or more")
-    try:
-        if not todo:
-            workers = "nothing to do"
-        elif cluster:
-            workers = _run_dask(todo, cluster, on_done)
-        elif n_jobs == 1 or len(todo) == 1:
-            workers = "in-process"
-            for t in todo:
-                on_done([_identify_part(t)])
-        else:
-            n = min(n_jobs, len(todo))
-            _run_local(todo, n, on_done)
-            workers = f"{n} local processes"
-    finally:
-        progress.close()
+    # The workers route warnings to their parts (see `_install_route`); in
+    # this process that changes the warning filters, which are put back here.
+    with warnings.catch_warnings():
+        workers = _run_tasks(todo, cluster, n_jobs, on_done, progress)
 
     rows = tuple(part_row(outcomes[t.index], limits) for t in tasks)
     lot = lot_summary(rows, limits)

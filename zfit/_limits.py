@@ -79,7 +79,7 @@ _FAMILY = {"L": "inductor", "R_s": "inductor", "C_p": "inductor", "R_p": "induct
 
 #: Figures read at a named frequency (``at = ...``), with their units.
 #: ``ESR`` at a frequency is the real part of Z there (not the circuit's ESR).
-SPOT_UNITS = {"Q": "", "D": "", "ESR": "ohm", "R": "ohm", "X": "ohm", "L_eff": "H", "C_eff": "F", "Z_abs": "ohm"}
+SPOT_UNITS = {"Q": "", "D": "", "ESR": "ohm", "R": "ohm", "X": "ohm", "L_eff": "H", "C_eff": "F", "Z_mag": "ohm"}
 
 _LIMIT_KEYS = {"nominal", "tolerance_percent", "tolerance", "min", "max", "at", "guard_band_k"}
 _TOP_KEYS = {"title", "model", "guard_band_k", "limit"}
