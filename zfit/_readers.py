@@ -29,7 +29,10 @@ S_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-5)
 #: (residual of a compensated short).  Common practice, not a datasheet value.
 TABLE_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-4)
 
-TOUCHSTONE_EXTENSIONS = {".s1p": 1, ".s2p": 2, ".ts": None}
+#: Touchstone extensions and their port count (the letter names the
+#: parameter type in 1.x: S, Y, Z, G or H; ".ts" is for version 2.0).
+TOUCHSTONE_EXTENSIONS = {f".{p}{n}p": n for p in "syzgh" for n in (1, 2)}
+TOUCHSTONE_EXTENSIONS[".ts"] = None
 TABLE_EXTENSIONS = (".csv", ".tsv", ".txt", ".dat", ".prn", ".tab")
 
 _CONNECTION_HELP = (
@@ -54,7 +57,7 @@ def sweep_kind(path) -> str:
         return "touchstone"
     if ext in TABLE_EXTENSIONS:
         return "table"
-    if len(ext) >= 4 and ext[:2] == ".s" and ext[-1] == "p" and ext[2:-1].isdigit():
+    if len(ext) >= 4 and ext[1] in "syzgh" and ext[-1] == "p" and ext[2:-1].isdigit():
         raise ZfitInputError(
             f"{ext} holds {ext[2:-1]}-port data; a one-port part is measured as .s1p (reflection) or .s2p "
             "(shunt-thru or series-thru)",
@@ -143,6 +146,8 @@ def _check_is_touchstone(path: Path) -> None:
     from ._touchstone import looks_like_touchstone
 
     head = _head(path)
+    if "\x00" in head[:4096]:
+        raise ZfitInputError("is a binary file, not a Touchstone text file", path)
     if looks_like_touchstone(head):
         return
     lines = head.splitlines()
@@ -150,6 +155,8 @@ def _check_is_touchstone(path: Path) -> None:
         s = raw.partition("!")[0].strip()
         if not s:
             continue
+        if s[0] in "#[":
+            return  # an option line or a keyword: the parser says what is wrong with it
         if s[0] in "0123456789+-.":
             if "," in s or ";" in s:
                 raise ZfitInputError(

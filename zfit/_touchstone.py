@@ -239,8 +239,10 @@ def _read_v1(path: Path, body: list[str], n_ports: int) -> TouchstoneData:
     if first is None:
         raise ZfitInputError("no data lines (only comments and options)", path)
     r0 = _reference(opt.resistance, path, opt.line, n_ports)
-    if opt.param != "s":
-        return _read_skrf(path, body, n_ports, "1.x")
+    if opt.param in ("g", "h"):
+        raise ZfitInputError(
+            f"{opt.param.upper()} (hybrid) parameters are not read; export S, Y or Z parameters", path, opt.line
+        )
 
     idx = np.array([i for i, b in enumerate(body) if b and b[0] != "#"], dtype=int)
     data = [body[i] for i in idx]
@@ -269,18 +271,33 @@ def _read_v1(path: Path, body: list[str], n_ports: int) -> TouchstoneData:
         values, row_lines = _numbers_wrapped(path, data, idx, counts, per_row, n_ports)
     f = values[:, 0] * _UNITS[opt.unit]
     pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
-    s = pairs.reshape(-1, n_ports, n_ports)
+    m = pairs.reshape(-1, n_ports, n_ports)
     if n_ports == 2:
-        # 1.x two-port order is S11 S21 S12 S22: column-major.
-        s = s.transpose(0, 2, 1)
+        # 1.x two-port order is X11 X21 X12 X22: column-major.
+        m = m.transpose(0, 2, 1)
     _check_increasing(path, f, row_lines)
+    extra = ""
+    if opt.param != "s":
+        # 1.x Z and Y data are normalised to R (spec 1.1, "Option line"):
+        # z = Z / R and y = Y R.  The S matrix for reference R on each port is
+        # S = (z - 1)(z + 1)^-1 = (1 - y)(1 + y)^-1 (Pozar 2012, section 4.3).
+        eye = np.eye(n_ports)
+        num, den = (m - eye, m + eye) if opt.param == "z" else (eye - m, eye + m)
+        try:
+            # S den = num  <=>  den^T S^T = num^T.
+            s = np.linalg.solve(den.transpose(0, 2, 1), num.transpose(0, 2, 1)).transpose(0, 2, 1)
+        except np.linalg.LinAlgError:
+            raise ZfitInputError(f"{opt.param.upper()} matrix cannot be converted to S (singular)", path) from None
+        extra = "converted to S"
+    else:
+        s = m
     return TouchstoneData(
         f_hz=f,
         s=s,
         reference_ohm=r0,
         n_ports=n_ports,
         lines=row_lines,
-        data_format=_describe("1.x", opt.param, opt.fmt, opt.unit, r0),
+        data_format=_describe("1.x", opt.param, opt.fmt, opt.unit, r0, extra),
         notes=tuple(notes),
     )
 
@@ -290,7 +307,8 @@ def _bad_token(path: Path, data, idx):
     for j, b in enumerate(data):
         for tok in b.split():
             if not _is_number(tok):
-                raise ZfitInputError(f"{tok!r} is not a number", path, int(idx[j]) + 1)
+                hint = " (Touchstone separates numbers by spaces, not commas or semicolons)" if ("," in tok or ";" in tok) else ""
+                raise ZfitInputError(f"{tok!r} is not a number{hint}", path, int(idx[j]) + 1)
     raise ZfitInputError("data cannot be read as numbers", path)
 
 
@@ -348,9 +366,13 @@ def _scan_v2(path: Path, body: list[str]):
     keys = {}
     net_start = net_end = None
     opt = None
+    in_reference = False
     for i, b in enumerate(body):
         if not b:
             continue
+        if in_reference and b[0] not in "#[":
+            continue  # [Reference] values may continue on the following lines
+        in_reference = False
         if b.startswith("#") and opt is None:
             opt = _parse_option_line(b, path, i + 1)
             continue
@@ -358,6 +380,7 @@ def _scan_v2(path: Path, body: list[str]):
         if m:
             name = m.group(1).strip().lower()
             keys.setdefault(name, (i + 1, b[m.end():].strip()))
+            in_reference = name == "reference" and net_start is None
             if name == "network data":
                 net_start = i + 1
             elif net_start is not None and net_end is None:
@@ -428,12 +451,16 @@ def _read_v2(path: Path, body: list[str], version: str = "2.0") -> TouchstoneDat
     else:
         r0 = _reference(opt.resistance, path, opt.line, n_ports)
     ts = _skrf_touchstone(path)
-    extra = [f"{n_ports} ports"]
+    extra = [f"{n_ports} port" + ("s" if n_ports > 1 else "")]
     if matrix != "full":
         extra.append(f"{matrix} matrix")
     if n_ports == 2 and "two-port data order" in keys:
         extra.append("order " + keys["two-port data order"][1].split()[0])
     s = _skrf_s(ts, path, row_lines)
+    if matrix != "full" and n_ports > 1:
+        # scikit-rf 2.2 drops the off-diagonal terms of a Lower/Upper two-port
+        # matrix unless "[Two-Port Data Order] 12_21" is given: fill it here.
+        s = _triangle_matrix(values, opt, matrix, n_ports, r0)
     return TouchstoneData(
         f_hz=np.asarray(ts.f, dtype=float),
         s=s,
@@ -443,6 +470,21 @@ def _read_v2(path: Path, body: list[str], version: str = "2.0") -> TouchstoneDat
         data_format=_describe(version, opt.param, opt.fmt, opt.unit, r0, ", ".join(extra)),
         notes=(),
     )
+
+
+def _triangle_matrix(values, opt, matrix, n_ports, r0) -> np.ndarray:
+    """The S matrix of rows holding one triangle of a symmetric matrix (2.0 spec)."""
+    pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
+    rows, cols = np.tril_indices(n_ports) if matrix == "lower" else np.triu_indices(n_ports)
+    m = np.zeros((values.shape[0], n_ports, n_ports), dtype=complex)
+    m[:, rows, cols] = pairs
+    m[:, cols, rows] = pairs
+    if opt.param != "s":
+        import skrf.network as network
+
+        z0 = np.full((values.shape[0], n_ports), r0, dtype=complex)
+        m = getattr(network, f"{opt.param}2s")(m, z0)
+    return m
 
 
 def _skrf_touchstone(path: Path):
@@ -464,30 +506,3 @@ def _skrf_s(ts, path: Path, row_lines) -> np.ndarray:
             f"scikit-rf read {s.shape[0]} frequencies where the file has {len(row_lines)} data rows", path
         )
     return s
-
-
-def _read_skrf(path: Path, body: list[str], n_ports: int, version: str) -> TouchstoneData:
-    """A 1.x file of Y, Z, G or H parameters: scikit-rf converts them to S."""
-    opt = None
-    for i, b in enumerate(body):
-        if b.startswith("#"):
-            opt = _parse_option_line(b, path, i + 1)
-            break
-    idx = np.array([i for i, b in enumerate(body) if b and b[0] != "#"], dtype=int)
-    data = [body[i] for i in idx]
-    per_row = 1 + 2 * n_ports * n_ports
-    counts = np.fromiter((len(b.split()) for b in data), dtype=int, count=len(data))
-    values, row_lines = _numbers_wrapped(path, data, idx, counts, per_row, n_ports)
-    _check_increasing(path, values[:, 0] * _UNITS[opt.unit], row_lines)
-    r0 = _reference(opt.resistance, path, opt.line, n_ports)
-    ts = _skrf_touchstone(path)
-    s = _skrf_s(ts, path, row_lines)
-    return TouchstoneData(
-        f_hz=np.asarray(ts.f, dtype=float),
-        s=s,
-        reference_ohm=r0,
-        n_ports=n_ports,
-        lines=row_lines,
-        data_format=_describe(version, opt.param, opt.fmt, opt.unit, r0) + " (converted to S by scikit-rf)",
-        notes=(),
-    )
