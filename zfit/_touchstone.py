@@ -207,7 +207,7 @@ def read_touchstone(path, n_ports: int | None = None) -> TouchstoneData:
     text = _text(path)
     lines = text.splitlines()
     body = [ln.partition("!")[0].strip() for ln in lines]
-    version2 = any(b[:9].lower() == "[version]" for b in body[:400] if b)
+    version2 = "[version]" in text[:65536].lower() and any(b[:9].lower() == "[version]" for b in body[:400] if b)
     if version2:
         return _read_v2(path, body)
     if n_ports is None:
@@ -249,8 +249,11 @@ def _read_v1(path: Path, body: list[str], n_ports: int) -> TouchstoneData:
     for j, b in enumerate(data):
         if b[0] == "[":
             raise ZfitInputError("keyword line in a Touchstone 1.x file (no [Version] 2.0 line)", path, int(idx[j]) + 1)
-    counts = np.fromiter((len(b.split()) for b in data), dtype=int, count=len(data))
     per_row = 1 + 2 * n_ports * n_ports
+    values = _plain_rows(data, per_row)
+    if values is not None:
+        return _v1_result(path, opt, values, idx + 1, n_ports, r0, notes)
+    counts = np.fromiter((len(b.split()) for b in data), dtype=int, count=len(data))
     # Touchstone 1.x two-port files may end with a noise-parameter block: rows of
     # five numbers whose first frequency is not above the last network frequency.
     if n_ports == 2:
@@ -269,6 +272,19 @@ def _read_v1(path: Path, body: list[str], n_ports: int) -> TouchstoneData:
         row_lines = idx + 1
     else:
         values, row_lines = _numbers_wrapped(path, data, idx, counts, per_row, n_ports)
+    return _v1_result(path, opt, values, row_lines, n_ports, r0, notes)
+
+
+def _plain_rows(data, per_row):
+    """The common case, one row per line: parsed by numpy's C reader, or None."""
+    try:
+        values = np.loadtxt(data, ndmin=2, dtype=float, comments=None)
+    except ValueError:
+        return None
+    return values if values.shape[1] == per_row else None
+
+
+def _v1_result(path, opt, values, row_lines, n_ports, r0, notes) -> TouchstoneData:
     f = values[:, 0] * _UNITS[opt.unit]
     pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
     m = pairs.reshape(-1, n_ports, n_ports)
