@@ -57,6 +57,7 @@ __all__ = [
     "circuit_for",
     "circuit_impedance",
     "circuits_of",
+    "sharp_resonance",
 ]
 
 #: The families of parts zfit has equivalent circuits for.
@@ -627,6 +628,34 @@ class CapacitorCircuit(Circuit):
         if self.leakage:
             p.append(1.0 / (leak_pole * C) if leak_pole and leak_pole > 0 else 1e4 / (_TWO_PI * f[0] * C))
         return np.array(p)
+
+
+def sharp_resonance(family: str, z_ohm, min_points: int = 6) -> bool:
+    """Return whether the data show a resonance narrower than a few grid points.
+
+    The half-power width of the |Z| peak (inductor, parallel resonance) or
+    dip (capacitor, series resonance) spans fewer than `min_points` points:
+    the least-squares landscape is then multimodal in the resonant
+    frequency and the refinement needs several starts.
+
+    Parameters
+    ----------
+    family : {'inductor', 'capacitor'}
+        The kind of part.
+    z_ohm : array_like
+        The measured impedance.
+    min_points : int
+        Width (in points) below which the resonance counts as sharp.
+    """
+    mag = np.abs(np.asarray(z_ohm, complex))
+    k = int(np.argmax(mag) if family == "inductor" else np.argmin(mag))
+    if not 0 < k < mag.size - 1:
+        return False
+    if family == "inductor":
+        inside = mag >= mag[k] / math.sqrt(2.0)
+    else:
+        inside = mag <= mag[k] * math.sqrt(2.0)
+    return int(inside.sum()) < min_points
 
 
 def circuits_of(family: str) -> tuple[Circuit, Circuit]:

@@ -372,14 +372,21 @@ def _readout(f, z, cov):
     mag = math.hypot(r, x)
 
     def prop(grad):
+        # First order; None where the figure is singular (D at X = 0, say).
         g = np.asarray(grad, float)
-        return float(math.sqrt(max(g @ cov @ g, 0.0)))
+        if not np.all(np.isfinite(g)):
+            return None
+        with np.errstate(all="ignore"):
+            v = float(g @ cov @ g)
+        return math.sqrt(max(v, 0.0)) if math.isfinite(v) else None
 
-    ax = abs(x) if x != 0 else 1e-300
-    sx = math.copysign(1.0, x) if x != 0 else 1.0
-    ar = r if r != 0 else 1e-300
-    q = ax / ar
-    d = ar / ax
+    ax = abs(x)
+    sx = math.copysign(1.0, x)
+    with np.errstate(all="ignore"):
+        q = float(np.divide(ax, r)) if r != 0 else math.inf
+        d = float(np.divide(r, ax)) if ax != 0 else math.inf
+    ar = r if r != 0 else math.nan
+    axs = ax if ax != 0 else math.nan
     out = dict(
         R=Estimate(r, prop([1, 0]), "ohm"),
         X=Estimate(x, prop([0, 1]), "ohm"),
@@ -388,7 +395,7 @@ def _readout(f, z, cov):
         L_eff=Estimate(x / w, prop([0, 1 / w]), "H"),
         C_eff=Estimate(-1.0 / (w * x) if x != 0 else math.inf, prop([0, 1.0 / (w * x * x)]) if x != 0 else None, "F"),
         Q=Estimate(q, prop([-q / ar, sx / ar]), ""),
-        D=Estimate(d, prop([1 / ax, -sx * d / ax]), ""),
+        D=Estimate(d, prop([1 / axs, -sx * d / axs]), ""),
     )
     return out
 

@@ -525,29 +525,38 @@ def _n_poles(rm) -> int:
     return int(len(rm.poles))
 
 
-def _fit_family(family, obs, rational, prior, margin):
-    """Refine the base circuit of a family and the one with its optional element."""
-    from ._circuits import circuits_of
+def _fit_base(family, obs, rational, prior):
+    """Refine the base circuit of a family (several starts for a sharp resonance)."""
+    from ._circuits import circuits_of, sharp_resonance
     from ._refine import refine
 
-    base, full = circuits_of(family)
+    base, _ = circuits_of(family)
+    starts = base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational)
+    n_best = 3 if sharp_resonance(family, obs.z_ohm) else 1
+    return refine(base, obs, starts, prior=prior, n_best=n_best)
+
+
+def _fit_optional(rb, obs, rational, prior):
+    """Refine the family's circuit with its optional element, starting from the base fit."""
+    from ._circuits import circuits_of, sharp_resonance
+    from ._refine import refine
+
+    family = rb.circuit.family
+    _, full = circuits_of(family)
     f, z, sig = obs.f_hz, obs.z_ohm, obs.sigma_ohm
-    starts = base.starts(f, z, sig, rational)
-    n_best = 3 if len(starts) > 2 else len(starts)
-    rb = refine(base, obs, starts, prior=prior, n_best=n_best)
-    # The optional element from the base fit (small, middling, large) and from the data.
-    zmax = float(np.max(np.abs(z)))
+    # The optional element small, middling and large against the part's impedance.
     if family == "inductor":
+        zmax = float(np.max(np.abs(z)))
         extra = [zmax * 100.0, zmax * 3.0, zmax]
     else:
         c = rb.values[0]
         extra = [x / (2 * math.pi * f[0] * c) for x in (1e4, 1e2, 10.0)]
-    fstarts = [np.append(rb.values, e) for e in extra] + full.starts(f, z, sig, rational)[:2]
+    starts = [np.append(rb.values, e) for e in extra] + full.starts(f, z, sig, rational)[:2]
+    n_best = 3 if sharp_resonance(family, z) else 2
     try:
-        rf = refine(full, obs, fstarts, prior=prior, n_best=3)
+        return refine(full, obs, starts, prior=prior, n_best=n_best)
     except FitError:
-        rf = None
-    return rb, rf
+        return None
 
 
 def _summary(ref, rows):
@@ -704,24 +713,25 @@ def identify(
     for fam in families:
         prior = None if rdc is None else Prior(_PRIOR_KEY[fam], rdc, rdc_std)
         try:
-            fitted[fam] = _fit_family(fam, obs, rational, prior, margin)
+            fitted[fam] = _fit_base(fam, obs, rational, prior)
         except FitError as exc:
             notes.append(f"{fam} circuit could not be fitted: {exc}")
     if not fitted:
         if rational is None:
             raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
-        return identify(sweep, "rational", at, n_poles=n_poles)
-    cands = []
-    for fam, (rb, rf) in fitted.items():
-        cands.append((_summary(rb, rows_full), rb))
-        if rf is not None:
-            cands.append((_summary(rf, rows_full), rf))
-    family = min(fitted, key=lambda fam: _summary(fitted[fam][0], rows_full))
-    rb, rf = fitted[family]
+        return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
+    # The family by the base circuits (same number of parameters: the lower chi-square),
+    # then the optional element of that family only if it wins by the margin.
+    family = min(fitted, key=lambda fam: fitted[fam].chi2)
+    prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
+    rb = fitted[family]
+    rf = _fit_optional(rb, obs, rational, prior)
+    cands = [(_summary(r, rows_full), r) for r in fitted.values()]
+    if rf is not None:
+        cands.append((_summary(rf, rows_full), rf))
     chosen = rb
     if rf is not None and _summary(rf, rows_full) < _summary(rb, rows_full) - margin:
         chosen = rf
-    prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
 
     # 4. The band where the circuit holds; refit over it when it is not the whole band.
     def residual_energy(ref):
@@ -787,15 +797,6 @@ def identify(
             f"{chosen.prior_pull:+.1f} standard uncertainties from it (skin effect or a different part?)"
         )
     srf = srf_of_circuit(chosen, band)
-    if srf.where == "in-band" and rational is not None:
-        rs = srf_of_rational(rational, band)
-        if rs.where == "in-band" and rs.value_hz and rs.std_hz and srf.std_hz:
-            diff = abs(rs.value_hz - srf.value_hz) / math.hypot(rs.std_hz, srf.std_hz)
-            if diff > 5 and abs(rs.value_hz / srf.value_hz - 1) > 1e-3:
-                notes.append(
-                    f"the circuit's SRF ({srf.value_hz:.6g} Hz) and the measured zero of X "
-                    f"({rs.value_hz:.6g} Hz) differ by {diff:.1f} combined standard uncertainties"
-                )
     spots = tuple(spot_readout(x, band, rational=rational, refinement=chosen) for x in at)
     for s in spots:
         if not s.in_band:

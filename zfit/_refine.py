@@ -44,6 +44,10 @@ _SQRT2 = math.sqrt(2.0)
 # wide enough for any guess, narrow enough that an unresolved element
 # cannot run off to 1e-300.
 _LOG_SPAN = 25.0
+# Trust-region reflective with the Jacobian's own scaling.  Tolerances of
+# 1e-10 on the cost are far below any change of statistical meaning.
+_DEBUG = False
+_METHOD = dict(method="trf", x_scale="jac", xtol=1e-10, ftol=1e-10, gtol=1e-10)
 
 
 @dataclass(frozen=True)
@@ -379,14 +383,14 @@ def refine(
     for _, _, theta0 in ranked[: max(1, n_best)]:
         try:
             sol = least_squares(
-                _rows, theta0, jac=_jac, method="trf", x_scale="jac",
-                bounds=(theta0 - _LOG_SPAN, theta0 + _LOG_SPAN),
-                args=(circuit, obs, prior_index, prior),
-                max_nfev=max_nfev, xtol=1e-12, ftol=1e-12, gtol=1e-12,
+                _rows, theta0, jac=_jac, args=(circuit, obs, prior_index, prior), max_nfev=max_nfev,
+                bounds=(theta0 - _LOG_SPAN, theta0 + _LOG_SPAN), **_METHOD,
             )
         except (ValueError, FloatingPointError, np.linalg.LinAlgError):
             continue
         nfev += sol.nfev
+        if _DEBUG:
+            print(circuit.topology, sol.nfev, sol.njev, sol.cost, sol.status)
         if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
             best = sol
     if best is None:
