@@ -172,6 +172,9 @@ class RationalModel:
         residual; empty when the count was given.
     reference_omega : float
         The angular frequency (rad/s) by which s was scaled in the solver.
+    reweight_passes : int
+        How many times the fit was repeated with sigma re-evaluated at the
+        model (`vector_fit`'s `sigma_update`); 0 when not.
     """
 
     poles: np.ndarray
@@ -198,6 +201,7 @@ class RationalModel:
     converged: bool = True
     pole_count_trials: tuple = ()
     reference_omega: float = 1.0
+    reweight_passes: int = 0
 
     def __post_init__(self):
         for name in ("poles", "residues", "coefficients", "covariance", "full_covariance"):
@@ -588,62 +592,106 @@ def _join_poles(preal, pcplx):
     return out
 
 
-def _relocate(s, hw, w, preal, pcplx, extras_w, n_extra):
-    """One relaxed pole relocation (Gustavsen 2006).
+def _col_norms(A):
+    n = np.sqrt(np.einsum("ij,ij->j", A, A))
+    n[n == 0] = 1.0
+    return n
 
-    Unknowns: the fit part (pole basis, extras) and sigma(s) = sum c~ phi + d~.
-    The fit block is eliminated by a QR factorisation, leaving the small
-    sigma block R22 (as in the fast VF of Deschrijver et al. 2008), to which
-    the relaxation row Re sum_k sigma(s_k) = N is appended.
-    """
-    n = s.size
-    phi = _pole_basis(s, preal, pcplx)
-    npole = phi.shape[1]
-    nfit = npole + n_extra
-    A = np.empty((n, nfit + npole + 1), complex)
-    A[:, :npole] = phi * w[:, None]
-    A[:, npole:nfit] = extras_w
-    A[:, nfit : nfit + npole] = -hw[:, None] * phi
-    A[:, -1] = -hw
-    Ar = _stack(A)
-    norms = np.linalg.norm(Ar, axis=0)
-    norms[norms == 0] = 1.0
-    R = np.linalg.qr(Ar / norms, mode="r")
-    R22 = R[nfit:, nfit:] * norms[None, nfit:]
-    # Relaxation row, scaled to the size of the data rows (as in Gustavsen's
-    # published code: norm of the weighted data over the point count).
-    scale = np.linalg.norm(hw) / n
-    crow = np.concatenate([phi.real.sum(axis=0), [float(n)]]) * scale
-    M = np.vstack([R22, crow[None, :]])
-    rhs = np.zeros(M.shape[0])
-    rhs[-1] = n * scale
-    cn = np.linalg.norm(M, axis=0)
-    cn[cn == 0] = 1.0
-    x = np.linalg.lstsq(M / cn, rhs, rcond=None)[0] / cn
-    dt = x[-1]
-    if not (1e-8 < abs(dt) < 1e8):
-        # sigma's constant collapsed: fall back to the classic form d~ = 1.
-        dt = 1.0 if dt >= 0 else -1.0
-        cn2 = np.linalg.norm(R22[:, :-1], axis=0)
-        cn2[cn2 == 0] = 1.0
-        c = np.linalg.lstsq(R22[:, :-1] / cn2, -R22[:, -1] * dt, rcond=None)[0] / cn2
-        x = np.concatenate([c, [dt]])
-    res = math.sqrt(float(np.sum((R22 @ x) ** 2)) / n)
-    c = x[:-1]
-    # Zeros of sigma: eig(A - b c^T / d~) in the real block form.
-    nr = preal.size
-    Am = np.zeros((npole, npole))
-    bv = np.zeros(npole)
-    Am[np.arange(nr), np.arange(nr)] = preal
-    bv[:nr] = 1.0
-    for k, p in enumerate(pcplx):
-        i = nr + 2 * k
-        Am[i, i] = Am[i + 1, i + 1] = p.real
-        Am[i, i + 1] = p.imag
-        Am[i + 1, i] = -p.imag
-        bv[i] = 2.0
-    zeros = np.linalg.eigvals(Am - np.outer(bv, c) / dt)
-    return zeros, res, float(dt)
+
+def _r_factor(A):
+    """Upper-triangular R of A = QR (Householder, LAPACK geqrf)."""
+    qr, _, _, info = _geqrf(A)
+    m = A.shape[1]
+    return np.triu(qr[:m, :m])
+
+
+def _geqrf(A):
+    from scipy.linalg import lapack
+
+    return lapack.dgeqrf(A)
+
+
+class _Relocator:
+    """The data-side pieces of the relocation problem that stay fixed over
+    the iterations (real-stacked weighted data and optional-term columns)."""
+
+    def __init__(self, s, h, w, flags):
+        self.s = s
+        self.n = s.size
+        hw = h * w
+        self.hw = hw
+        self.hw_re, self.hw_im = hw.real[:, None], hw.imag[:, None]
+        ex = _extra_columns(s, *flags) * w[:, None]
+        self.extras = np.concatenate([ex.real, ex.imag], axis=0)
+        self.n_extra = ex.shape[1]
+        self.w = w[:, None]
+        # Relaxation row scale: size of the weighted data per point, as in
+        # Gustavsen's published code.
+        self.scale = float(np.linalg.norm(hw)) / self.n
+
+    def __call__(self, preal, pcplx):
+        """One relaxed pole relocation (Gustavsen 2006) -> (zeros of sigma,
+        relocation residual, sigma's constant).
+
+        Unknowns: the fit part (pole basis, optional terms) and
+        sigma(s) = sum c~ phi + d~.  The fit block is eliminated by a QR
+        factorisation, leaving the small sigma block R22 (as in the fast VF of
+        Deschrijver et al. 2008), to which the relaxation row
+        Re sum_k sigma(s_k) = N is appended.
+        """
+        n = self.n
+        phi = _pole_basis(self.s, preal, pcplx)
+        npole = phi.shape[1]
+        nfit = npole + self.n_extra
+        m = nfit + npole + 1
+        pr, pi = phi.real, phi.imag
+        A = np.empty((2 * n, m))
+        A[:n, :npole] = pr * self.w
+        A[n:, :npole] = pi * self.w
+        A[:, npole:nfit] = self.extras
+        # -(h w) phi, real and imaginary parts
+        A[:n, nfit : nfit + npole] = self.hw_im * pi - self.hw_re * pr
+        A[n:, nfit : nfit + npole] = -(self.hw_re * pi + self.hw_im * pr)
+        A[:n, -1] = -self.hw_re[:, 0]
+        A[n:, -1] = -self.hw_im[:, 0]
+        norms = _col_norms(A)
+        A /= norms
+        R = _r_factor(A)
+        R22 = R[nfit:, nfit:] * norms[None, nfit:]
+        crow = np.empty(npole + 1)
+        crow[:npole] = pr.sum(axis=0)
+        crow[npole] = n
+        crow *= self.scale
+        M = np.vstack([R22, crow[None, :]])
+        rhs = np.zeros(M.shape[0])
+        rhs[-1] = n * self.scale
+        cn = _col_norms(M)
+        x = np.linalg.lstsq(M / cn, rhs, rcond=None)[0] / cn
+        dt = x[-1]
+        if not (1e-8 < abs(dt) < 1e8):
+            # sigma's constant collapsed: fall back to the classic form d~ = +-1.
+            dt = 1.0 if dt >= 0 else -1.0
+            cn2 = _col_norms(R22[:, :-1])
+            c = np.linalg.lstsq(R22[:, :-1] / cn2, -R22[:, -1] * dt, rcond=None)[0] / cn2
+            x = np.concatenate([c, [dt]])
+        r = R22 @ x
+        res = math.sqrt(float(r @ r) / n)
+        c = x[:-1]
+        # Zeros of sigma: eig(A - b c^T / d~) in the real block form.
+        nr = preal.size
+        Am = np.zeros((npole, npole))
+        bv = np.zeros(npole)
+        idx = np.arange(nr)
+        Am[idx, idx] = preal
+        bv[:nr] = 1.0
+        if pcplx.size:
+            i = nr + 2 * np.arange(pcplx.size)
+            Am[i, i] = Am[i + 1, i + 1] = pcplx.real
+            Am[i, i + 1] = pcplx.imag
+            Am[i + 1, i] = -pcplx.imag
+            bv[i] = 2.0
+        zeros = np.linalg.eigvals(Am - np.outer(bv, c) / dt)
+        return zeros, res, float(dt)
 
 
 def _pole_change(old, new):
@@ -675,31 +723,64 @@ def _too_few_message(n_points, n_poles, n_extra, terms):
     )
 
 
-def _fit_fixed(s, h, w, preal, pcplx, flags, w0, absolute_sigma):
-    """Linear residue identification with the poles fixed; covariance."""
-    constant, proportional, origin_pole = flags
-    extras = _extra_columns(s, constant, proportional, origin_pole)
+def _pinv_gram(As):
+    """(As^T As)^-1 by SVD, with directions below round-off dropped."""
+    _, sv, Vt = np.linalg.svd(As, full_matrices=False)
+    keep = sv > sv[0] * 1e-14
+    inv = np.where(keep, 1.0 / np.where(keep, sv, 1.0), 0.0)
+    return (Vt.T * inv) @ (Vt * inv[:, None]), Vt, inv
+
+
+def _gram_inverse(J):
+    """(J^T J)^-1 from the R factor of the column-scaled J (SVD if rank-deficient)."""
+    norms = _col_norms(J)
+    Js = J / norms
+    R = _r_factor(Js)
+    d = np.abs(np.diag(R))
+    if d.size and d.min() > 1e-10 * d.max():
+        Ri = np.linalg.inv(R)
+        G = Ri @ Ri.T
+    else:
+        G = _pinv_gram(Js)[0]
+    return G / np.outer(norms, norms)
+
+
+def _fit_fixed(s, h, w, preal, pcplx, flags):
+    """Linear residue identification with the poles fixed: weighted least
+    squares by QR of [A | b]; returns the complex design matrix, the
+    coefficients, chi-square and (A^T W A)^-1."""
+    extras = _extra_columns(s, *flags)
     phi = _pole_basis(s, preal, pcplx)
     A = np.concatenate([phi, extras], axis=1)
+    n, m = A.shape
     # Complex-circular sigma: each of Re and Im carries sigma/sqrt(2).
-    rw = math.sqrt(2.0) * w
-    Ar = _stack(A * rw[:, None])
-    br = _stack((h * rw)[:, None])[:, 0]
-    norms = np.linalg.norm(Ar, axis=0)
-    norms[norms == 0] = 1.0
-    U, sv, Vt = np.linalg.svd(Ar / norms, full_matrices=False)
-    keep = sv > sv[0] * 1e-14 if sv.size else sv.astype(bool)
-    inv = np.where(keep, 1.0 / np.where(keep, sv, 1.0), 0.0)
-    xs = Vt.T @ (inv * (U.T @ br))
-    x = xs / norms
-    resid = (Ar / norms) @ xs - br
-    chi2 = float(resid @ resid)
-    return A, x, chi2, (Vt.T * inv) @ (Vt * inv[:, None]) / np.outer(norms, norms)
+    rw = (math.sqrt(2.0) * w)[:, None]
+    Ab = np.empty((2 * n, m + 1))
+    Ab[:n, :m] = A.real * rw
+    Ab[n:, :m] = A.imag * rw
+    Ab[:n, m] = h.real * rw[:, 0]
+    Ab[n:, m] = h.imag * rw[:, 0]
+    norms = _col_norms(Ab[:, :m])
+    Ab[:, :m] /= norms
+    R = _r_factor(Ab)
+    R11 = R[:m, :m]
+    d = np.abs(np.diag(R11))
+    if d.size and d.min() > 1e-10 * d.max():
+        Ri = np.linalg.inv(R11)
+        xs = Ri @ R[:m, m]
+        chi2 = float(R[m, m] ** 2)
+        G = Ri @ Ri.T
+    else:
+        G, Vt, inv = _pinv_gram(Ab[:, :m])
+        xs = G @ (Ab[:, :m].T @ Ab[:, m])
+        r = Ab[:, :m] @ xs - Ab[:, m]
+        chi2 = float(r @ r)
+    return A, xs / norms, chi2, G / np.outer(norms, norms)
 
 
 def _model_from(s, h, w, preal, pcplx, flags, w0, absolute_sigma, extra):
     """Final linear fit -> RationalModel in SI units."""
-    A, x, chi2, cov_n = _fit_fixed(s, h, w, preal, pcplx, flags, w0, absolute_sigma)
+    A, x, chi2, cov_n = _fit_fixed(s, h, w, preal, pcplx, flags)
     constant, proportional, origin_pole = flags
     nr, nc = preal.size, pcplx.size
     npole = nr + 2 * nc
@@ -731,15 +812,8 @@ def _model_from(s, h, w, preal, pcplx, flags, w0, absolute_sigma, extra):
     factor = 1.0 if absolute_sigma or not np.isfinite(chi2_red) else chi2_red
     # Full covariance (coefficients + poles) from the Jacobian of the nonlinear model.
     Jp = _pole_jacobian(s * w0, preal_si, pcplx_si, rreal, rc)
-    Jfull = np.concatenate([A / conv[None, :], Jp], axis=1)
-    rw = math.sqrt(2.0) * w
-    Jr = _stack(Jfull * rw[:, None])
-    jn = np.linalg.norm(Jr, axis=0)
-    jn[jn == 0] = 1.0
-    _, sv, Vt = np.linalg.svd(Jr / jn, full_matrices=False)
-    keep = sv > sv[0] * 1e-14
-    inv = np.where(keep, 1.0 / np.where(keep, sv, 1.0), 0.0)
-    full = (Vt.T * inv) @ (Vt * inv[:, None]) / np.outer(jn, jn)
+    Jfull = np.concatenate([A / conv[None, :], Jp], axis=1) * (math.sqrt(2.0) * w)[:, None]
+    full = _gram_inverse(_stack(Jfull))
     return RationalModel(
         poles=poles,
         residues=residues,
@@ -763,6 +837,21 @@ def _model_from(s, h, w, preal, pcplx, flags, w0, absolute_sigma, extra):
     )
 
 
+#: Noisy data that the model cannot quite describe make the poles creep by
+#: ever smaller steps instead of settling to round-off.  A fit counts as
+#: converged also when, twice in a row, no pole moved by more than
+#: _SETTLED_POLES (relative) and the relocation residual changed by less than
+#: _SETTLED_RESIDUAL (relative): far below any pole's statistical uncertainty.
+#: On exact data the residual keeps falling by orders of magnitude until
+#: round-off, so there `pole_tol` decides.
+_SETTLED_POLES = 1e-5
+
+#: An RMS normalised residual this small means the data are rational to
+#: round-off (synthetic data): more poles cannot improve on it.
+_EXACT = 1e-10
+_SETTLED_RESIDUAL = 1e-5
+
+
 def _fit_count(s, h, w, flags, w0, fband, n_poles, n_real, init, n_iter, pole_tol, absolute_sigma, extra,
                stall_tol=0.0, history=()):
     """Vector fitting with a given number of poles.
@@ -776,27 +865,27 @@ def _fit_count(s, h, w, flags, w0, fband, n_poles, n_real, init, n_iter, pole_to
         preal, pcplx = _split_poles(np.asarray(init, complex) / w0)
     else:
         preal, pcplx = _split_poles(starting_poles(fband[0], fband[1], n_poles, n_real) / w0)
-    n_extra = sum(flags)
-    extras_w = _extra_columns(s, *flags) * w[:, None]
-    hw = h * w
+    relocate = _Relocator(s, h, w, flags)
     history = list(history)
     converged = preal.size + pcplx.size == 0
     old = _join_poles(preal, pcplx)
-    stalls = 0
+    stalls = settles = 0
     start = len(history)
     for it in range(start + 1, start + n_iter + 1) if not converged else ():
-        zeros, res, dt = _relocate(s, hw, w, preal, pcplx, extras_w, n_extra)
+        zeros, res, dt = relocate(preal, pcplx)
         preal, pcplx = _split_poles(zeros)
         # A pole exactly at the origin would duplicate the 1/s column.
         preal = np.where(preal == 0.0, -1e-9, preal)
         new = _join_poles(preal, pcplx)
         change = _pole_change(old, new)
-        if stall_tol and history:
+        if history:
             prev = history[-1].rms_normalized_residual
-            stalls = stalls + 1 if abs(res - prev) <= stall_tol * max(prev, 1e-300) else 0
+            rel = abs(res - prev) / max(prev, 1e-300)
+            stalls = stalls + 1 if stall_tol and rel <= stall_tol else 0
+            settles = settles + 1 if (rel <= _SETTLED_RESIDUAL and change <= _SETTLED_POLES) else 0
         history.append(VFIteration(it, new * w0, change, res, dt))
         old = new
-        if change < pole_tol:
+        if change < pole_tol or settles >= 2:
             converged = True
             break
         if stalls >= 2:
@@ -824,6 +913,8 @@ def vector_fit(
     noise_tol: float = 0.1,
     min_improvement: float = 0.05,
     absolute_sigma: bool = False,
+    sigma_update=None,
+    reweight: int = 2,
 ) -> RationalModel:
     """Return a rational model of a sampled one-port response by relaxed vector fitting.
 
@@ -859,7 +950,9 @@ def vector_fit(
         log-spaced default; fixes the pole count.
     pole_tol : float
         The fit has converged when no pole moves by more than this fraction
-        of its magnitude in one relocation.
+        of its magnitude in one relocation (or, on noisy data, when twice in
+        a row no pole moved by more than 1e-5 of its magnitude and the
+        relocation residual changed by less than 1e-5 of itself).
     noise_tol : float
         Automatic count: stop growing once the RMS normalised residual is at
         most ``1 + max(noise_tol, 3 / sqrt(4 N))`` (the noise level, with room
@@ -870,6 +963,18 @@ def vector_fit(
     absolute_sigma : bool
         Use `sigma` as the absolute uncertainty for the covariance; by default
         the covariance is scaled by the reduced chi-square.
+    sigma_update : callable, optional
+        ``sigma_update(f_hz, h_model) -> sigma``: the uncertainty the
+        measurement would have at the model's value.  When given, the fit is
+        repeated `reweight` times with sigma re-evaluated at the fitted model
+        instead of at the noisy data (iteratively reweighted least squares;
+        the first repetition re-chooses an automatic pole count).  Use it when
+        sigma is a steep function of the value, as for an impedance derived
+        from S11 or S21 where the connection resolves it poorly: sigma
+        evaluated at the noisy point is then itself noisy and biased, and the
+        residual cannot reach the noise even for the true model.
+    reweight : int
+        Number of repetitions with `sigma_update`.
 
     Returns
     -------
@@ -908,7 +1013,8 @@ def vector_fit(
     *Automatic pole count.* Counts 0 (only with an optional term), 1, 2, ...
     up to `max_poles` are fitted from fresh starting poles.  The search stops
     at the first count whose RMS normalised residual reaches the noise (see
-    `noise_tol`); otherwise, when two successive counts each fail to lower the
+    `noise_tol`; with relative weights, at a residual of 1e-10, exact data);
+    otherwise, when two successive counts each fail to lower the
     best residual by `min_improvement`, it returns the smallest count within
     `min_improvement` of the best residual found.  Counts whose unknowns would
     not leave at least one degree of freedom are not tried; if not even the
@@ -970,10 +1076,44 @@ def vector_fit(
     terms = ", ".join(t for t, on in zip(("a constant", "a proportional term", "an origin pole"), flags) if on)
     w0 = TWO_PI * math.sqrt(f[0] * f[-1])
     s = 1j * TWO_PI * f / w0
-    w = 1.0 / sig
     n = f.size
     band = (float(f[0]), float(f[-1]))
+    if 2 * n <= _unknowns(0 if n_extra else 1, n_extra):
+        raise FitError(_too_few_message(n, 0 if n_extra else 1, n_extra, terms))
     extra = dict(f_min_hz=band[0], f_max_hz=band[1], weighting=weighting)
+    if n_poles is not None:
+        if int(n_poles) != n_poles or n_poles < 0:
+            raise ZfitInputError(f"the pole count must be a non-negative integer, not {n_poles!r}")
+        if n_poles == 0 and n_extra == 0:
+            raise FitError("a model with no poles and no constant, proportional or origin term has nothing to fit")
+    init = None if initial_poles is None else np.asarray(initial_poles, dtype=complex).ravel()
+    count = None if n_poles is None else int(n_poles)
+    model = _solve(
+        s, hh, 1.0 / sig, flags, w0, band, count, n_real_poles, init, n_iter, pole_tol, absolute_sigma,
+        extra, noise_tol, min_improvement, max_poles, weighting, terms,
+    )
+    if sigma_update is None:
+        return model
+    trials = model.pole_count_trials
+    for k in range(int(reweight)):
+        sig = np.broadcast_to(np.asarray(sigma_update(f, model.impedance(f)), dtype=float), f.shape)
+        if not np.all(np.isfinite(sig)) or np.any(sig <= 0):
+            raise ZfitInputError("sigma_update returned uncertainties that are not positive finite numbers")
+        again = k == 0 and count is None and init is None
+        model = _solve(
+            s, hh, 1.0 / sig, flags, w0, band, None if again else model.n_poles, None,
+            None if again else model.poles, n_iter, pole_tol, absolute_sigma,
+            dict(extra, reweight_passes=k + 1), noise_tol, min_improvement, max_poles, weighting, terms,
+        )
+        trials = trials + model.pole_count_trials
+    return _replace(model, pole_count_trials=trials)
+
+
+def _solve(s, hh, w, flags, w0, band, n_poles, n_real_poles, init, n_iter, pole_tol, absolute_sigma,
+           extra, noise_tol, min_improvement, max_poles, weighting, terms):
+    """One weighted vector fit: given poles, a given count, or the automatic count."""
+    n = s.size
+    n_extra = sum(flags)
 
     def fit(count, init=None, trials=(), stall_tol=0.0, history=(), iters=n_iter):
         if 2 * n <= _unknowns(count, n_extra):
@@ -984,20 +1124,13 @@ def vector_fit(
             stall_tol=stall_tol, history=history,
         )
 
-    if initial_poles is not None:
-        init = np.asarray(initial_poles, dtype=complex).ravel()
+    if init is not None:
         return fit(init.size, init)
     if n_poles is not None:
-        if int(n_poles) != n_poles or n_poles < 0:
-            raise ZfitInputError(f"the pole count must be a non-negative integer, not {n_poles!r}")
-        if n_poles == 0 and n_extra == 0:
-            raise FitError("a model with no poles and no constant, proportional or origin term has nothing to fit")
-        return fit(int(n_poles))
+        return fit(n_poles)
 
     # Automatic count.
     start = 0 if n_extra else 1
-    if 2 * n <= _unknowns(start, n_extra):
-        raise FitError(_too_few_message(n, start, n_extra, terms))
     target = 1.0 + max(noise_tol, 3.0 / math.sqrt(4.0 * n))
     fits = []
     best = math.inf
@@ -1008,7 +1141,7 @@ def vector_fit(
         m = fit(count, stall_tol=1e-4)
         fits.append(m)
         rms = m.rms_normalized_residual
-        if weighting == "sigma" and rms <= target:
+        if (weighting == "sigma" and rms <= target) or rms <= _EXACT:
             break
         if rms < best * (1.0 - min_improvement):
             best = rms
@@ -1019,7 +1152,8 @@ def vector_fit(
             if stale >= 2:
                 break
     trials = tuple((m.n_poles, float(m.rms_normalized_residual)) for m in fits)
-    if weighting == "sigma" and fits[-1].rms_normalized_residual <= target:
+    last = fits[-1].rms_normalized_residual
+    if (weighting == "sigma" and last <= target) or last <= _EXACT:
         chosen = fits[-1]
     else:
         best = min(m.rms_normalized_residual for m in fits)
