@@ -131,7 +131,7 @@ def touchstone_two_port(f, s11, s21, s22, *, fmt, unit, header, version="1.x", m
 
 
 def two_port_of(z, connection):
-    """S11, S21, S22 of a one-port part in the fixture (Pozar 2012, Table 4.2)."""
+    """S11, S21, S22 of a one-port part in the fixture (Pozar 2012, Tables 4.1-4.2)."""
     s21 = s_from_impedance(z, connection, Z0)
     # Series: S11 = Z/(Z + 2 Z0) = 1 - S21; shunt: S11 = -Z0/(2Z + Z0) = S21 - 1.
     s11 = 1 - s21 if connection == "series-thru" else s21 - 1

@@ -24,8 +24,9 @@ def model_z(f):
 
 # Textbook one-port-in-a-two-port S-parameters, written out here rather than
 # taken from zfit (Pozar, Microwave Engineering, 4th ed., 2012: eq. 2.35 for
-# the reflection coefficient; Table 4.2 ABCD of a series impedance / shunt
-# admittance converted to S with Table 4.2's ABCD->S formulas).
+# the reflection coefficient; Table 4.1 ABCD of a series impedance / shunt
+# admittance, converted to S with Table 4.2's ABCD->S formulas; equation and
+# table numbers from memory).
 def textbook_two_port(z, connection, z0):
     if connection == "reflection":
         s11 = (z - z0) / (z + z0)
