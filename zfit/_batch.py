@@ -370,17 +370,16 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
 
 
 def _output_names(items: Sequence[tuple[Path, str]]) -> list[str]:
-    """Relative output stems, one per input: the name without its suffix,
-    or with it where two inputs would collide."""
-    stems = []
-    for _, name in items:
-        rel = Path(*[p for p in Path(name).parts if p not in ("..", ".", "/") and not p.endswith(":\\")])
-        stems.append(rel)
-    plain = [str(s.with_suffix("")) for s in stems]
+    """Output stems, one per input: the path relative to the inputs' common
+    folder, without its suffix (with it where two inputs would collide)."""
+    paths = [p for p, _ in items]
+    root = Path(os.path.commonpath([str(p.parent) for p in paths])) if paths else Path(".")
+    rels = [p.relative_to(root) for p in paths]
+    plain = [r.with_suffix("").as_posix() for r in rels]
     count: dict[str, int] = {}
     for p in plain:
         count[p] = count.get(p, 0) + 1
-    return [plain[i] if count[plain[i]] == 1 else str(stems[i]) for i in range(len(stems))]
+    return [plain[i] if count[plain[i]] == 1 else rels[i].as_posix() for i in range(len(rels))]
 
 
 # ---------------------------------------------------------------------------
@@ -501,6 +500,8 @@ def part_row(outcome: PartOutcome, limits: Limits | None = None) -> PartRow:
     if res is None:
         return PartRow(outcome.name, "", "", {}, "", None, "error", error=outcome.error or "no result",
                        warnings=outcome.warnings)
+    said = [" ".join(str(w).split()) for w in res.get("warnings") or ()]
+    said += [w for w in outcome.warnings if w not in said]
     figs = part_figures(res)
     fit = res.get("fit") or {}
     rms = fit.get("rms_normalized_residual")
@@ -513,7 +514,7 @@ def part_row(outcome: PartOutcome, limits: Limits | None = None) -> PartRow:
         verdict, failed, ind = dec.verdict, dec.failed, dec.indeterminate
         reasons = tuple(d.reason for d in dec.decisions if d.verdict != "pass")
     return PartRow(outcome.name, str(res.get("model", "")), str(res.get("topology", "")), figs, where, rms,
-                   verdict, failed, ind, reasons, None, outcome.warnings)
+                   verdict, failed, ind, reasons, None, tuple(said))
 
 
 def process_capability(mean: float, std: float, lower: float | None, upper: float | None) -> tuple:
@@ -723,8 +724,9 @@ def _spot_columns(rows: Sequence[PartRow], limits: Limits | None, at: Sequence[f
     for f in freqs:
         for q in _SPOT_KEYS:
             name = figure_name(q, f)
-            if (name in limited or (q == "Q" and "inductor" in models) or (q == "D" and "capacitor" in models)
-                    or (q in ("L_eff", "C_eff", "R", "X") and f in at)):
+            ind, cap = "inductor" in models, "capacitor" in models
+            asked = f in at and (q in ("R", "X") or (q == "L_eff" and ind) or (q == "C_eff" and cap))
+            if name in limited or asked or (q == "Q" and ind) or (q == "D" and cap):
                 cols.append(name)
     return cols
 
@@ -1027,31 +1029,42 @@ def _chunk_size(n: int, workers: int) -> int:
     return max(1, min(16, math.ceil(n / (8 * max(1, workers)))))
 
 
-def _preload_modules() -> list[str]:
-    return ["zfit._batch", "zfit._identify", "zfit._readers", "zfit._cli_common"]
+def _preload_modules(plot: bool = False) -> list[str]:
+    # What the first part of a worker would otherwise import (measured with
+    # ``python -X importtime``: scipy.optimize and friends are about 0.4 s;
+    # matplotlib another 0.5 s when plotting).
+    mods = ["zfit._batch", "zfit._cli_common", "zfit._readers", "zfit._touchstone", "zfit._table",
+            "zfit._vectfit", "zfit._circuits", "zfit._refine", "zfit._figures", "zfit._identify",
+            "scipy.optimize", "scipy.linalg"]
+    if plot:
+        mods += ["zfit._outputs", "zfit._plots", "matplotlib", "matplotlib.pyplot"]
+    return mods
 
 
 def _run_local(tasks, jobs, on_done):
     import concurrent.futures as cf
     import importlib
+    import importlib.util
     import multiprocessing as mp
 
-    # forkserver: each worker forks from a server that has imported zfit
-    # (and numpy, scipy, scikit-rf) once, so a worker costs milliseconds, not
-    # the second of a fresh interpreter; and it is safe in a process that
-    # runs threads, where a plain fork is not.
+    # Workers must not pay for a fresh interpreter and its imports (numpy,
+    # scipy, zfit: about a second each).  In a process without other threads
+    # (the command line) a plain fork shares what this process has imported;
+    # where threads run (a notebook, a test session with a Dask cluster) a
+    # fork is unsafe, so workers fork from a forkserver that preloads zfit.
+    mods = _preload_modules(any(t.plot_path for t in tasks))
     methods = mp.get_all_start_methods()
-    if "forkserver" in methods:
-        ctx = mp.get_context("forkserver")
-        mods = []
-        for m in _preload_modules():
+    if "fork" in methods and threading.active_count() == 1:
+        ctx = mp.get_context("fork")
+        for m in mods:
             try:
                 importlib.import_module(m)
-                mods.append(m)
             except ImportError:
                 pass
-        ctx.set_forkserver_preload(mods)
-    else:  # pragma: no cover - Windows, macOS default
+    elif "forkserver" in methods:
+        ctx = mp.get_context("forkserver")
+        ctx.set_forkserver_preload([m for m in mods if importlib.util.find_spec(m) is not None])
+    else:  # pragma: no cover - Windows
         ctx = mp.get_context("spawn")
     size = _chunk_size(len(tasks), jobs)
     chunks = _chunks(tasks, size)
