@@ -24,13 +24,21 @@ few tenths of a percent at most (averaging over points brings it lower).
 from __future__ import annotations
 
 import argparse
+import os
 import statistics
 import sys
 import time
 import warnings
 from pathlib import Path
 
-import numpy as np
+# One BLAS thread for both fitters: the matrices are tall and thin (3202 x ~10)
+# and BLAS threads only fight over the shared cores (on a loaded 2-core machine
+# they made single fits up to 20x slower). A batch of many sweeps parallelises
+# over sweeps instead. Set OPENBLAS_NUM_THREADS yourself to override.
+for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_var, "1")
+
+import numpy as np  # noqa: E402
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
@@ -115,7 +123,8 @@ def report(rows, repeat):
         "",
         "Measured by `python benchmarks/bench_vectfit.py` (twelve invented parts, 1601-point impedance",
         "sweeps 10 kHz - 1 GHz, 0.2 % complex-circular noise on Z, seeded; best of "
-        f"{repeat} runs for zfit, of {max(1, repeat // 5)} for scikit-rf; 2 shared cores).",
+        f"{repeat} runs for zfit, of {max(1, repeat // 5)} for scikit-rf; 2 shared cores; "
+        f"OPENBLAS_NUM_THREADS={os.environ.get('OPENBLAS_NUM_THREADS')}).",
         "zfit: `fit_impedance(f, z, 0.002|z|, kind=...)`, automatic pole count, weighted by the noise.",
         "scikit-rf: `VectorFitting` on S11 = (Z-50)/(Z+50), 2 real + 2 complex poles, constant term.",
         "Error: worst point of |Z_fit - Z_true| / |Z_true| against the noise-free truth.",

@@ -272,3 +272,63 @@ def test_result_is_frozen_and_inputs_checked():
         vector_fit(-f, _inductor(f))
     with pytest.raises(ZfitInputError, match="uncertainties"):
         vector_fit(f, _inductor(f), sigma=0.0)
+
+
+def test_sigma_update_restores_the_noise_level_for_s_derived_impedance():
+    # A high-Q inductor measured in reflection: near the SRF |Z| >> 50 ohm and
+    # sigma_z evaluated at the noisy S11 is itself noisy (the connection barely
+    # resolves Z there). Re-evaluating sigma at the model brings the residual of
+    # the right model back to the noise (~1) and the count to the physical 2.
+    from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+    from zfit._vectfit import sigma_update_for
+
+    rng = np.random.default_rng(3)
+    f = np.geomspace(1e5, 1e9, 801)
+    z0 = _inductor(f, L=1.8e-3, R=50.9, C=0.964e-12)
+    noise = InstrumentNoise(1e-3, 1e-5)
+    s0 = s_from_impedance(z0, "reflection")
+    s = s0 + _noise(rng, noise.sigma(s0))
+    z, sig = impedance_from_s(s, "reflection"), sigma_z_from_s(s, "reflection", noise=noise)
+    truth_rms = np.sqrt(np.mean(np.abs(z - z0) ** 2 / sig**2))
+    assert truth_rms > 1.3  # the noisy-point sigma misjudges the noise
+    m = fit_impedance(f, z, sig, kind="inductor", sigma_update=sigma_update_for("reflection", noise))
+    assert m.reweight_passes == 2
+    assert m.n_poles == 2
+    assert m.rms_normalized_residual == pytest.approx(1.0, abs=0.1)
+    # SRF = 1/(2 pi sqrt(LC)) (handbook formula) from the pole pair, within 0.1 %
+    srf = np.abs(m.poles[0]) / TWO_PI
+    assert srf == pytest.approx(1 / (TWO_PI * np.sqrt(1.8e-3 * 0.964e-12)), rel=1e-3)
+
+
+def test_violation_within_its_uncertainty_is_marked():
+    def model(d, var):
+        return RationalModel(poles=np.zeros(0), residues=np.zeros(0), constant=d, has_constant=True,
+                             coefficients=np.array([d]), coefficient_names=("constant",),
+                             covariance=np.array([[var]]), full_covariance=np.array([[var]]),
+                             f_min_hz=1.0, f_max_hz=10.0)
+
+    (v,) = model(-1e-6, 1e-10).passivity_violations()  # -1 uohm +- 10 uohm
+    assert v.kind == "real part" and v.worst_value == pytest.approx(-1e-6)
+    assert v.worst_std == pytest.approx(1e-5) and v.within_uncertainty
+    (v,) = model(-1e-6, 1e-16).passivity_violations()  # -1 uohm +- 10 nohm
+    assert not v.within_uncertainty
+
+
+def test_public_parameters_are_documented():
+    import inspect
+
+    from zfit import _vectfit
+
+    for name in _vectfit.__all__:
+        obj = getattr(_vectfit, name)
+        targets = [obj] if inspect.isfunction(obj) else []
+        if inspect.isclass(obj):
+            targets += [m for k, m in vars(obj).items() if inspect.isfunction(m) and not k.startswith("_")]
+        for fn in targets:
+            doc = inspect.getdoc(fn) or ""
+            for p in list(inspect.signature(fn).parameters)[0:]:
+                if p in ("self",) or p.startswith("*"):
+                    continue
+                if p == "options":
+                    p = "**options"
+                assert p in doc, f"{name}.{fn.__name__}: parameter {p} not documented"

@@ -31,6 +31,7 @@ __all__ = [
     "VFIteration",
     "PassivityViolation",
     "starting_poles",
+    "sigma_update_for",
     "IMPEDANCE_FIT_OPTIONS",
 ]
 
@@ -100,6 +101,10 @@ class PassivityViolation:
         Frequency of the most negative real part found in the band.
     worst_value : float
         The most negative value (Re H in ohm, or the offending coefficient).
+    worst_std : float
+        The model's standard uncertainty of that value (of Re H at
+        `worst_f_hz`, poles included, or of the coefficient); NaN when the
+        model carries no covariance.
     """
 
     kind: str
@@ -107,6 +112,15 @@ class PassivityViolation:
     f_hi_hz: float
     worst_f_hz: float
     worst_value: float
+    worst_std: float = float("nan")
+
+    @property
+    def within_uncertainty(self) -> bool:
+        """True when the violation is smaller than twice its standard
+        uncertainty: the data do not show the model to be non-passive there,
+        though the model as it stands is (and a circuit synthesised from it
+        would need a negative element)."""
+        return bool(np.isfinite(self.worst_std) and -self.worst_value <= 2.0 * self.worst_std)
 
 
 @dataclass(frozen=True)
@@ -408,6 +422,35 @@ class RationalModel:
         tuple of PassivityViolation
             Sorted by frequency; coefficient violations first.
         """
+        return tuple(self._with_std(v) for v in self._violations(f_hz, tol_ohm))
+
+    def _with_std(self, v):
+        import dataclasses
+
+        C = self.full_covariance
+        if C.size == 0 or not np.all(np.isfinite(C)):
+            return v
+        names = self.coefficient_names
+        if v.kind == "origin residue" and "origin_residue" in names:
+            k = names.index("origin_residue")
+            return dataclasses.replace(v, worst_std=float(math.sqrt(max(C[k, k], 0.0))))
+        if v.kind == "proportional term" and "proportional" in names:
+            k = names.index("proportional")
+            return dataclasses.replace(v, worst_std=float(math.sqrt(max(C[k, k], 0.0))))
+        if v.kind == "real part":
+            if math.isinf(v.worst_f_hz):
+                if "constant" not in names:
+                    return v
+                k = names.index("constant")
+                return dataclasses.replace(v, worst_std=float(math.sqrt(max(C[k, k], 0.0))))
+            f = max(v.worst_f_hz, 1e-300)
+            if v.worst_f_hz == 0.0 and self.has_origin_pole:
+                f = self.f_min_hz * 1e-6
+            var = self.impedance_covariance(np.array([f]))[0, 0, 0]
+            return dataclasses.replace(v, worst_std=float(math.sqrt(max(var, 0.0))))
+        return v
+
+    def _violations(self, f_hz, tol_ohm):
         out = []
         if self.has_origin_pole and self.origin_residue < 0:
             out.append(PassivityViolation("origin residue", 0.0, 0.0, 0.0, float(self.origin_residue)))
@@ -416,7 +459,7 @@ class RationalModel:
         if f_hz is not None:
             f = np.sort(np.asarray(f_hz, dtype=float).ravel())
             out.extend(_negative_bands(f, self.impedance(f).real, tol_ohm))
-            return tuple(out)
+            return out
         fmin = self.f_min_hz if np.isfinite(self.f_min_hz) else 1.0
         fmax = self.f_max_hz if np.isfinite(self.f_max_hz) else fmin
         ndec = max(math.log10(fmax / fmin) + 6.0, 1.0)
@@ -448,12 +491,14 @@ class RationalModel:
         for v in sampled:
             if not any(b.f_lo_hz <= v.worst_f_hz <= b.f_hi_hz for b in bands):
                 out.append(v)
-        return tuple(out)
+        return out
 
     @property
     def is_passive(self) -> bool:
-        """True when `passivity_violations()` finds nothing."""
-        return not self.passivity_violations()
+        """True when `passivity_violations()` finds nothing (strictly: a
+        violation within its uncertainty still counts; see
+        `PassivityViolation.within_uncertainty`)."""
+        return not self._violations(None, 0.0)
 
     def _re_at_dc(self) -> float:
         if self.poles.size == 0:
@@ -1045,10 +1090,11 @@ def vector_fit(
        "Macromodeling of multiport systems using a fast implementation of the
        vector fitting method", IEEE Microwave and Wireless Components Letters
        18(6), 383-385, 2008. doi:10.1109/LMWC.2008.922585
-    .. [4] B. Gustavsen and A. Semlyen, "Fast passivity assessment for
-       S-parameter rational models via a half-size test matrix", IEEE Trans.
-       Microwave Theory Tech. 56(12), 2701-2708, 2008.
-       doi:10.1109/TMTT.2008.2007319
+    .. [4] A. Semlyen and B. Gustavsen, "A half-size singularity test matrix
+       for fast and reliable passivity assessment of rational models", IEEE
+       Trans. Power Delivery 24(1), 345-351, 2009 (the test used by
+       `RationalModel.real_part_crossings_hz`; details from memory).
+       doi:10.1109/TPWRD.2008.923406
     """
     f = np.asarray(f_hz, dtype=float).ravel()
     hh = np.asarray(h, dtype=complex).ravel()
@@ -1169,6 +1215,49 @@ def _replace(model, **changes):
     import dataclasses
 
     return dataclasses.replace(model, **changes)
+
+
+def sigma_update_for(connection: str, noise, reference_ohm: float = 50.0):
+    """Return a `vector_fit` ``sigma_update`` for impedance derived from S-parameters.
+
+    The returned function gives the standard uncertainty of Z that the
+    instrument noise on S would produce at the model's impedance, for the
+    given connection (`zfit._connection.sigma_z_from_s` evaluated at
+    ``s_from_impedance(Z_model)`` instead of at the noisy measured S).
+
+    Parameters
+    ----------
+    connection : {'reflection', 'shunt-thru', 'series-thru', 'impedance'}
+        How Z was obtained (`Sweep.connection`).  For ``'impedance'`` (tables,
+        where the noise model is on Z itself) the noise model is applied to
+        the model's Z.
+    noise : InstrumentNoise
+        The noise model (`Sweep.noise`): on S for the network-analyser
+        connections, on Z for ``'impedance'``.
+    reference_ohm : float
+        Reference impedance of the S-parameters (`Sweep.reference_ohm`).
+
+    Returns
+    -------
+    callable
+        ``sigma_update(f_hz, z_model) -> sigma_ohm``.
+
+    Notes
+    -----
+    Only valid when `Sweep.sigma_ohm` came straight from this noise model;
+    after fixture compensation the uncertainty has further terms and the
+    sweep's own sigma should be used as is.
+    """
+    from ._connection import s_from_impedance, sigma_z_from_s
+
+    if connection == "impedance":
+        return lambda f_hz, z_model: noise.sigma(z_model)
+    z0 = float(reference_ohm)
+
+    def update(f_hz, z_model):
+        return sigma_z_from_s(s_from_impedance(z_model, connection, z0), connection, z0, noise)
+
+    return update
 
 
 def fit_impedance(f_hz, z_ohm, sigma_ohm=None, kind: str = "general", n_poles: int | None = None, **options) -> RationalModel:
