@@ -40,13 +40,13 @@ TWO_PI = 2.0 * math.pi
 #: Options of `vector_fit` that suit the impedance of each kind of part; used by
 #: `fit_impedance`.  Why: an inductor with parallel C, (R + sL) || 1/(sC), is a
 #: strictly proper function of s (Z -> R at DC, Z -> 1/(sC) at high frequency):
-#: one complex pole pair near the SRF and no constant or proportional term, and a
-#: fitted constant would only add noise (and, if it came out negative, a
+#: one complex pole pair near the SRF (so the automatic count starts at 2) and no
+#: constant or proportional term, and a fitted constant would only add noise (and, if it came out negative, a
 #: non-passive model at high frequency).  A capacitor, ESR + sESL + 1/(sC), has a
 #: pole at the origin, a constant and a proportional term and needs no other
 #: pole at all; dielectric absorption or leakage adds real poles.
 IMPEDANCE_FIT_OPTIONS = {
-    "inductor": dict(constant=False, proportional=False, origin_pole=False),
+    "inductor": dict(constant=False, proportional=False, origin_pole=False, min_poles=2),
     "capacitor": dict(constant=True, proportional=True, origin_pole=True),
     "general": dict(constant=True, proportional=True, origin_pole=False),
 }
@@ -951,6 +951,7 @@ def vector_fit(
     proportional: bool = True,
     origin_pole: bool = False,
     max_poles: int = 10,
+    min_poles: int | None = None,
     n_iter: int = 30,
     n_real_poles: int | None = None,
     initial_poles=None,
@@ -985,6 +986,9 @@ def vector_fit(
         Fit a fixed pole at s = 0, r_0 / s (a capacitance at low frequency).
     max_poles : int
         Largest pole count tried by the automatic count.
+    min_poles : int, optional
+        Smallest pole count tried by the automatic count; by default 0 when
+        a constant, proportional or origin term is fitted, else 1.
     n_iter : int
         Most pole relocations per fit.
     n_real_poles : int, optional
@@ -1055,8 +1059,9 @@ def vector_fit(
     gives their covariance (scaled by the reduced chi-square); a second,
     full covariance takes the poles as parameters too.
 
-    *Automatic pole count.* Counts 0 (only with an optional term), 1, 2, ...
-    up to `max_poles` are fitted from fresh starting poles.  The search stops
+    *Automatic pole count.* Counts `min_poles` (0 with an optional term, else
+    1), then one more each time, up to `max_poles`, are fitted from fresh
+    starting poles.  The search stops
     at the first count whose RMS normalised residual reaches the noise (see
     `noise_tol`; with relative weights, at a residual of 1e-10, exact data);
     otherwise, when two successive counts each fail to lower the
@@ -1134,9 +1139,16 @@ def vector_fit(
             raise FitError("a model with no poles and no constant, proportional or origin term has nothing to fit")
     init = None if initial_poles is None else np.asarray(initial_poles, dtype=complex).ravel()
     count = None if n_poles is None else int(n_poles)
+    if min_poles is None:
+        min_poles = 0 if n_extra else 1
+    elif int(min_poles) != min_poles or min_poles < (0 if n_extra else 1):
+        raise ZfitInputError(f"the smallest pole count must be an integer >= {0 if n_extra else 1}, not {min_poles!r}")
+    if count is None and init is None and 2 * n <= _unknowns(int(min_poles), n_extra):
+        raise FitError(_too_few_message(n, int(min_poles), n_extra, terms))
+    limits = (int(min_poles), int(max_poles))
     model = _solve(
         s, hh, 1.0 / sig, flags, w0, band, count, n_real_poles, init, n_iter, pole_tol, absolute_sigma,
-        extra, noise_tol, min_improvement, max_poles, weighting, terms,
+        extra, noise_tol, min_improvement, limits, weighting, terms,
     )
     if sigma_update is None:
         return model
@@ -1149,14 +1161,14 @@ def vector_fit(
         model = _solve(
             s, hh, 1.0 / sig, flags, w0, band, None if again else model.n_poles, None,
             None if again else model.poles, n_iter, pole_tol, absolute_sigma,
-            dict(extra, reweight_passes=k + 1), noise_tol, min_improvement, max_poles, weighting, terms,
+            dict(extra, reweight_passes=k + 1), noise_tol, min_improvement, limits, weighting, terms,
         )
         trials = trials + model.pole_count_trials
     return _replace(model, pole_count_trials=trials)
 
 
 def _solve(s, hh, w, flags, w0, band, n_poles, n_real_poles, init, n_iter, pole_tol, absolute_sigma,
-           extra, noise_tol, min_improvement, max_poles, weighting, terms):
+           extra, noise_tol, min_improvement, limits, weighting, terms):
     """One weighted vector fit: given poles, a given count, or the automatic count."""
     n = s.size
     n_extra = sum(flags)
@@ -1176,7 +1188,7 @@ def _solve(s, hh, w, flags, w0, band, n_poles, n_real_poles, init, n_iter, pole_
         return fit(n_poles)
 
     # Automatic count.
-    start = 0 if n_extra else 1
+    start, max_poles = limits
     target = 1.0 + max(noise_tol, 3.0 / math.sqrt(4.0 * n))
     fits = []
     best = math.inf
