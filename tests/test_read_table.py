@@ -196,3 +196,32 @@ def test_default_noise_on_tables_and_override():
     sw = read_sweep(DATA / "ls_rs_tab.txt", noise=InstrumentNoise(1e-2, 0.0))
     np.testing.assert_allclose(sw.sigma_ohm, 1e-2 * np.abs(sw.z_ohm), rtol=1e-12)
     assert sw.noise == InstrumentNoise(1e-2, 0.0)
+
+
+def test_spreadsheet_quirks(tmp_path):
+    """Quoted fields, a delimiter closing each row, decimal commas with tabs, UTF-16 text."""
+    z = model_z(F)
+    rows = [f'"{f:.15e}","{a:.15e}","{b:.15e}",' for f, a, b in zip(F, z.real, z.imag)]
+    path = tmp_path / "quoted.csv"
+    path.write_text('"Freq (Hz)","R (Ohm)","X (Ohm)",\n' + "\n".join(rows) + "\n")
+    np.testing.assert_allclose(read_sweep(path).z_ohm, z, rtol=1e-9)
+    rows = [f"{f:.15e}\t{a:.15e}\t{b:.15e}".replace(".", ",") for f, a, b in zip(F, z.real, z.imag)]
+    path = tmp_path / "comma.txt"
+    path.write_text("Freq (Hz)\tR (Ohm)\tX (Ohm)\n" + "\n".join(rows) + "\n")
+    sw = read_sweep(path)
+    np.testing.assert_allclose(sw.z_ohm, z, rtol=1e-9)
+    assert "tab (decimal comma)" in sw.data_format
+    path = tmp_path / "wide.csv"
+    path.write_bytes(("Freq (Hz),R (Ohm),X (Ohm)\n" + "\n".join(f"{f:.15e},{a:.15e},{b:.15e}" for f, a, b in
+                                                            zip(F, z.real, z.imag)) + "\n").encode("utf-16"))
+    np.testing.assert_allclose(read_sweep(path).z_ohm, z, rtol=1e-9)
+
+
+def test_header_that_does_not_line_up_is_an_error(tmp_path):
+    z = model_z(F)
+    path = tmp_path / "t.dat"
+    path.write_text("Frequency (Hz)  Real part (ohm)  Imag part (ohm)\n"
+                    + "\n".join(f"{f:.15e} {a:.15e} {b:.15e}" for f, a, b in zip(F, z.real, z.imag)) + "\n")
+    with pytest.raises(ZfitInputError, match=r"t.dat:1: the header has 5 fields .* data rows have 3 columns"):
+        read_sweep(path)
+    np.testing.assert_allclose(read_sweep(path, columns="f,rs,xs").z_ohm, z, rtol=1e-9)

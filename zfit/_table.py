@@ -275,6 +275,9 @@ def _split_items(text: str):
 
 def _text(path: Path) -> str:
     raw = path.read_bytes()
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        # Some bench software on Windows exports UTF-16 text.
+        return raw.decode("utf-16")
     if b"\x00" in raw[:4096]:
         raise ZfitInputError("is a binary file, not a text table", path)
     try:
@@ -341,7 +344,8 @@ def read_table(path, columns: str | None = None) -> TableData:
     """
     path = Path(path)
     lines = _text(path).splitlines()
-    stripped = [ln.strip() for ln in lines]
+    # Quotes around fields (spreadsheet exports) carry no meaning here.
+    stripped = [ln.replace('"', "").strip() for ln in lines]
     content = [i for i, s in enumerate(stripped) if s and s[0] not in "#!"]
     if not content:
         raise ZfitInputError("no data: the file is empty or only comments", path)
@@ -357,8 +361,10 @@ def read_table(path, columns: str | None = None) -> TableData:
         if s[0] not in "0123456789+-.":
             continue
         d, name = _delimiter(s)
+        if d is not None and s.endswith(d):
+            s = s[: -len(d)].rstrip()  # a delimiter closing every row
         toks = _fields(s, d)
-        dc = d == ";" and any("," in t for t in toks)
+        dc = d != "," and any("," in t for t in toks)
         if dc:
             toks = [t.replace(",", ".") for t in toks]
         if len(toks) >= 2 and all(_is_number(t) for t in toks):
@@ -369,12 +375,25 @@ def read_table(path, columns: str | None = None) -> TableData:
     header = None
     header_line = None
     preamble = first
+    trailing = delim is not None and stripped[content[first]].endswith(delim)
+    if trailing:
+        for i in content:
+            if stripped[i].endswith(delim):
+                stripped[i] = stripped[i][: -len(delim)].rstrip()
     if first > 0:
         hi = content[first - 1]
         cand = _fields(stripped[hi], delim)
         n_data = len(_fields(stripped[content[first]], delim))
         if len(cand) == n_data:
             header, header_line, preamble = cand, hi + 1, first - 1
+        elif columns is None and len(cand) > 1 and len(cand) in range(n_data - 1, n_data + 4):
+            # Looks like a header, but does not line up with the data.
+            raise ZfitInputError(
+                f"the header has {len(cand)} fields ({', '.join(repr(c) for c in cand)}) but the data rows have "
+                f"{n_data} columns (names with spaces in a whitespace-separated table?); give --columns",
+                path,
+                hi + 1,
+            )
     notes = []
     if preamble:
         notes.append(f"{preamble} text line(s) before the {'header' if header else 'data'} skipped")
