@@ -8,7 +8,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from typer.testing import CliRunner
+
 from zfit import MeasurementWarning, ZfitInputError, read_sweep
+from zfit._cli import app
 from zfit._table import PAIRS, parse_columns
 
 DATA = Path(__file__).parent / "data" / "tables"
@@ -68,6 +71,8 @@ def test_every_column_pair_round_trips(tmp_path, pair):
     # 16 printed digits: the conversion must hold to 1e-9.
     np.testing.assert_allclose(sw.z_ohm, z, rtol=1e-9)
     assert sw.connection == "impedance" and sw.reference_ohm is None
+    r = CliRunner().invoke(app, ["info", str(path)])
+    assert r.exit_code == 0 and "points       25" in r.stdout, r.output
 
 
 @pytest.mark.parametrize("delim", [",", ";", "\t", "  "], ids=["comma", "semicolon", "tab", "spaces"])

@@ -10,6 +10,8 @@ import numpy as np
 import pytest
 
 from ngspice import run_ac
+from typer.testing import CliRunner
+from zfit._cli import app
 from zfit import read_sweep
 from zfit._touchstone import read_touchstone
 
@@ -72,6 +74,11 @@ def test_round_trip_through_skrf_writer(tmp_path, version, connection, form, uni
     # skrf writes full float precision: the round trip must hold to 1e-9.
     np.testing.assert_allclose(sw.z_ohm, z, rtol=1e-9)
     assert sw.data_format.startswith(f"Touchstone {'1.x' if version == '1.0' else '2.0'}, S, {form.upper()}")
+    # zfit info reads every variant and prints back what it understood.
+    args = ["info", str(path)] + ([] if path.suffix == ".s1p" else ["-c", connection])
+    r = CliRunner().invoke(app, args)
+    assert r.exit_code == 0, r.output
+    assert f"format       {sw.data_format}" in r.stdout and f"reference    {z0:g} ohm" in r.stdout
 
 
 # A shunt part has a Z matrix and a series part a Y matrix (the other is singular).
