@@ -84,14 +84,15 @@ def test_round_trip_through_skrf_writer(tmp_path, version, connection, form, uni
 # A shunt part has a Z matrix and a series part a Y matrix (the other is singular).
 @pytest.mark.parametrize("parameter, connection", [("Z", "reflection"), ("Y", "reflection"), ("Z", "shunt-thru"),
                                                    ("Y", "series-thru")])
-def test_round_trip_non_s_parameters(tmp_path, parameter, connection):
+@pytest.mark.parametrize("version", ["1.0", "2.0"])
+def test_round_trip_non_s_parameters(tmp_path, parameter, connection, version):
     z = model_z(F)
     net = skrf_network(F, z, connection, 50.0)
-    net.write_touchstone("part", dir=str(tmp_path), form="ri", parameter=parameter)
+    net.write_touchstone("part", dir=str(tmp_path), form="ri", parameter=parameter, version=version)
     path = next(tmp_path.iterdir())
-    sw = read_sweep(path, connection if path.suffix != ".s1p" else None)
+    sw = read_sweep(path, connection if path.suffix not in (".s1p", ".z1p", ".y1p") else None)
     np.testing.assert_allclose(sw.z_ohm, z, rtol=1e-9)
-    assert f"Touchstone 1.x, {parameter}," in sw.data_format
+    assert f"Touchstone {'1.x' if version == '1.0' else '2.0'}, {parameter}," in sw.data_format
 
 
 GOOD = {

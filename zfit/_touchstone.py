@@ -420,8 +420,12 @@ def _scan_v2(path: Path, body: list[str]):
     return keys, opt, n_ports, idx
 
 
-def _read_v2(path: Path, body: list[str], version: str = "2.0") -> TouchstoneData:
+def _read_v2(path: Path, body: list[str]) -> TouchstoneData:
     keys, opt, n_ports, idx = _scan_v2(path, body)
+    if opt.param in ("g", "h"):
+        raise ZfitInputError(
+            f"{opt.param.upper()} (hybrid) parameters are not read; export S, Y or Z parameters", path, opt.line
+        )
     line, value = keys["version"]
     if value.split()[:1] not in (["2.0"], ["2.1"]):
         raise ZfitInputError(f"[Version] {value!r}: only Touchstone 2.0 and 2.1 have a [Version] keyword", path, line)
@@ -453,7 +457,6 @@ def _read_v2(path: Path, body: list[str], version: str = "2.0") -> TouchstoneDat
     _check_increasing(path, values[:, 0] * _UNITS[opt.unit], row_lines)
     if "reference" in keys:
         rline = keys["reference"][0]
-        ref_tokens = []
         j = rline - 1
         ref_tokens = keys["reference"][1].split()
         while len(ref_tokens) < n_ports and j + 1 < len(body):
