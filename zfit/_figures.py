@@ -48,6 +48,7 @@ __all__ = [
     "srf_of_rational",
     "rational_reading",
     "spot_readout",
+    "MeasuredReader",
     "figures_of",
     "Q_MEASURED",
     "Q_MODEL",
@@ -59,11 +60,11 @@ __all__ = [
 _TWO_PI = 2.0 * math.pi
 
 #: Definitions printed next to each figure.
-Q_MEASURED = "|X|/R of the measured impedance (rational model)"
+Q_MEASURED = "|X|/R of the measured impedance"
 Q_MODEL = "omega L / R_s of the equivalent circuit"
-D_MEASURED = "R/|X| of the measured impedance (rational model)"
+D_MEASURED = "R/|X| of the measured impedance"
 D_MODEL = "omega C ESR (+ 1/(omega C R_leak)) of the equivalent circuit"
-ESR_MEASURED = "Re Z of the measured impedance (rational model)"
+ESR_MEASURED = "Re Z of the measured impedance"
 
 
 def _num(x):
@@ -400,98 +401,171 @@ def _readout(f, z, cov):
     return out
 
 
-def spot_readout(f_hz: float, band, rational=None, refinement=None) -> SpotReadout:
-    """Return the figures at one frequency.
+@dataclass(frozen=True)
+class MeasuredReader:
+    """Where the figures of the measured part are read from, frequency by frequency.
 
-    In band they are read from the rational model (it follows the data to
-    within the noise), with its uncertainty; outside the band, or without a
-    rational model, from the circuit, with the circuit's propagated
-    uncertainty.
+    Inside `circuit_band` (the band where the fitted circuit is within the
+    noise, for a sweep fitted on S) the circuit's value is read: it was
+    fitted where the noise is Gaussian, whereas the rational model, fitted on
+    Z, carries the bias of the S-to-Z conversion wherever the part's
+    impedance sits in the analyser's noise.  Its uncertainty there is the
+    circuit's plus the rational model's (covariances added): the circuit's
+    alone assumes its own structure is exact, the rational model's says what
+    the data near that frequency support.  Elsewhere in the band the
+    rational model is read; outside the band, the circuit (an extrapolation).
+
+    Attributes
+    ----------
+    band : tuple of float
+        The measured band in Hz.
+    rational : RationalModel or None
+        The vector-fitting model.
+    refinement : Refinement or None
+        The fitted circuit.
+    circuit_band : tuple of float or None
+        Where the circuit is read in preference to the rational model.
+    """
+
+    band: tuple
+    rational: object = None
+    refinement: object = None
+    circuit_band: tuple | None = None
+
+    def source(self, f_hz: float) -> str:
+        """Return ``"circuit"`` or ``"rational"``: which model is read at `f_hz`.
+
+        Parameters
+        ----------
+        f_hz : float
+            Frequency in Hz.
+        """
+        lo, hi = self.band
+        if self.refinement is not None:
+            cb = self.circuit_band
+            if cb is not None and cb[0] <= f_hz <= cb[1]:
+                return "circuit"
+            if self.rational is None or not lo <= f_hz <= hi:
+                return "circuit"
+        if self.rational is None:
+            raise ValueError("a readout needs a rational model or a circuit")
+        return "rational"
+
+    def impedance(self, f_hz) -> np.ndarray:
+        """Return the impedance read at each of `f_hz`.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        f = np.atleast_1d(np.asarray(f_hz, float))
+        use_c = np.array([self.source(x) == "circuit" for x in f]) if f.size < 64 else self._mask(f)
+        z = np.empty(f.size, complex)
+        if use_c.any():
+            z[use_c] = self.refinement.impedance(f[use_c])
+        if (~use_c).any():
+            z[~use_c] = self.rational.impedance(f[~use_c])
+        return z
+
+    def _mask(self, f):
+        lo, hi = self.band
+        if self.refinement is None:
+            return np.zeros(f.size, bool)
+        m = (f < lo) | (f > hi) if self.rational is not None else np.ones(f.size, bool)
+        if self.circuit_band is not None:
+            m |= (f >= self.circuit_band[0]) & (f <= self.circuit_band[1])
+        return m
+
+    def read(self, f_hz: float):
+        """Return (Z, 2x2 covariance of (R, X), source) at one frequency.
+
+        Parameters
+        ----------
+        f_hz : float
+            Frequency in Hz.
+        """
+        f = float(f_hz)
+        src = self.source(f)
+        if src == "rational":
+            z, cov = rational_reading(self.rational, [f])
+            return complex(z[0]), cov[0], src
+        circuit, p = self.refinement.circuit, self.refinement.values
+        z = complex(circuit.impedance(p, np.array([f]))[0])
+        jac = circuit.log_jacobian(p, np.array([f]))[0]
+        jr = np.stack([jac.real, jac.imag])
+        cov = jr @ self.refinement.log_cov @ jr.T
+        lo, hi = self.band
+        if self.rational is not None and lo <= f <= hi:
+            cov = cov + rational_reading(self.rational, [f])[1][0]
+        return z, cov, src
+
+
+def spot_readout(f_hz: float, reader: MeasuredReader) -> SpotReadout:
+    """Return the figures at one frequency, with their uncertainties.
 
     Parameters
     ----------
     f_hz : float
         The frequency in Hz.
-    band : tuple of float
-        The measured band in Hz.
-    rational : RationalModel, optional
-        The vector-fitting model.
-    refinement : Refinement, optional
-        The fitted circuit.
+    reader : MeasuredReader
+        Which model to read where.
     """
     f = float(f_hz)
-    lo, hi = band
-    in_band = lo <= f <= hi
-    if rational is not None and (in_band or refinement is None):
-        z, cov = rational_reading(rational, [f])
-        return SpotReadout(f, in_band, "rational", **_readout(f, z[0], cov[0]))
-    if refinement is None:
-        raise ValueError("a spot readout needs a rational model or a circuit")
-    circuit, p = refinement.circuit, refinement.values
-    z = complex(circuit.impedance(p, np.array([f]))[0])
-    jac = circuit.log_jacobian(p, np.array([f]))[0]
-    jr = np.stack([jac.real, jac.imag])
-    cov = jr @ refinement.log_cov @ jr.T
-    return SpotReadout(f, in_band, "circuit", **_readout(f, z, cov))
+    lo, hi = reader.band
+    z, cov, src = reader.read(f)
+    return SpotReadout(f, lo <= f <= hi, src, **_readout(f, z, cov))
 
 
-def _q_peak(rational, band, srf_hz, n=2000):
-    lo, hi = band
+def _q_peak(reader, srf_hz, n=2000):
+    lo, hi = reader.band
     top = hi if srf_hz is None or not (lo < srf_hz < hi) else srf_hz
     grid = np.geomspace(lo, top, n)
-    z = rational.impedance(grid)
+    z = reader.impedance(grid)
     ok = (z.imag > 0) & (z.real > 0)
     if not ok.any():
         return None
     q = np.where(ok, z.imag / np.where(z.real > 0, z.real, 1.0), -np.inf)
-    i = int(np.argmax(q))
-    return float(grid[i])
+    return float(grid[int(np.argmax(q))])
 
 
-def figures_of(family: str, band, srf: SRF, rational=None, refinement=None) -> Figures:
+def figures_of(family: str, srf: SRF, reader: MeasuredReader) -> Figures:
     """Return the derived figures of an identification.
 
     Parameters
     ----------
     family : {'inductor', 'capacitor', 'rational'}
         The model chosen.
-    band : tuple of float
-        The measured band in Hz.
     srf : SRF
         The self-resonance already found.
-    rational : RationalModel, optional
-        The vector-fitting model.
-    refinement : Refinement, optional
-        The fitted circuit.
+    reader : MeasuredReader
+        Which model to read where.
     """
-    lo, hi = band
+    lo, hi = reader.band
+    refinement = reader.refinement
     out = {}
-    src_model = rational if rational is not None else None
     if srf.value_hz is not None:
         f0 = srf.value_hz
-        if srf.where == "in-band" and src_model is not None:
-            sp = spot_readout(f0, band, rational=src_model)
-            out["z_at_srf"] = Figure(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, "|Z| at the SRF", "rational")
-        elif refinement is not None:
-            sp = spot_readout(f0, (f0, f0), refinement=refinement)
-            out["z_at_srf"] = Figure(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, "|Z| at the SRF (circuit, outside the band)", "circuit")
-    if family == "inductor" and src_model is not None:
-        fq = _q_peak(src_model, band, srf.value_hz)
+        if srf.where == "in-band" or refinement is not None:
+            sp = spot_readout(f0, reader)
+            text = "|Z| at the SRF" + ("" if sp.in_band else " (circuit, outside the band)")
+            out["z_at_srf"] = Figure(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, text, sp.source)
+    if family == "inductor":
+        fq = _q_peak(reader, srf.value_hz)
         if fq is not None:
-            sp = spot_readout(fq, band, rational=src_model)
-            out["q_peak"] = Figure(sp.Q.value, sp.Q.std, "", fq, Q_MEASURED, "rational")
+            sp = spot_readout(fq, reader)
+            out["q_peak"] = Figure(sp.Q.value, sp.Q.std, "", fq, Q_MEASURED, sp.source)
             if refinement is not None:
                 circuit = refinement.circuit
                 fn = lambda p: float(circuit.model_q(p, np.array([fq]))[0])  # noqa: E731
                 out["q_model_at_q_peak"] = Figure(fn(refinement.values), refinement.std_of(fn), "", fq, Q_MODEL, "circuit")
     if family == "capacitor":
-        if src_model is not None:
-            grid = np.geomspace(lo, hi, 2000)
-            i = int(np.argmin(src_model.impedance(grid).real))
-            sp = spot_readout(float(grid[i]), band, rational=src_model)
-            out["esr_min"] = Figure(sp.R.value, sp.R.std, "ohm", float(grid[i]), ESR_MEASURED, "rational")
-            sp = spot_readout(lo, band, rational=src_model)
-            out["d_at_f_min"] = Figure(sp.D.value, sp.D.std, "", lo, D_MEASURED, "rational")
+        grid = np.geomspace(lo, hi, 2000)
+        i = int(np.argmin(reader.impedance(grid).real))
+        sp = spot_readout(float(grid[i]), reader)
+        out["esr_min"] = Figure(sp.R.value, sp.R.std, "ohm", float(grid[i]), ESR_MEASURED, sp.source)
+        sp = spot_readout(lo, reader)
+        out["d_at_f_min"] = Figure(sp.D.value, sp.D.std, "", lo, D_MEASURED, sp.source)
         if refinement is not None:
             circuit = refinement.circuit
             fn = lambda p: float(circuit.model_d(p, np.array([lo]))[0])  # noqa: E731

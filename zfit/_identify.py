@@ -512,6 +512,25 @@ def _rational_fit(sweep, kind, n_poles):
     return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts)
 
 
+def _reweighted_rational(sweep, ref, kind, n_poles):
+    """The rational model refitted with sigma at the circuit's S, if that matters."""
+    from ._connection import dz_ds, s_from_impedance
+
+    s_model = s_from_impedance(ref.impedance(sweep.f_hz), sweep.connection, sweep.reference_ohm)
+    with np.errstate(all="ignore"):
+        sig_model = np.abs(dz_ds(s_model, sweep.connection, sweep.reference_ohm)) * sweep.noise.sigma(s_model)
+    sig = np.fmax(sweep.sigma_ohm, np.where(np.isfinite(sig_model), sig_model, np.inf))
+    sig = np.where(np.isfinite(sig), sig, 1e6 * np.max(sweep.sigma_ohm))
+    if not np.any(sig > 1.5 * sweep.sigma_ohm):
+        return None
+    import dataclasses
+
+    try:
+        return _rational_fit(dataclasses.replace(sweep, sigma_ohm=sig), kind, n_poles)
+    except FitError:
+        return None
+
+
 def _rational_k(rm) -> int:
     n_points = int(getattr(rm, "n_points", 0) or 0)
     dof = int(getattr(rm, "dof", 0) or 0)
@@ -642,7 +661,7 @@ def identify(
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
     from ._circuits import FAMILIES
-    from ._figures import figures_of, spot_readout, srf_of_circuit, srf_of_rational
+    from ._figures import MeasuredReader, figures_of, spot_readout, srf_of_circuit, srf_of_rational
     from ._refine import Observation, Prior, refine
 
     if model not in MODELS:
@@ -677,19 +696,20 @@ def identify(
         if model == "rational":
             raise
         notes.append(f"no rational model of the sweep ({exc}); figures are read from the circuit")
-    e_rat = None
-    rat_rms = None
-    bic_rat = None
-    if rational is not None:
-        e_rat = np.abs(obs.normalized(rational.impedance(sweep.f_hz))) ** 2
-        rat_rms = float(math.sqrt(np.mean(e_rat)))
-        bic_rat = _bic(float(2 * e_rat.sum()), rows_full, _rational_k(rational))
+    def rational_scores(rm):
+        if rm is None:
+            return None, None, None
+        e = np.abs(obs.normalized(rm.impedance(sweep.f_hz))) ** 2
+        return e, float(math.sqrt(np.mean(e))), _bic(float(2 * e.sum()), rows_full, _rational_k(rm))
+
+    e_rat, rat_rms, bic_rat = rational_scores(rational)
 
     if model == "rational":
         if rdc is not None:
             notes.append("--rdc does not apply to the rational model; ignored")
         srf = srf_of_rational(rational, band)
-        spots = tuple(spot_readout(x, band, rational=rational) for x in at)
+        reader = MeasuredReader(band, rational=rational)
+        spots = tuple(spot_readout(x, reader) for x in at)
         for s in spots:
             if not s.in_band:
                 notes.append(f"spot readout at {s.f_hz:.6g} Hz is outside the band: the rational model is extrapolated")
@@ -704,7 +724,7 @@ def identify(
         return _finish(Identification(
             sweep=sweep, model="rational", topology=f"rational model with {_n_poles(rational)} poles",
             parameters=ParameterMap(), rational=rational, srf=srf, fit=fit, spot=spots,
-            figures=figures_of("rational", band, srf, rational=rational), rdc=None,
+            figures=figures_of("rational", srf, reader), rdc=None,
         ), notes)
 
     # 2-3. Circuits of each family, the family and the optional element by BIC.
@@ -720,18 +740,42 @@ def identify(
         if rational is None:
             raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
         return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
-    # The family by the base circuits (same number of parameters: the lower chi-square),
-    # then the optional element of that family only if it wins by the margin.
-    family = min(fitted, key=lambda fam: fitted[fam].chi2)
+    # The optional element of each family, then the family by the better of
+    # its two circuits, then the optional element only if it wins by the margin.
+    # (A capacitor with leakage and an inductor whose R_s plays the leak can
+    # look alike where ESL and ESR are not resolved: compare whole families.)
+    optional = {}
+    for fam, rb in fitted.items():
+        prior = None if rdc is None else Prior(_PRIOR_KEY[fam], rdc, rdc_std)
+        optional[fam] = _fit_optional(rb, obs, rational, prior)
+
+    def family_bic(fam):
+        b = _summary(fitted[fam], rows_full)
+        rf = optional[fam]
+        return b if rf is None else min(b, _summary(rf, rows_full) + margin)
+
+    family = min(fitted, key=family_bic)
     prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
-    rb = fitted[family]
-    rf = _fit_optional(rb, obs, rational, prior)
-    cands = [(_summary(r, rows_full), r) for r in fitted.values()]
-    if rf is not None:
-        cands.append((_summary(rf, rows_full), rf))
+    rb, rf = fitted[family], optional[family]
+    cands = []
+    for fam in fitted:
+        cands.append((_summary(fitted[fam], rows_full), fitted[fam]))
+        if optional[fam] is not None:
+            cands.append((_summary(optional[fam], rows_full), optional[fam]))
     chosen = rb
     if rf is not None and _summary(rf, rows_full) < _summary(rb, rows_full) - margin:
         chosen = rf
+
+    # The rational model again, weighted with the analyser noise at the circuit's
+    # impedance where that is larger than at the measured one: where the part's
+    # impedance sits in the analyser's noise (1 - S within the noise) the measured
+    # Z is biased and its first-order sigma far too small, and those points
+    # would otherwise distort the whole rational model.
+    if rational is not None and obs.on_s:
+        refit_rm = _reweighted_rational(sweep, chosen, kind, n_poles)
+        if refit_rm is not None:
+            rational = refit_rm
+            e_rat, rat_rms, bic_rat = rational_scores(rational)
 
     # 4. The band where the circuit holds; refit over it when it is not the whole band.
     def residual_energy(ref):
@@ -797,11 +841,16 @@ def identify(
             f"{chosen.prior_pull:+.1f} standard uncertainties from it (skin effect or a different part?)"
         )
     srf = srf_of_circuit(chosen, band)
-    spots = tuple(spot_readout(x, band, rational=rational, refinement=chosen) for x in at)
+    reader = MeasuredReader(
+        band, rational=rational, refinement=chosen,
+        circuit_band=valid_band if (obs.on_s and i1 > i0) else None,
+    )
+    spots = tuple(spot_readout(x, reader) for x in at)
     for s in spots:
         if not s.in_band:
             notes.append(f"spot readout at {s.f_hz:.6g} Hz is outside the band: extrapolated from the circuit")
-    figures = figures_of(family, band, srf, rational=rational, refinement=chosen)
+    # Figures read from the circuit inside its valid band are the measured part to within the noise.
+    figures = figures_of(family, srf, reader)
     n_fit = sweep.n_points if fitted_mask is None else int(fitted_mask.sum())
     fit = FitQuality(
         rms_normalized_residual=chosen.rms_normalized_residual, points=n_fit, f_min_hz=band[0], f_max_hz=band[1],

@@ -407,9 +407,12 @@ def refine(
     info = jd.T @ jd
     if prior is not None:
         info = info + np.outer(jac[rows], jac[rows])
+    # Equilibrated before the inversion: an element the data cannot see (its
+    # log-column nearly zero, e.g. an ESL driven towards zero) keeps its
+    # first-order uncertainty instead of being cut off by the pseudo-inverse.
+    scale = 1.0 / np.sqrt(np.clip(np.diag(info), 1e-300, None))
     try:
-        # A pseudo-inverse: an unresolved element gets a huge (not a failed) uncertainty.
-        log_cov = np.linalg.pinv(info, rcond=1e-15, hermitian=True)
+        log_cov = np.linalg.pinv(info * np.outer(scale, scale), rcond=1e-13, hermitian=True) * np.outer(scale, scale)
     except np.linalg.LinAlgError:
         log_cov = np.full((k, k), np.inf)
     pull = None if prior is None else float(r[rows])
