@@ -51,6 +51,8 @@ _EXPORTS = {
     "RationalModel": "_vectfit",
     "fit_impedance": "_vectfit",
     "PassivityViolation": "_vectfit",
+    "VFIteration": "_vectfit",
+    "sigma_update_for": "_vectfit",
     "identify": "_identify",
     "Identification": "_identify",
     "Estimate": "_figures",
