@@ -1,0 +1,395 @@
+"""Frequency response from the edges of a capture: the H1 estimator with coherence.
+
+Each edge of a square wave (or a single step) is a broadband excitation.
+The derivatives of both channels around each edge are short transients, so
+their DFTs over a segment that holds the whole transient need no window and
+relate exactly as ``Y = H X``.  Averaging the cross- and auto-spectra over
+all edges gives the H1 estimate ``H = G_xy / G_xx``, its ordinary coherence
+and, from both, the random error of each bin (Bendat & Piersol 2010, ch. 9).
+
+References
+----------
+J. S. Bendat and A. G. Piersol, *Random Data: Analysis and Measurement
+Procedures*, 4th ed., Wiley, 2010, doi:10.1002/9781118032428, sections 9.1-9.2
+(H1 estimator, coherence, Table 9.6 normalised random errors).
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+
+from ._errors import FitError, MeasurementWarning
+
+__all__ = [
+    "FrequencyResponse", "edge_response", "usable_band", "impedance_sweep", "prev_fast_len",
+    "DEFAULT_COHERENCE_MIN", "DEFAULT_ENERGY_MIN_DB",
+]
+
+#: Bins whose ordinary coherence falls below this are outside the usable band.
+DEFAULT_COHERENCE_MIN = 0.9
+#: Bins where the input's derivative spectrum is this far below its peak
+#: carry too little excitation to be trusted.
+DEFAULT_ENERGY_MIN_DB = -40.0
+# At most this many samples are transformed at once (rows x segment length),
+# so the spectra of a 10-million-sample record never sit in memory together.
+_BLOCK_SAMPLES = 1 << 21
+
+
+@dataclass(frozen=True)
+class FrequencyResponse:
+    """The transfer function V_out/V_in estimated from the edges of a capture.
+
+    Attributes
+    ----------
+    f_hz : numpy.ndarray
+        Bin frequencies in Hz, ``k / (N dt)`` for ``k = 1 .. N/2``.
+    h : numpy.ndarray
+        Complex H1 estimate at each bin.
+    h_std : numpy.ndarray
+        Standard uncertainty of `h`, complex-circular (``E|dH|^2 = h_std^2``).
+    coherence : numpy.ndarray
+        Ordinary coherence ``|G_xy|^2 / (G_xx G_yy)`` (1 for a single edge).
+    input_level_db : numpy.ndarray
+        Input derivative auto-spectrum relative to its peak, in dB.
+    usable : numpy.ndarray
+        Bins inside the usable band.
+    band_hz : tuple of float
+        Lowest and highest usable frequency.
+    n_averages : int
+        Number of edges averaged.
+    segment_s : float
+        Length of the segment around each edge, the inverse of the bin spacing.
+    method : str
+        What estimated the response, in words.
+    dc_gain : float
+        Ratio of the output step to the input step (the bin at 0 Hz).
+    """
+
+    f_hz: np.ndarray
+    h: np.ndarray
+    h_std: np.ndarray
+    coherence: np.ndarray
+    input_level_db: np.ndarray
+    usable: np.ndarray
+    band_hz: tuple[float, float]
+    n_averages: int
+    segment_s: float
+    method: str
+    dc_gain: float
+
+    def __post_init__(self):
+        for name in ("f_hz", "h", "h_std", "coherence", "input_level_db", "usable"):
+            a = np.asarray(getattr(self, name))
+            a.flags.writeable = False
+            object.__setattr__(self, name, a)
+
+    def magnitude_db(self) -> np.ndarray:
+        """Return ``20 log10 |H|``."""
+        return 20.0 * np.log10(np.abs(self.h))
+
+    def phase_deg(self) -> np.ndarray:
+        """Return the phase of H in degrees, unwrapped from the lowest bin."""
+        return np.degrees(np.unwrap(np.angle(self.h)))
+
+    def magnitude_db_std(self) -> np.ndarray:
+        """Return the standard uncertainty of the magnitude in dB.
+
+        The complex-circular `h_std` splits equally between the magnitude
+        and the phase direction, ``h_std / sqrt 2`` each.
+        """
+        rel = self.h_std / np.sqrt(2.0) / np.abs(self.h)
+        return 20.0 / math.log(10.0) * rel
+
+    def phase_std_deg(self) -> np.ndarray:
+        """Return the standard uncertainty of the phase in degrees."""
+        return np.degrees(self.h_std / np.sqrt(2.0) / np.abs(self.h))
+
+    def smoothed(self, points_per_decade: int = 20):
+        """Return (f_hz, h, h_std) of the usable band averaged on a log grid.
+
+        Adjacent bins are combined with inverse-variance weights (frequency
+        smoothing, Bendat & Piersol 2010, 8.5.4), which is what a Bode plot
+        of a long record shows.
+
+        Parameters
+        ----------
+        points_per_decade : int
+            Density of the log grid.
+        """
+        m = self.usable
+        if not m.any():
+            return np.zeros(0), np.zeros(0, complex), np.zeros(0)
+        f = self.f_hz[m]
+        decades = max(math.log10(f[-1] / f[0]), 1e-3)
+        return _log_merge(f, self.h[m], self.h_std[m], max(2, int(math.ceil(decades * points_per_decade))))
+
+
+def prev_fast_len(n: int) -> int:
+    """Return the largest ``2^a 3^b 5^c`` not above `n` (a fast FFT length).
+
+    Parameters
+    ----------
+    n : int
+        Upper bound (at least 1).
+    """
+    best = 1
+    p2 = 1
+    while p2 <= n:
+        p3 = p2
+        while p3 <= n:
+            p5 = p3
+            while p5 <= n:
+                best = max(best, p5)
+                p5 *= 5
+            p3 *= 3
+        p2 *= 2
+    return best
+
+
+def _rows(x: np.ndarray, starts: np.ndarray, length: int) -> np.ndarray:
+    return x[starts[:, None] + np.arange(length)[None, :]]
+
+
+def edge_response(
+    y: np.ndarray,
+    dt: float,
+    starts: np.ndarray,
+    seg_len: int,
+    *,
+    x: np.ndarray | None = None,
+    step_at: np.ndarray | None = None,
+    step_size: float | None = None,
+    noise_x: float = 0.0,
+    noise_y: float = 0.0,
+    coherence_min: float = DEFAULT_COHERENCE_MIN,
+    energy_min_db: float = DEFAULT_ENERGY_MIN_DB,
+) -> FrequencyResponse:
+    """Return the H1 estimate of V_out/V_in from segments around each edge.
+
+    Parameters
+    ----------
+    y : numpy.ndarray
+        Output channel samples.
+    dt : float
+        Sample interval in s.
+    starts : numpy.ndarray of int
+        First sample of the segment around each edge; each segment spans
+        ``seg_len + 1`` samples (``seg_len`` differences).
+    seg_len : int
+        Number of derivative samples per segment (the DFT length).
+    x : numpy.ndarray, optional
+        Input channel samples (two-channel estimate).  Without it the input
+        is an ideal step of `step_size` at `step_at` in each segment.
+    step_at : numpy.ndarray, optional
+        For a single channel: the instant of the ideal step in each segment,
+        in samples from the segment start (fractional).
+    step_size : float, optional
+        For a single channel: the height of the ideal step (V), the
+        difference of the measured state levels, signed like each edge
+        through the sign of the output's step in that segment.
+    noise_x, noise_y : float
+        White-noise standard deviation per sample of each channel (V); sets
+        the uncertainty floor from noise and quantisation.
+    coherence_min : float
+        Lowest coherence inside the usable band.
+    energy_min_db : float
+        Lowest input derivative level, relative to its peak, inside the band.
+
+    Returns
+    -------
+    FrequencyResponse
+
+    Notes
+    -----
+    ``G_xy = mean(conj(X) Y)`` so that an output delayed by ``tau`` has phase
+    ``-2 pi f tau`` (the engineering sign convention, e^{+j omega t}).  The
+    sign of each edge cancels in ``conj(X) Y`` and ``|X|^2``: rising and
+    falling edges average without flipping.  The random error per bin is
+    ``eps = sqrt(1 - gamma^2) / (|gamma| sqrt(2 n_d))`` on both ``|H|``
+    (relative) and the phase (rad) (Bendat & Piersol 2010, Table 9.6), with
+    a floor from the white noise of both channels, which is the only error
+    available for a single edge.
+
+    References
+    ----------
+    J. S. Bendat and A. G. Piersol, *Random Data*, 4th ed., Wiley, 2010,
+    doi:10.1002/9781118032428, eqs. (9.28), (9.42) and Table 9.6.
+    """
+    starts = np.asarray(starts, dtype=np.intp)
+    n_d = int(starts.size)
+    if n_d == 0:
+        raise FitError("no edge to estimate a frequency response from")
+    nbin = seg_len // 2 + 1
+    f = np.fft.rfftfreq(seg_len, dt)
+    sxx = np.zeros(nbin)
+    syy = np.zeros(nbin)
+    sxy = np.zeros(nbin, dtype=complex)
+    dc_in = 0.0
+    dc_out = 0.0
+    per_block = max(1, _BLOCK_SAMPLES // (seg_len + 1))
+    omega_dt = 2.0 * np.pi * f * dt
+    ideal_shape = np.sinc(f * dt) * np.exp(0.5j * omega_dt) if x is None else None
+    for b in range(0, n_d, per_block):
+        st = starts[b:b + per_block]
+        ry = np.diff(_rows(y, st, seg_len + 1), axis=1)
+        Y = np.fft.rfft(ry, axis=1)
+        if x is not None:
+            rx = np.diff(_rows(x, st, seg_len + 1), axis=1)
+            X = np.fft.rfft(rx, axis=1)
+        else:
+            # The sampled derivative of an ideal step of height A at s samples:
+            # A exp(-j w s dt) (e^{j w dt} - 1)/(j w dt) (band-limited view).
+            sign = np.sign(Y[:, 0].real)
+            sign[sign == 0] = 1.0
+            s = np.asarray(step_at, dtype=float)[b:b + per_block]
+            X = (sign * step_size)[:, None] * np.exp(-1j * omega_dt[None, :] * s[:, None]) * ideal_shape[None, :]
+        sxx += np.sum(X.real**2 + X.imag**2, axis=0)
+        syy += np.sum(Y.real**2 + Y.imag**2, axis=0)
+        sxy += np.sum(np.conj(X) * Y, axis=0)
+        # Sign-aligned step sizes for the DC gain.
+        sgn = np.sign(X[:, 0].real)
+        dc_in += float(np.sum(sgn * X[:, 0].real))
+        dc_out += float(np.sum(sgn * Y[:, 0].real))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        h = sxy / sxx
+        coh = np.clip(np.abs(sxy) ** 2 / (sxx * syy), 0.0, 1.0)
+        # Noise floor: white noise of variance s^2 differenced has variance
+        # 4 s^2 sin^2(w dt / 2) per sample, N times that per DFT bin.
+        dvar = seg_len * 4.0 * np.sin(0.5 * omega_dt) ** 2
+        gxx = sxx / n_d
+        var_noise = dvar * (noise_y**2 + np.abs(h) ** 2 * noise_x**2) / (n_d * gxx)
+        std_noise = np.sqrt(var_noise)
+        if n_d >= 2:
+            eps = np.sqrt(np.maximum(1.0 - coh, 0.0)) / (np.sqrt(coh) * math.sqrt(2.0 * n_d))
+            std_coh = math.sqrt(2.0) * eps * np.abs(h)
+            h_std = np.maximum(std_coh, std_noise)
+        else:
+            h_std = std_noise
+            coh = np.ones_like(coh)
+        # The input's own excitation, above its noise floor, relative to its peak.
+        excess = np.maximum(gxx - dvar * noise_x**2, 1e-30 * np.max(gxx))
+        level = 10.0 * np.log10(excess / np.max(excess[1:])) if nbin > 1 else np.zeros(nbin)
+    dc_gain = dc_out / dc_in if dc_in != 0 else float("nan")
+    # Drop the DC bin: a Sweep needs positive frequencies.
+    f, h, h_std, coh, level = f[1:], h[1:], h_std[1:], coh[1:], level[1:]
+    h_std = np.where(np.isfinite(h_std) & (h_std > 0), h_std, np.inf)
+    usable, band = usable_band(f, h, h_std, coh, level, n_d, coherence_min=coherence_min, energy_min_db=energy_min_db)
+    method = (f"H1 = G_xy/G_xx over {n_d} edge segment(s) of {seg_len} samples" if x is not None else
+              f"output against an ideal step between the measured levels, {n_d} edge segment(s) of {seg_len} samples")
+    return FrequencyResponse(f, h, h_std, coh, level, usable, band, n_d, seg_len * dt, method, dc_gain)
+
+
+def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence_min=DEFAULT_COHERENCE_MIN,
+                energy_min_db=DEFAULT_ENERGY_MIN_DB, snr_min: float = 3.0):
+    """Return (mask, (f_lo, f_hi)) of the usable band.
+
+    The band runs from the lowest bin up to where the input loses energy,
+    the coherence drops or the estimate drowns in noise; a bin must pass
+    in a majority of its five-bin neighbourhood, so one noisy bin does not
+    cut the band short.
+
+    Parameters
+    ----------
+    f, h, h_std, coherence, input_level_db : numpy.ndarray
+        Per-bin frequency (Hz), estimate, uncertainty, coherence and input
+        level relative to its peak (dB).
+    n_averages : int
+        Number of edges averaged (the coherence is not used for one).
+    coherence_min : float
+        Lowest coherence accepted.
+    energy_min_db : float
+        Lowest input level accepted.
+    snr_min : float
+        Lowest ``|H| / h_std`` accepted.
+    """
+    ok = (input_level_db >= energy_min_db) & np.isfinite(h) & (np.abs(h) > snr_min * h_std)
+    if n_averages >= 2:
+        ok &= coherence >= coherence_min
+    if ok.size >= 5:
+        votes = np.convolve(ok.astype(int), np.ones(5, dtype=int), mode="same")
+        smooth = votes >= 3
+    else:
+        smooth = ok
+    if not smooth[0]:
+        # The lowest bin fails: the band starts at the first passing run.
+        first = int(np.argmax(smooth)) if smooth.any() else f.size
+    else:
+        first = 0
+    if first >= f.size:
+        return np.zeros(f.size, dtype=bool), (float("nan"), float("nan"))
+    stop = first + (int(np.argmin(smooth[first:])) if not smooth[first:].all() else f.size - first)
+    mask = np.zeros(f.size, dtype=bool)
+    mask[first:stop] = True
+    mask &= ok | smooth
+    return mask, (float(f[first]), float(f[stop - 1]))
+
+
+def _log_merge(f, h, h_std, max_points):
+    """Average adjacent bins into at most `max_points` log-spaced groups (inverse-variance weights)."""
+    if f.size <= max_points:
+        return f, h, h_std
+    edges = np.geomspace(f[0], f[-1] * (1 + 1e-12), max_points + 1)
+    group = np.clip(np.searchsorted(edges, f, side="right") - 1, 0, max_points - 1)
+    w = 1.0 / h_std**2
+    sw = np.bincount(group, weights=w, minlength=max_points)
+    keep = sw > 0
+    fm = np.bincount(group, weights=w * f, minlength=max_points)[keep] / sw[keep]
+    hr = np.bincount(group, weights=w * h.real, minlength=max_points)[keep] / sw[keep]
+    hi = np.bincount(group, weights=w * h.imag, minlength=max_points)[keep] / sw[keep]
+    return fm, hr + 1j * hi, 1.0 / np.sqrt(sw[keep])
+
+
+def impedance_sweep(response: FrequencyResponse, shunt_ohm: float, *, source: str = "", max_points: int = 300,
+                    notes=()):
+    """Return the part's impedance ``Z = R (V_in - V_out) / V_out`` as a `Sweep`.
+
+    The output channel is the voltage across the sense resistor `shunt_ohm`
+    at the part's return, the input the drive at its other terminal, so the
+    current is ``V_out / R`` and ``Z = R (1/H - 1)``, with uncertainty
+    ``R h_std / |H|^2`` (first-order propagation; the resistor's own
+    tolerance scales every impedance alike and is not included).
+
+    Parameters
+    ----------
+    response : FrequencyResponse
+        The estimate of ``H = V_out / V_in``.
+    shunt_ohm : float
+        The sense resistor in ohm.
+    source : str
+        The capture file, kept in the sweep.
+    max_points : int
+        The usable bins are averaged into at most this many log-spaced points.
+    notes : sequence of str
+        Notes carried into the sweep.
+
+    Raises
+    ------
+    FitError
+        When the usable band has fewer points than a sweep needs.
+    """
+    from ._sweep import MIN_POINTS, make_sweep
+
+    if not (shunt_ohm > 0 and math.isfinite(shunt_ohm)):
+        raise FitError(f"the sense resistor must be a positive number of ohm, not {shunt_ohm!r}")
+    m = response.usable
+    if int(m.sum()) < MIN_POINTS:
+        raise FitError(
+            f"only {int(m.sum())} usable frequency bins (band {response.band_hz[0]:.4g}-{response.band_hz[1]:.4g} Hz); "
+            f"at least {MIN_POINTS} are needed for the impedance: capture more edges or a longer period")
+    f, h, s = _log_merge(response.f_hz[m], response.h[m], response.h_std[m], max_points)
+    z = shunt_ohm * (1.0 / h - 1.0)
+    sz = shunt_ohm * s / np.abs(h) ** 2
+    notes = list(notes) + [
+        f"impedance from a capture: Z = R (V_in - V_out)/V_out with R = {shunt_ohm:.6g} ohm, "
+        f"{response.n_averages} edge(s), {int(m.sum())} bins averaged into {f.size} points"
+    ]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", MeasurementWarning)
+        return make_sweep(f, z, sz, source=source, connection="impedance", notes=notes,
+                          data_format="oscilloscope capture (H1 of the edges)",
+                          noise_model="Bendat-Piersol H1 random error from coherence and the number of edges, "
+                                      "with a white-noise floor from both channels")
