@@ -643,17 +643,26 @@ def _col_norms(A):
     return n
 
 
-def _r_factor(A):
-    """Upper-triangular R of A = QR (Householder, LAPACK geqrf)."""
-    qr, _, _, info = _geqrf(A)
+def _r_factor(A, overwrite=False):
+    """Upper-triangular R of A = QR (Householder, LAPACK geqrf); A may be
+    destroyed when `overwrite`."""
     m = A.shape[1]
+    if A.shape[0] < m:
+        return np.linalg.qr(A, mode="r")
+    qr, _, _, info = _LAPACK.dgeqrf(A, overwrite_a=overwrite)
     return np.triu(qr[:m, :m])
 
 
-def _geqrf(A):
-    from scipy.linalg import lapack
+class _Lapack:
+    """scipy.linalg.lapack, imported on first use (keeps `import zfit` light)."""
 
-    return lapack.dgeqrf(A)
+    def __getattr__(self, name):
+        from scipy.linalg import lapack
+
+        return getattr(lapack, name)
+
+
+_LAPACK = _Lapack()
 
 
 class _Relocator:
@@ -690,7 +699,7 @@ class _Relocator:
         nfit = npole + self.n_extra
         m = nfit + npole + 1
         pr, pi = phi.real, phi.imag
-        A = np.empty((2 * n, m))
+        A = np.empty((2 * n, m), order="F")
         A[:n, :npole] = pr * self.w
         A[n:, :npole] = pi * self.w
         A[:, npole:nfit] = self.extras
@@ -701,7 +710,7 @@ class _Relocator:
         A[n:, -1] = -self.hw_im[:, 0]
         norms = _col_norms(A)
         A /= norms
-        R = _r_factor(A)
+        R = _r_factor(A, overwrite=True)
         R22 = R[nfit:, nfit:] * norms[None, nfit:]
         crow = np.empty(npole + 1)
         crow[:npole] = pr.sum(axis=0)
@@ -739,17 +748,14 @@ class _Relocator:
         return zeros, res, float(dt)
 
 
-def _pole_change(old, new):
-    if old.size != new.size:
+def _pole_change(oreal, ocplx, nreal, ncplx):
+    """Largest relative movement of a pole between two split pole sets."""
+    if oreal.size != nreal.size or ocplx.size != ncplx.size:
         return math.inf
-    oreal, ocplx = _split_poles(old)
-    nreal, ncplx = _split_poles(new)
-    if oreal.size != nreal.size:
-        return math.inf
+    if oreal.size + ocplx.size == 0:
+        return 0.0
     a = np.concatenate([oreal, ocplx])
     b = np.concatenate([nreal, ncplx])
-    if a.size == 0:
-        return 0.0
     return float(np.max(np.abs(a - b) / np.abs(a)))
 
 
@@ -913,23 +919,22 @@ def _fit_count(s, h, w, flags, w0, fband, n_poles, n_real, init, n_iter, pole_to
     relocate = _Relocator(s, h, w, flags)
     history = list(history)
     converged = preal.size + pcplx.size == 0
-    old = _join_poles(preal, pcplx)
     stalls = settles = 0
     start = len(history)
     for it in range(start + 1, start + n_iter + 1) if not converged else ():
         zeros, res, dt = relocate(preal, pcplx)
-        preal, pcplx = _split_poles(zeros)
+        nreal, ncplx = _split_poles(zeros)
         # A pole exactly at the origin would duplicate the 1/s column.
-        preal = np.where(preal == 0.0, -1e-9, preal)
+        nreal = np.where(nreal == 0.0, -1e-9, nreal)
+        change = _pole_change(preal, pcplx, nreal, ncplx)
+        preal, pcplx = nreal, ncplx
         new = _join_poles(preal, pcplx)
-        change = _pole_change(old, new)
         if history:
             prev = history[-1].rms_normalized_residual
             rel = abs(res - prev) / max(prev, 1e-300)
             stalls = stalls + 1 if stall_tol and rel <= stall_tol else 0
             settles = settles + 1 if (rel <= _SETTLED_RESIDUAL and change <= _SETTLED_POLES) else 0
         history.append(VFIteration(it, new * w0, change, res, dt))
-        old = new
         if change < pole_tol or settles >= 2:
             converged = True
             break
