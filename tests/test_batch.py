@@ -81,11 +81,15 @@ def _parts():
     return parts
 
 
+_SIMULATED = {}
+
+
 def _ngspice_impedance(model, params, f_hz):
     assert model == "inductor"
     f, z = run_ac(f"R1 n1 n2 {params['R_s']:.12g}\nL1 n2 0 {params['L']:.12g}\nC1 n1 0 {params['C_p']:.12g}",
                   F_START, F_STOP, PPD)
     assert f.size == f_hz.size and np.allclose(f, f_hz, rtol=1e-9)
+    _SIMULATED[tuple(sorted(params.items()))] = z
     return z
 
 
@@ -134,10 +138,9 @@ def lot(tmp_path_factory):
     limits.write_text(LIMITS)
     truth = {}
     k1m = int(np.argmin(abs(f - 1e6)))
+    assert f[k1m] == pytest.approx(1e6, rel=1e-9)
     for part in parts:
-        _, z = run_ac(f"R1 n1 n2 {part.params['R_s']:.12g}\nL1 n2 0 {part.params['L']:.12g}\n"
-                      f"C1 n1 0 {part.params['C_p']:.12g}", F_START, F_STOP, PPD)
-        assert f[k1m] == pytest.approx(1e6, rel=1e-9)
+        z = _SIMULATED[tuple(sorted(part.params.items()))]
         truth[f"sweeps/{part.name}"] = (part, *_expected(part, z[k1m]))
     return root, folder, limits, truth
 
@@ -389,3 +392,27 @@ def test_rows_and_lot_without_limits():
     assert [q.name for q in lot.quantities] == ["C", "ESR", "ESL"]
     assert lot.quantities[0].mean == pytest.approx(1e-6, rel=1e-12) and lot.quantities[0].std == 0.0
     assert lot.quantities[0].cpk is None
+
+
+def test_warnings_go_to_their_own_part_with_threaded_workers(tmp_path):
+    """Dask workers run parts in threads; a warning must land on the part that raised it."""
+    from distributed import LocalCluster
+
+    # Impedance-analyser tables (the model function is enough here: this is about warnings).
+    src = tmp_path / "in"
+    parts = [SimulatedPart(f"T{i:02d}.csv", "inductor", {"L": 10e-6, "R_s": 0.2, "C_p": 3e-12}) for i in range(6)]
+    write_simulated_lot(src, parts, np.logspace(3, 8, 101), seed=3)
+    names = [p.name for p in parts]
+    # Two parts with a repeated frequency row: the reader drops it with a warning.
+    for n in (names[1], names[4]):
+        lines = (src / n).read_text().splitlines()
+        (src / n).write_text("\n".join(lines[:30] + [lines[30]] + lines[30:]) + "\n")
+    runs = {"local": run_batch([src], tmp_path / "local", model="inductor", jobs=1, progress=False)}
+    with LocalCluster(n_workers=1, threads_per_worker=3, processes=False, dashboard_address=None) as cluster:
+        runs["dask"] = run_batch([src], tmp_path / "dask", model="inductor", cluster=cluster.scheduler_address,
+                                 progress=False)
+    for tag, res in runs.items():
+        warned = {r.name.rsplit("/", 1)[-1]: r.warnings for r in res.rows}
+        assert [n for n, w in warned.items() if w] == [names[1], names[4]], (tag, warned)
+        assert "repeated frequencies dropped" in warned[names[1]][0]
+    assert (tmp_path / "local" / "summary.csv").read_bytes() == (tmp_path / "dask" / "summary.csv").read_bytes()

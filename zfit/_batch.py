@@ -267,6 +267,8 @@ def _identify_part(task: PartTask) -> PartOutcome:
     seen = []
     for w in caught:
         w = " ".join(w.replace(task.path, task.name).split())
+        # The summary row names the file already.
+        w = w[len(task.name) + 2:] if w.startswith(task.name + ": ") else w
         if w not in seen:
             seen.append(w)
     return PartOutcome(task.index, task.name, result, error, tuple(seen), False, time.perf_counter() - t0)
@@ -1106,7 +1108,7 @@ def _run_dask(tasks, address, on_done):
         raise ZfitInputError(
             "--cluster needs dask.distributed: pip install 'zfit-passives[cluster]'") from None
     try:
-        client = Client(address, timeout=30, set_as_default=False)
+        client = Client(address, timeout=10, set_as_default=False)
     except (OSError, TimeoutError, ValueError) as exc:
         raise ZfitInputError(f"cannot reach the Dask scheduler at {address}: {exc}") from None
     try:
@@ -1213,6 +1215,8 @@ def run_batch(
     items = expand_inputs(inputs, exclude=out)
     if model is None:
         model = limits.model if limits is not None and limits.model else "auto"
+    if model not in ("auto", "inductor", "capacitor", "rational"):
+        raise ZfitInputError(f"model {model!r}: use auto, inductor, capacitor or rational")
     if plot_format not in ("png", "svg"):
         raise ZfitInputError(f"plot format {plot_format!r}: use png or svg")
     read = read or ReadOptions()
