@@ -228,3 +228,37 @@ def test_port_extension_refuses_what_it_cannot_do(sims):
         port_extended(dataclasses.replace(sw, z_ohm=comp[0]), 10e-12)
     with pytest.raises(ZfitInputError, match="non-negative"):
         port_extended(sw, -1e-12)
+
+
+def test_identify_through_the_pi_board_from_the_command_line(sims, rng, tmp_path):
+    # End to end: files of the four measurements, `zfit identify` with
+    # open/short/load compensation, the part's ngspice values back within
+    # 4 of their reported standard uncertainties (1 uH, 0.2 ohm, 2 pF).
+    import json
+
+    from typer.testing import CliRunner
+
+    from zfit._cli import app
+
+    f = sims["f"]
+    paths = {}
+    for name in ("open", "short", "load", "part"):
+        _, _, s = noisy(sims["pi", name], rng)
+        paths[name] = write_s1p(tmp_path / f"{name}.s1p", f, s)
+    out = tmp_path / "part.json"
+    args = ["identify", str(paths["part"]), "--model", "inductor", "--open", str(paths["open"]),
+            "--short", str(paths["short"]), "--load", str(paths["load"]), "--load-value", "50", "--json", str(out)]
+    r = CliRunner().invoke(app, args)
+    assert r.exit_code == 0, r.output
+    params = json.loads(out.read_text())["parameters"]
+    for key, true in (("L", 1e-6), ("R_s", 0.2), ("C_p", 2e-12)):
+        assert abs(params[key]["value"] - true) < 4 * params[key]["std"], (key, params[key])
+    # Uncompensated, the pads' 4.5 pF land in C_p.
+    r = CliRunner().invoke(app, ["identify", str(paths["part"]), "--model", "inductor", "--json", str(tmp_path / "raw.json")])
+    raw = json.loads((tmp_path / "raw.json").read_text())["parameters"]
+    assert raw["C_p"]["value"] > 5e-12
+    # A narrower fixture band is a one-line error with exit status 2.
+    inside = (f >= 1e4 * (1 - 1e-9)) & (f <= 1e7 * (1 + 1e-9))
+    narrow = write_s1p(tmp_path / "narrow_open.s1p", f[inside], s_from_impedance(sims["pi", "open"], "reflection")[inside])
+    r = CliRunner().invoke(app, ["info", str(paths["part"]), "--open", str(narrow), "--short", str(paths["short"])])
+    assert r.exit_code == 2 and "narrow_open.s1p" in r.output and "overlap in 10kHz to 10MHz" in r.output

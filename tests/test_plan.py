@@ -113,7 +113,7 @@ def test_plan_json_and_text_from_the_cli(tmp_path):
     r = CliRunner().invoke(app, ["plan", "capacitor", "--C", "100n", "--ESR", "5m", "--ESL", "500p",
                                  "--band", "1k:1G", "--points", "101", "--json", str(out)])
     assert r.exit_code == 0, r.output
-    assert "recommended: shunt-thru" in r.output
+    assert "recommended: shunt-thru\n" in r.output
     assert "below resolution, <" in r.output  # series-thru cannot see 5 milliohm
     d = json.loads(out.read_text())
     assert d["schema"] == "zfit.plan/1" and d["recommended"] == "shunt-thru"

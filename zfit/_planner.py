@@ -229,6 +229,8 @@ class Plan:
         The best connection.
     reason : str
         Why, in one sentence with numbers.
+    notes : tuple of str
+        The assumptions the plan rests on, in words.
     """
 
     model: str
@@ -456,6 +458,11 @@ def plan_measurement(
         reference_ohm=float(reference_ohm), connections=tuple(plans),
         ranking=tuple(c.connection for c in ranked), recommended=best.connection,
         reason=_reason(ranked),
+        notes=(
+            f"network analyser noise {noise.describe('S')}; analyser table stated accuracy {table_accuracy.describe('Z')}",
+            "expected uncertainty: Cramer-Rao bound (inverse Fisher information) at the planned values over the band "
+            "the identification fitted; the circuit is taken as exact and calibration errors are not included",
+        ),
     )
 
 
@@ -466,7 +473,7 @@ def _rel_text(p: PlannedParameter) -> str:
 
 
 def _percent(x: float) -> str:
-    return f"{100 * x:.2g} %" if x < 10 else f"{100 * x:.0f} %"
+    return f"{100 * x:.2g} %" if x < 1 else f"{100 * x:.0f} %"
 
 
 def _reason(ranked) -> str:
@@ -503,24 +510,29 @@ def format_plan(plan: Plan) -> str:
         lines.append(f"noise, {c.label}: sigma({on}) = {c.noise.rel:g} |{on}| + {c.noise.floor:g}{unit}")
     lines.append("")
     lines.append("expected standard uncertainty (relative) per connection")
-    width = 28
-    lines.append("parameter".ljust(10) + "".join(c.label.ljust(width) for c in plan.connections))
+    cells = {}
     for k in plan.params:
-        row = k.ljust(10)
         for c in plan.connections:
             p = c.parameters[k]
             cell = f"+-{format_eng(p.std, p.unit)} ({_percent(p.relative_std)})" if math.isfinite(p.std) else "not determined"
             if not p.resolved and p.resolution_limit is not None:
-                kind = ">" if k in ("R_p", "R_leak") else "<"
-                cell = f"below resolution, {kind} {format_eng(p.resolution_limit, p.unit)}" if kind == "<" else \
-                    f"not resolved, {kind} {format_eng(p.resolution_limit, p.unit)}"
+                if k in ("R_p", "R_leak"):
+                    cell = f"not resolved, > {format_eng(p.resolution_limit, p.unit)}"
+                else:
+                    cell = f"below resolution, < {format_eng(p.resolution_limit, p.unit)}"
             elif not p.resolved:
                 cell = "not resolved"
-            row += cell.ljust(width)
+            cells[k, c.connection] = cell
+    widths = {c.connection: 2 + max([len(c.label)] + [len(cells[k, c.connection]) for k in plan.params])
+              for c in plan.connections}
+    lines.append(("parameter".ljust(10) + "".join(c.label.ljust(widths[c.connection]) for c in plan.connections)).rstrip())
+    for k in plan.params:
+        row = k.ljust(10) + "".join(cells[k, c.connection].ljust(widths[c.connection]) for c in plan.connections)
         lines.append(row.rstrip())
     for c in plan.connections:
         if c.error:
             lines.append(f"{c.label}: identification failed: {c.error}")
     lines.append("")
-    lines.append(f"recommended: {label(plan.recommended)}: {plan.reason}")
+    lines.append(f"recommended: {label(plan.recommended)}")
+    lines.append(f"why: {plan.reason}")
     return "\n".join(lines)
