@@ -70,3 +70,21 @@ def test_reflection_of_milliohms_is_noise_dominated():
     # |dZ/dS| = 2 Z0 / |1 - S|^2 ~ 25 ohm at S = -1, times sigma(S) = 1e-3 + 1e-5
     # -> 25.25 milliohm, five times the part's value.
     assert sig[0] == pytest.approx(0.02525, rel=1e-3)
+
+
+def test_passivity_check_does_not_reject_honest_noise(rng):
+    # A lossless capacitor (Re Z = 0) measured with circular Gaussian noise:
+    # Re Z is negative at half the points, by chance. Over 200 sweeps of 801
+    # points, the chance of a false rejection at k = sqrt(2 ln N) + 2 ~ 5.66 is
+    # about 801 * P(N(0,1) < -5.66) ~ 6e-6 per sweep (normal tail, common practice).
+    f = np.logspace(3, 8, 801)
+    z0 = 1 / (2j * np.pi * f * 100e-9)
+    sigma = 1e-3 * np.abs(z0)
+    rejected = 0
+    for _ in range(200):
+        noise = (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) * sigma / np.sqrt(2)
+        try:
+            make_sweep(f, z0 + noise, sigma, source="mc")
+        except ZfitInputError:
+            rejected += 1
+    assert rejected == 0

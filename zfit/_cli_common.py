@@ -108,7 +108,7 @@ ConnectionOpt = Annotated[
 ]
 NoiseRelOpt = Annotated[
     Optional[float],
-    typer.Option("--noise-rel", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/noise.md."),
+    typer.Option("--noise-rel", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/reading.md."),
 ]
 NoiseFloorOpt = Annotated[
     Optional[float],
