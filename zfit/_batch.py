@@ -299,6 +299,11 @@ def _reusable(task: PartTask, force: bool) -> dict | None:
         return None
     if not isinstance(result, dict) or result.get("schema") != "zfit.identify/1":
         return None
+    from ._version import __version__
+
+    # Another version of zfit may identify differently: its result is redone.
+    if result.get("zfit_version", __version__) != __version__:
+        return None
     if task.model != "auto" and result.get("model") != task.model:
         return None
     have = [s.get("f_hz") for s in result.get("spot") or () if isinstance(s, dict)]
@@ -895,6 +900,7 @@ class Progress:
         self.tty = bool(getattr(self.stream, "isatty", lambda: False)()) if tty is None else tty
         self.interval = interval
         self.done = 0
+        self.skipped = 0
         self.errors = 0
         self.t0 = time.monotonic()
         self._last = -1e9
@@ -902,7 +908,8 @@ class Progress:
 
     def _status(self) -> str:
         elapsed = time.monotonic() - self.t0
-        rate = self.done / elapsed if elapsed > 0 else 0.0
+        # Parts reused from an earlier run take no time: they do not count in the rate.
+        rate = (self.done - self.skipped) / elapsed if elapsed > 0 else 0.0
         left = self.total - self.done
         eta = left / rate if rate > 0 else None
         eta_text = "--:--" if eta is None else time.strftime("%H:%M:%S" if eta >= 3600 else "%M:%S", time.gmtime(eta))
@@ -943,6 +950,17 @@ class Progress:
             self._last = now
             self._write(f"zfit batch: {self._status()}\n")
 
+    def skip(self, n: int):
+        """Count `n` parts whose earlier result is reused.
+
+        Parameters
+        ----------
+        n : int
+            How many.
+        """
+        self.skipped += n
+        self.update(n)
+
     def message(self, text: str):
         """Print a line (a bad part, say) without breaking the bar.
 
@@ -967,6 +985,9 @@ class Progress:
 
 class _Quiet:
     def update(self, n=1, errors=0, force=False):
+        pass
+
+    def skip(self, n):
         pass
 
     def message(self, text):
@@ -1243,7 +1264,7 @@ def run_batch(
         else:
             outcomes[t.index] = PartOutcome(t.index, t.name, stored, skipped=True)
     if outcomes:
-        progress.update(len(outcomes))
+        progress.skip(len(outcomes))
 
     def on_done(outs):
         bad = 0
