@@ -93,7 +93,7 @@ def touchstone_text(f_hz, z_ohm, *, reference_ohm: float = 50.0, comments: Seque
         raise ZfitInputError(f"reference impedance {reference_ohm!r} is not a positive number")
     s11 = (z - reference_ohm) / (z + reference_ohm)
     net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="hz"), s=s11.reshape(-1, 1, 1), z0=reference_ohm, name="zfit")
-    net.comments = "\n".join(c.encode("ascii", "replace").decode("ascii") for c in comments)
+    net.comments = "\n".join(c.replace("±", "+/-").encode("ascii", "replace").decode("ascii") for c in comments)
     return net.write_touchstone(
         return_string=True, form="ri", skrf_comment=False,
         format_spec_A="{:.12g}", format_spec_B="{:.12g}", format_spec_freq="{:.12g}",

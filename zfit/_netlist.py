@@ -440,7 +440,14 @@ def _header(title: str, header: Mapping[str, str] | None) -> list[str]:
         for k, part in enumerate(str(value).splitlines() or [""]):
             lines.append(f"* {key + ':' if k == 0 else ' ' * (len(key) + 1)} {part}".rstrip())
     lines.append("* Plain R, L, C elements only; values in ohm, henry, farad (SPICE suffixes, meg = 1e6).")
-    return lines
+    # Some simulators reject non-ASCII bytes even in comments.
+    return [_ascii(line) for line in lines]
+
+
+def _ascii(text: str) -> str:
+    for a, b in (("±", "+/-"), ("µ", "u"), ("Ω", "ohm"), ("σ", "sigma"), ("²", "^2"), ("°", " deg"), ("—", "-"), ("–", "-")):
+        text = text.replace(a, b)
+    return text.encode("ascii", "replace").decode("ascii")
 
 
 def _subckt_text(name: str, title: str, header, elements: Sequence[NetlistElement]) -> str:

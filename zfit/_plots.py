@@ -146,7 +146,11 @@ _RC = {
     "ytick.minor.width": 0.4,
     "xtick.direction": "out",
     "ytick.direction": "out",
-    "legend.frameon": False,
+    "legend.frameon": True,
+    "legend.framealpha": 0.85,
+    "legend.facecolor": "white",
+    "legend.edgecolor": "none",
+    "legend.fancybox": False,
     "legend.fontsize": 7.5,
     "lines.linewidth": 1.2,
     "svg.fonttype": "none",
@@ -276,7 +280,7 @@ def plot_sweep(
     f = np.asarray(f_hz, dtype=float)
     z = np.asarray(z_ohm, dtype=complex)
     sig = np.asarray(sigma_ohm, dtype=float)
-    fig, (ax_m, ax_p, ax_r) = _figure(width_in, height_in, [3.0, 1.6, 1.4])
+    fig, (ax_m, ax_p, ax_r) = _figure(width_in, height_in, [3.2, 1.4, 1.3])
     mag = np.abs(z)
     s_mag = sig / math.sqrt(2.0)
     lo = np.maximum(mag - 2 * s_mag, mag * 1e-3)
@@ -318,10 +322,10 @@ def plot_sweep(
     _style_axis(ax_p)
     _style_axis(ax_r, xunit="Hz", ylog=True)
     ax_m.set_ylabel("|Z|")
-    ax_p.set_ylabel("phase of Z (°)")
+    ax_p.set_ylabel("phase (°)")
     ax_p.set_ylim(-100, 100)
     ax_p.set_yticks([-90, -45, 0, 45, 90])
-    ax_r.set_ylabel("residual |ΔZ| / σ")
+    ax_r.set_ylabel("|ΔZ| / σ")
     ax_r.set_xlabel("frequency")
     rmax = [np.max(np.abs(m[1] - z) / sig) for m in models] or [10.0]
     ax_r.set_ylim(max(min(1e-2, 0.5 * min(np.min(np.abs(m[1] - z) / sig) for m in models) if models else 1e-2), 1e-3),
@@ -329,7 +333,9 @@ def plot_sweep(
     for ax in (ax_m, ax_p):
         ax.tick_params(labelbottom=False)
     ax_m.set_xlim(f[0], f[-1])
-    ax_m.legend(loc="best", handlelength=2.6)
+    # Above the panels, so that it never hides the data.
+    handles, labels = ax_m.get_legend_handles_labels()
+    fig.legend(handles, labels, loc="outside upper center", ncols=3, handlelength=2.6, frameon=False)
     if title:
         fig.suptitle(title, x=0.01, ha="left", fontsize=9.5)
     return fig
@@ -343,6 +349,7 @@ def plot_q(
     q_std=None,
     q_circuit=None,
     q_textbook=None,
+    q_rational=None,
     peak: tuple[float, float] | None = None,
     f_max_hz: float | None = None,
     title: str = "",
@@ -359,12 +366,16 @@ def plot_q(
         Q of the measured part, |X|/R at each point (points with R <= 0 are
         left out of the plot: their Q is undefined).
     q_std : array_like, optional
-        Standard uncertainty of `q_measured`; a +-2 sigma band is drawn.
+        Standard uncertainty of `q_rational` if given, else of `q_measured`;
+        a +-2 sigma band is drawn around that curve.
     q_circuit : array_like, optional
         |X|/R of the equivalent circuit's impedance (follows the resonance).
     q_textbook : array_like, optional
         omega L / R_s of the circuit's elements (the textbook definition,
         which ignores C_p and keeps rising).
+    q_rational : array_like, optional
+        |X|/R of the rational model: the measurement without its noise.
+        When given, `q_measured` is drawn as dots and this as the line.
     peak : (float, float), optional
         (f_hz, Q) of the peak to mark.
     f_max_hz : float, optional
@@ -378,46 +389,59 @@ def plot_q(
     Returns
     -------
     matplotlib.figure.Figure
-        Artists' gids: ``q-measured``, ``q-band``, ``q-circuit``, ``q-textbook``, ``q-peak``.
+        Artists' gids: ``q-measured``, ``q-band``, ``q-rational``, ``q-circuit``,
+        ``q-textbook``, ``q-peak``.
     """
     f = np.asarray(f_hz, dtype=float)
     q = np.asarray(q_measured, dtype=float)
     keep = np.ones(f.size, dtype=bool) if f_max_hz is None else f <= f_max_hz
     if keep.sum() < 2:
         keep[:] = True
+
+    def cut(a):
+        return None if a is None else np.asarray(a, dtype=float)[keep]
+
     f, q = f[keep], q[keep]
-    q_std = None if q_std is None else np.asarray(q_std, dtype=float)[keep]
-    q_circuit = None if q_circuit is None else np.asarray(q_circuit, dtype=float)[keep]
-    q_textbook = None if q_textbook is None else np.asarray(q_textbook, dtype=float)[keep]
+    q_std, q_circuit, q_textbook, q_rational = cut(q_std), cut(q_circuit), cut(q_textbook), cut(q_rational)
     fig, (ax,) = _figure(width_in, height_in, [1.0])
     ok = np.isfinite(q) & (q > 0)
     qm = np.where(ok, q, np.nan)
     if q_std is not None:
-        s = np.asarray(q_std, dtype=float)
-        lo = np.where(ok, np.maximum(q - 2 * s, q * 1e-2), np.nan)
-        b = ax.fill_between(f, lo, np.where(ok, q + 2 * s, np.nan), color=BAND, lw=0, label="measured ±2σ", zorder=1)
+        c = q if q_rational is None else q_rational
+        okc = np.isfinite(c) & (c > 0)
+        lo = np.where(okc, np.maximum(c - 2 * q_std, c * 1e-2), np.nan)
+        b = ax.fill_between(f, lo, np.where(okc, c + 2 * q_std, np.nan), color=BAND, lw=0, label="measured ±2σ", zorder=1)
         b.set_gid("q-band")
-    ax.plot(f, qm, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=_markevery(f.size),
-            label="measured |X|/R", gid="q-measured", zorder=3)
+    if q_rational is None:
+        ax.plot(f, qm, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=_markevery(f.size),
+                label="measured |X|/R", gid="q-measured", zorder=3)
+    else:
+        # Raw points as dots (noisy where R is small), the smoothed measurement as the line.
+        ax.plot(f, qm, ls="none", color="#777777", marker=".", ms=2.0, label="measured |X|/R, each point",
+                gid="q-measured", zorder=2)
+        ax.plot(f, q_rational, color=INK, lw=1.1, label="measured |X|/R, rational model", gid="q-rational", zorder=3)
     if q_circuit is not None:
-        ax.plot(f, np.asarray(q_circuit, dtype=float), color=CIRCUIT, lw=1.5, label="circuit |X|/R", gid="q-circuit", zorder=4)
+        ax.plot(f, q_circuit, color=CIRCUIT, lw=1.5, ls=(0, (8, 2)), label="circuit |X|/R", gid="q-circuit", zorder=4)
     if q_textbook is not None:
-        ax.plot(f, np.asarray(q_textbook, dtype=float), color=RATIONAL, ls=(0, (5, 2.5)), lw=1.2,
+        ax.plot(f, q_textbook, color=RATIONAL, ls=(0, (2, 2)), lw=1.2,
                 label="ωL/R_s of the circuit", gid="q-textbook", zorder=4)
     if peak is not None and all(map(math.isfinite, peak)):
         ax.plot([peak[0]], [peak[1]], ls="none", marker="v", ms=6, color=INK, gid="q-peak", zorder=5)
         right = math.log(peak[0] / f[0]) > 0.6 * math.log(f[-1] / f[0])
         qtext = f"{peak[1]:.0f}" if peak[1] >= 100 else f"{peak[1]:.3g}"
-        ax.annotate(f"peak Q {qtext} at {eng_tick(peak[0], 'Hz', 4)}", xy=peak, xytext=(-6 if right else 6, 5),
-                    textcoords="offset points", ha="right" if right else "left", fontsize=7.5)
+        ax.annotate(f"peak Q {qtext} at {eng_tick(peak[0], 'Hz', 4)}", xy=peak, xytext=(-6 if right else 6, 6),
+                    textcoords="offset points", ha="right" if right else "left", fontsize=7.5,
+                    bbox={"boxstyle": "square,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.85})
     _style_axis(ax, xunit="Hz", ylog=True)
     from matplotlib.ticker import FuncFormatter
 
     ax.yaxis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
-    finite = qm[np.isfinite(qm)]
+    # Scale to the smooth curves where there are any: raw Q spikes where R is noise.
+    ref = [a for a in (q_rational, q_circuit) if a is not None] or [qm]
+    finite = np.concatenate([a[np.isfinite(a) & (a > 0)] for a in ref])
     if finite.size:
-        top = max(float(np.nanmax(finite)), peak[1] if peak else 0.0)
-        ax.set_ylim(max(float(np.nanmin(finite)) * 0.5, top * 1e-6), top * 3)
+        top = max(float(np.max(finite)), peak[1] if peak else 0.0)
+        ax.set_ylim(max(float(np.min(finite)) * 0.5, top * 1e-6), top * 4)
     ax.set_xlim(f[0], f[-1])
     ax.set_ylabel("quality factor Q")
     ax.set_xlabel("frequency")
@@ -487,6 +511,19 @@ def plot_esr_d(
         ax_d.plot(f, np.asarray(d_circuit, dtype=float), color=CIRCUIT, lw=1.5, label="circuit", gid="d-circuit", zorder=4)
     _style_axis(ax_e, yunit="ohm", ylog=True)
     _style_axis(ax_d, xunit="Hz", ylog=True)
+    # Scale to the part, not to the noise of points where R is tiny.
+    for ax, meas, model in ((ax_e, esr, esr_circuit), (ax_d, d, d_circuit)):
+        good = meas[np.isfinite(meas) & (meas > 0)]
+        ref = [np.percentile(good, [10, 99])] if good.size else []
+        if model is not None:
+            m = np.asarray(model, dtype=float)
+            m = m[np.isfinite(m) & (m > 0)]
+            if m.size:
+                ref.append([m.min(), m.max()])
+        if ref:
+            lo = min(r[0] for r in ref)
+            hi = max(r[1] for r in ref)
+            ax.set_ylim(lo / 3, hi * 3)
     ax_e.tick_params(labelbottom=False)
     ax_e.set_ylabel("ESR (Re Z)")
     ax_d.set_ylabel("D = tan δ")

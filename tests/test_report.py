@@ -1,0 +1,193 @@
+"""The one-page HTML report and `write_outputs`: well-formed, self-contained,
+holds the values, renders in headless Chromium; every output file written
+atomically and never over a file without force."""
+
+import html.parser
+import os
+import re
+import shutil
+import subprocess
+import xml.etree.ElementTree as ET
+
+import numpy as np
+import pytest
+
+from zfit._errors import OutputExistsError, ZfitInputError
+from zfit._outputs import identification_report, pretty, pretty_std, write_outputs
+from zfit._report import report_html
+
+
+def _sweep(kind: str, seed: int):
+    from zfit._sweep import make_sweep
+
+    rng = np.random.default_rng(seed)
+    f = np.geomspace(1e4, 3e8, 301)
+    s = 2j * np.pi * f
+    if kind == "inductor":
+        z = 1 / (1 / (0.12 + s * 10e-6) + s * 5e-12)
+    else:
+        z = 0.02 + s * 1.2e-9 + 1 / (s * 47e-9)
+    sig = 2e-3 * np.abs(z) + 1e-3
+    noisy = z + sig / np.sqrt(2) * (rng.normal(size=f.size) + 1j * rng.normal(size=f.size))
+    return make_sweep(f, noisy, sig, source=f"bench/{kind}_part.csv", connection="impedance",
+                      data_format="test table", noise_model="0.2 % of |Z| + 1 mohm")
+
+
+@pytest.fixture(scope="module")
+def inductor():
+    import zfit
+
+    return zfit.identify(_sweep("inductor", 1), at=(1e5, 1e6))
+
+
+@pytest.fixture(scope="module")
+def capacitor():
+    import zfit
+
+    return zfit.identify(_sweep("capacitor", 2), at=(1e5,))
+
+
+class _Balance(html.parser.HTMLParser):
+    """Checks that every element is closed in order (void elements excepted)."""
+
+    VOID = {"meta", "br", "hr", "img", "link", "input"}
+
+    def __init__(self):
+        super().__init__()
+        self.stack, self.errors = [], []
+
+    def handle_starttag(self, tag, attrs):
+        if tag not in self.VOID:
+            self.stack.append(tag)
+
+    def handle_startendtag(self, tag, attrs):
+        pass
+
+    def handle_endtag(self, tag):
+        if not self.stack or self.stack[-1] != tag:
+            self.errors.append(f"unexpected </{tag}> with open {self.stack[-3:]}")
+        else:
+            self.stack.pop()
+
+
+@pytest.fixture(scope="module")
+def page(inductor):
+    return report_html(identification_report(inductor, ["zfit", "identify", "bench/inductor_part.csv", "--report", "r.html"]))
+
+
+def test_report_is_well_formed(page):
+    root = ET.fromstring(page.encode("utf-8"))  # XHTML-compatible: an XML parser reads it
+    assert root.tag == "html"
+    p = _Balance()
+    p.feed(page)
+    p.close()
+    assert p.errors == [] and p.stack == []
+
+
+def test_report_is_self_contained(page):
+    # No network and no file references: no URLs, no src=, no @import, no url() but fragment ones.
+    assert not re.search(r"https?://", page)
+    assert "src=" not in page
+    assert "@import" not in page
+    assert not re.search(r"url\((?!#)", page)
+    hrefs = re.findall(r'href="([^"]*)"', page)
+    assert hrefs and all(h.startswith("#") for h in hrefs)
+    ids = re.findall(r'\sid="([^"]+)"', page)
+    assert len(ids) == len(set(ids)), "inline SVGs must not share element ids"
+    assert page.count("<svg") == 2  # impedance and Q
+    assert "@page" in page and "@media print" in page
+
+
+def test_report_holds_the_values(page, inductor):
+    L = inductor.parameters["L"]
+    assert pretty_std(L.value, L.std, "H") in page
+    assert "10.0" in pretty_std(L.value, L.std, "H")  # truth 10 uH, within its uncertainty
+    assert abs(L.value - 10e-6) < 3 * L.std + 1e-9
+    srf = inductor.srf
+    assert html_text(pretty_std(srf.value_hz, srf.std_hz, "Hz")) in page
+    assert "zfit identify bench/inductor_part.csv --report r.html" in page
+    assert "Spot readouts" in page and "100 kHz" in page and "1 MHz" in page
+    assert "band of validity" in page
+
+
+def html_text(text):
+    import html as h
+
+    return h.escape(text)
+
+
+def test_pretty_formats():
+    assert pretty(4.7e-6, "H") == "4.7 µH"
+    assert pretty(0.025, "ohm") == "25 mΩ"
+    assert pretty_std(23.21505e6, 320.0, "Hz") == "23.21505 ± 0.00032 MHz"
+    assert pretty_std(10.00032e-6, 3.7e-10, "H") == "10.00032 ± 0.00037 µH"
+
+
+def _chromium():
+    exe = shutil.which("chromium") or shutil.which("chromium-browser")
+    if exe is None:
+        if os.environ.get("ZFIT_REQUIRE_CHROMIUM") == "1":
+            pytest.fail("chromium is required (ZFIT_REQUIRE_CHROMIUM=1) but not on PATH")
+        pytest.skip("chromium not installed")
+    return exe
+
+
+def test_report_renders_in_headless_chromium(page, tmp_path):
+    exe = _chromium()
+    path = tmp_path / "report.html"
+    path.write_text(page, encoding="utf-8")
+    png = tmp_path / "report.png"
+    cmd = [exe, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+           "--disable-background-networking", "--disable-component-update", "--disable-sync",
+           f"--user-data-dir={tmp_path / 'profile'}", f"--screenshot={png}", "--window-size=1240,1754",
+           path.as_uri()]
+    subprocess.run(cmd, capture_output=True, timeout=120, check=False)
+    assert png.exists() and png.stat().st_size > 50_000
+    import matplotlib.image
+
+    img = matplotlib.image.imread(str(png))[..., :3]
+    dark = (img.mean(axis=2) < 0.5).mean()
+    # Text and plots cover a few per cent of the page; blank would be 0.
+    assert 0.01 < dark < 0.5
+    # Content reaches well down the page (not a one-line error page).
+    rows = np.flatnonzero((img.mean(axis=2) < 0.5).any(axis=1))
+    assert rows.max() - rows.min() > 900
+
+
+def test_write_outputs_writes_each_file(tmp_path, inductor):
+    import skrf
+
+    paths = write_outputs(
+        inductor, plot=tmp_path / "p.svg", netlist=tmp_path / "m.cir", touchstone=tmp_path / "m.s1p",
+        touchstone_grid="10k:300M:51", report=tmp_path / "r.html", command="zfit identify x",
+    )
+    names = [p.name for p in paths]
+    assert names == ["p.svg", "p-q.svg", "m.cir", "m.s1p", "r.html"]
+    ET.fromstring((tmp_path / "p.svg").read_bytes())
+    net = skrf.Network(str(tmp_path / "m.s1p"))
+    np.testing.assert_allclose(net.z[:, 0, 0], inductor.impedance(net.f), rtol=1e-9)
+    text = (tmp_path / "m.cir").read_text()
+    assert ".subckt inductor_part a b" in text and "band of validity" in text
+    assert text.isascii()
+    # Nothing is replaced without force, and nothing at all is written then.
+    (tmp_path / "new.png").unlink(missing_ok=True)
+    with pytest.raises(OutputExistsError):
+        write_outputs(inductor, plot=tmp_path / "new.png", report=tmp_path / "r.html")
+    assert not (tmp_path / "new.png").exists()
+    write_outputs(inductor, report=tmp_path / "r.html", force=True)
+
+
+def test_write_outputs_rejects_unknown_extension(tmp_path, inductor):
+    with pytest.raises(ZfitInputError, match=r"netlist file must end in"):
+        write_outputs(inductor, netlist=tmp_path / "m.txt")
+    with pytest.raises(ZfitInputError, match=r"plot file must end in \.png or \.svg"):
+        write_outputs(inductor, plot=tmp_path / "m.pdf")
+
+
+def test_capacitor_report_has_losses_plot(capacitor, tmp_path):
+    paths = write_outputs(capacitor, plot=tmp_path / "c.png", report=tmp_path / "c.html")
+    assert [p.name for p in paths] == ["c.png", "c-esr-d.png", "c.html"]
+    page = (tmp_path / "c.html").read_text()
+    assert "Losses" in page and "C_eff" in page
+    C = capacitor.parameters["C"]
+    assert abs(C.value - 47e-9) < 3 * C.std
