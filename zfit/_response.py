@@ -67,6 +67,10 @@ class FrequencyResponse:
         What estimated the response, in words.
     dc_gain : float
         Ratio of the output step to the input step (the bin at 0 Hz).
+    nyquist_level_db : float
+        Highest input level above 0.4 times the sample rate that stands clear
+        of the noise (dB relative to the peak; -inf when none does): high
+        values mean edges faster than the sampling, hence aliasing.
     """
 
     f_hz: np.ndarray
@@ -80,6 +84,7 @@ class FrequencyResponse:
     segment_s: float
     method: str
     dc_gain: float
+    nyquist_level_db: float = float("-inf")
 
     def __post_init__(self):
         for name in ("f_hz", "h", "h_std", "coherence", "input_level_db", "usable"):
@@ -271,8 +276,12 @@ def edge_response(
             h_std = std_noise
             coh = np.ones_like(coh)
         # The input's own excitation, above its noise floor, relative to its peak.
-        excess = np.maximum(gxx - dvar * noise_x**2, 1e-30 * np.max(gxx))
+        floor = dvar * noise_x**2
+        excess = np.maximum(gxx - floor, 1e-30 * np.max(gxx))
         level = 10.0 * np.log10(excess / np.max(excess[1:])) if nbin > 1 else np.zeros(nbin)
+        # Input energy near Nyquist that stands clear of the noise floor's own scatter.
+        near = (f > 0.4 / dt) & (gxx - floor > 4.0 * floor / math.sqrt(n_d) + 1e-12 * np.max(gxx))
+        nyquist_db = float(np.max(level[near])) if (x is not None and near.any()) else float("-inf")
     dc_gain = dc_out / dc_in if dc_in != 0 else float("nan")
     # Drop the DC bin: a Sweep needs positive frequencies.
     f, h, h_std, coh, level = f[1:], h[1:], h_std[1:], coh[1:], level[1:]
@@ -280,7 +289,7 @@ def edge_response(
     usable, band = usable_band(f, h, h_std, coh, level, n_d, coherence_min=coherence_min, energy_min_db=energy_min_db)
     method = (f"H1 = G_xy/G_xx over {n_d} edge segment(s) of {seg_len} samples" if x is not None else
               f"output against an ideal step between the measured levels, {n_d} edge segment(s) of {seg_len} samples")
-    return FrequencyResponse(f, h, h_std, coh, level, usable, band, n_d, seg_len * dt, method, dc_gain)
+    return FrequencyResponse(f, h, h_std, coh, level, usable, band, n_d, seg_len * dt, method, dc_gain, nyquist_db)
 
 
 def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence_min=DEFAULT_COHERENCE_MIN,

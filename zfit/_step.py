@@ -227,12 +227,20 @@ def matrix_pencil(y, dt: float, *, noise: float = 0.0, max_order: int = 12):
     rows = n - L
     idx = np.arange(rows)[:, None] + np.arange(L + 1)[None, :]
     Y = y[idx]
-    _, s, vh = np.linalg.svd(Y, full_matrices=False)
+    # The right singular vectors and singular values of Y from the eigen-
+    # decomposition of the small Gram matrix Y^T Y: several times faster than
+    # the SVD of Y, and exact enough for singular values above 1e-7 of the largest.
+    lam, vec = np.linalg.eigh(Y.T @ Y)
+    order = np.argsort(lam)[::-1]
+    s = np.sqrt(np.maximum(lam[order], 0.0))
+    vh = vec[:, order].T
     floor = 2.0 * noise * (math.sqrt(rows) + math.sqrt(L + 1))
-    m = int(np.count_nonzero(s > max(floor, s[0] * 1e-9)))
+    m = int(np.count_nonzero(s > max(floor, s[0] * 1e-7)))
     m = int(np.clip(m, 1, min(max_order, L - 1)))
     v = vh[:m]
-    z = np.linalg.eigvals(v[:, 1:] @ np.linalg.pinv(v[:, :-1]))
+    v1, v2 = v[:, :-1], v[:, 1:]
+    # v2 pinv(v1) with pinv(v1) = v1^T (v1 v1^T)^-1 (v1 has full row rank).
+    z = np.linalg.eigvals(np.linalg.solve((v1 @ v1.T).T, (v2 @ v1.T).T).T)
     k = np.arange(n)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         V = z[None, :] ** k[:, None]
@@ -1013,9 +1021,20 @@ def analyse_capture(
                     tau0 = max(transition / LN9, 3.0 * dt)
                 else:
                     tau0 = max(tau0, transition / LN9, 3.0 * dt)
+            follows = False
             if x is not None:
                 resp = two_channel_response()
-            tc = _time_constant(x, y, starts, pol, seg_len, edge_frac, t10, good, tau0, dt, in_lv, out_lv, warn, resp)
+                in_dur = (in_t90 - in_t10)[good]
+                in_dur = in_dur[np.isfinite(in_dur)]
+                # An output as fast as its input has no time constant of its own to resolve.
+                follows = in_dur.size > 0 and transition < 1.5 * float(np.median(in_dur)) * dt
+            if follows:
+                tc = (None, None, "", None, None)
+                notes.append("the output follows the input's edge (10-90 % within 1.5 times the input's): "
+                             "no time constant longer than the input's transition to fit")
+            else:
+                tc = _time_constant(x, y, starts, pol, seg_len, edge_frac, t10, good, tau0, dt, in_lv, out_lv, warn,
+                                    resp)
             tau, tau_std, tau_method, fit_curve, extra = tc
             if x is None and extra is not None:
                 step_at, mid1 = extra
@@ -1029,7 +1048,7 @@ def analyse_capture(
         arr_avg = _output_edges(avg_y[None, :], out_lv, 0)[3][0]
         if arr_avg > 0:
             groups = []
-            ng = min(8, n_edges // 2)
+            ng = min(6, n_edges // 2)
             if ng >= 3:
                 gsum = [np.zeros(length - arr_avg) for _ in range(ng)]
                 gcnt = [0] * ng
@@ -1056,12 +1075,10 @@ def analyse_capture(
         resp = edge_response(y, dt, starts, seg_len, step_at=step_at, step_size=ref_lv.amplitude,
                              noise_y=noise_y, coherence_min=coherence_min, energy_min_db=energy_min_db)
     band = resp.band_hz
-    if x is not None and resp.f_hz.size > 8:
-        top = resp.input_level_db[resp.f_hz > 0.4 / dt]
-        if top.size and float(np.max(top)) > -40.0:
-            warn(f"the input still has energy near the Nyquist frequency ({float(np.max(top)):.0f} dB below its peak): "
-                 "its edges are faster than the sample rate resolves, and the aliases bias the response wherever "
-                 "|H| is small; sample faster or limit the scope's bandwidth")
+    if x is not None and resp.nyquist_level_db > -40.0:
+        warn(f"the input still has energy near the Nyquist frequency ({-resp.nyquist_level_db:.0f} dB below its peak): "
+             "its edges are faster than the sample rate resolves, and the aliases bias the response wherever "
+             "|H| is small; sample faster or limit the scope's bandwidth")
     if not resp.usable.any():
         warn("no usable band: the coherence or the input energy is too low in every bin")
 
@@ -1185,10 +1202,11 @@ def _time_constant(x, y, starts, pol, seg_len, edge_frac, t10, good, tau0, dt, i
         k = tau / dt * (1.0 - a)
         fx, _ = lfilter([1.0 - k, k - a], [1.0, -a], mx, zi=[mx[0] * k])
         lo_fit = int(math.ceil(np.mean(edge_frac[idx]) + fit_from[0]))
-        sel = slice(lo_fit, span)
-        A = np.stack([fx[sel], np.ones(span - lo_fit)], axis=1)
-        coef, *_ = np.linalg.lstsq(A, my[sel], rcond=None)
-        fit_curve[sel] = A @ coef
+        if lo_fit < span - 2:
+            sel = slice(lo_fit, span)
+            A = np.stack([fx[sel], np.ones(span - lo_fit)], axis=1)
+            coef, *_ = np.linalg.lstsq(A, my[sel], rcond=None)
+            fit_curve[sel] = A @ coef
     else:
         lo_fit = int(np.min(fit_from))
         fit_curve[lo_fit:span] = float(np.median(bb)) + float(np.median(cc)) * a ** col[lo_fit:span]
