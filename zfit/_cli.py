@@ -12,6 +12,7 @@ from ._version import __version__
 # Each module registers its command(s) on `app` when imported.
 _COMMAND_MODULES = (
     "_cli_info",
+    "_cli_step",
     "_cli_identify",
     "_cli_batch",
     "_cli_plan",
