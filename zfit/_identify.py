@@ -62,6 +62,7 @@ DEFAULT_RDC_REL = 0.01
 #: resolved by the sweep.
 UNRESOLVED_REL = 0.5
 
+_DEBUG = False
 _PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
 
 
@@ -571,7 +572,7 @@ def _fit_optional(rb, obs, rational, prior):
         c = rb.values[0]
         extra = [x / (2 * math.pi * f[0] * c) for x in (1e4, 1e2, 10.0)]
     starts = [np.append(rb.values, e) for e in extra] + full.starts(f, z, sig, rational)[:2]
-    n_best = 3 if sharp_resonance(family, z) else 2
+    n_best = 3 if sharp_resonance(family, z) else 1
     try:
         return refine(full, obs, starts, prior=prior, n_best=n_best)
     except FitError:
@@ -755,6 +756,9 @@ def identify(
         return b if rf is None else min(b, _summary(rf, rows_full) + margin)
 
     family = min(fitted, key=family_bic)
+    if _DEBUG and len(fitted) == 2:
+        ch = {f: fitted[f].chi2 for f in fitted}
+        print("DBG", sweep.source, {f: round(family_bic(f)) for f in fitted}, {f: round(ch[f]) for f in ch}, family, min(fitted, key=lambda f: ch[f]))
     prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
     rb, rf = fitted[family], optional[family]
     cands = []

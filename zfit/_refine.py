@@ -45,9 +45,9 @@ _SQRT2 = math.sqrt(2.0)
 # cannot run off to 1e-300.
 _LOG_SPAN = 25.0
 # Trust-region reflective with the Jacobian's own scaling.  Tolerances of
-# 1e-10 on the cost are far below any change of statistical meaning.
+# 1e-8 on the cost are far below any change of statistical meaning.
 _DEBUG = False
-_METHOD = dict(method="trf", x_scale="jac", xtol=1e-10, ftol=1e-10, gtol=1e-10)
+_METHOD = dict(method="trf", x_scale="jac", xtol=1e-8, ftol=1e-8, gtol=1e-8)
 
 
 @dataclass(frozen=True)
@@ -380,7 +380,13 @@ def refine(
     best = None
     nfev = 0
     used = len(ranked)
+    # Further starts are refined only while the best fit so far is worse than
+    # the noise by more than five standard deviations of chi-square: a fit at
+    # the noise level leaves no better valley worth the time.
+    good_enough = 0.5 * (rows + 5.0 * math.sqrt(2.0 * rows))
     for _, _, theta0 in ranked[: max(1, n_best)]:
+        if best is not None and best.cost <= good_enough:
+            break
         try:
             sol = least_squares(
                 _rows, theta0, jac=_jac, args=(circuit, obs, prior_index, prior), max_nfev=max_nfev,
