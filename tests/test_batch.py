@@ -416,3 +416,58 @@ def test_warnings_go_to_their_own_part_with_threaded_workers(tmp_path):
         assert [n for n, w in warned.items() if w] == [names[1], names[4]], (tag, warned)
         assert "repeated frequencies dropped" in warned[names[1]][0]
     assert (tmp_path / "local" / "summary.csv").read_bytes() == (tmp_path / "dask" / "summary.csv").read_bytes()
+
+
+CAP_LIMITS = """\
+model = "capacitor"
+
+[limit.C]
+nominal = "1u"
+tolerance_percent = 10
+
+[[limit.ESR]]  # the circuit's ESR, and (below) Re Z at 100 kHz: TOML needs one array for both
+max = "50m"
+
+[[limit.ESR]]
+at = "100k"
+max = "60m"
+
+[[limit.D]]
+at = "1M"
+max = 0.3
+"""
+
+
+def test_capacitor_lot_measured_shunt_thru(tmp_path):
+    """A lot of .s2p files needs --connection; with it, D and ESR at a frequency are checked."""
+    rng = np.random.default_rng(5)
+    parts = [SimulatedPart(f"C{i:02d}.s2p", "capacitor", {"C": 1e-6 * (1 + rng.uniform(-0.04, 0.04)),
+                                                          "ESR": rng.uniform(0.015, 0.03), "ESL": 1.2e-9})
+             for i in range(6)]
+    parts += [SimulatedPart("C06.s2p", "capacitor", {"C": 0.85e-6, "ESR": 0.02, "ESL": 1.2e-9}),
+              SimulatedPart("C07.s2p", "capacitor", {"C": 1e-6, "ESR": 0.08, "ESL": 1.2e-9})]
+    write_simulated_lot(tmp_path / "caps", parts, np.logspace(3, 8, 201), seed=4, connection="shunt-thru")
+    (tmp_path / "caps.toml").write_text(CAP_LIMITS)
+    runner = CliRunner()
+    args = ["batch", str(tmp_path / "caps"), "--limits", str(tmp_path / "caps.toml"), "--jobs", "1"]
+    r = runner.invoke(app, args + ["--out", str(tmp_path / "none")])
+    assert r.exit_code == 1
+    rows = _read_csv(tmp_path / "none" / "summary.csv")
+    assert all(row["verdict"] == "error" and "shunt-thru" in row["error"] for row in rows)
+    r = runner.invoke(app, args + ["--out", str(tmp_path / "out"), "--connection", "shunt-thru"])
+    assert r.exit_code == 1, r.output
+    rows = {row["file"].rsplit("/", 1)[-1]: row for row in _read_csv(tmp_path / "out" / "summary.csv")}
+    for part in parts:
+        p = part.params
+        # D = ESR / |X| with X = omega ESL - 1/(omega C) (series RLC; e.g. Bowick, ch. 1).
+        w = 2 * math.pi * 1e6
+        d_true = p["ESR"] / abs(w * p["ESL"] - 1 / (w * p["C"]))
+        failed = [n for n, bad in (("C", not 0.9e-6 <= p["C"] <= 1.1e-6), ("ESR", p["ESR"] > 0.05),
+                                   ("D@1MHz", d_true > 0.3), ("ESR@100kHz", p["ESR"] > 0.06)) if bad]
+        row = rows[part.name]
+        assert row["model"] == "capacitor" and row["error"] == ""
+        assert row["verdict"] == ("fail" if failed else "pass"), (part.name, row)
+        assert sorted(filter(None, row["failed_limits"].split(";"))) == sorted(failed)
+        assert float(row["D@1MHz"]) == pytest.approx(d_true, rel=0.02)
+        assert float(row["C"]) == pytest.approx(p["C"], rel=0.01)
+    assert rows["C07.s2p"]["failed_limits"] == "ESR;ESR@100kHz;D@1MHz"

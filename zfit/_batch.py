@@ -1315,12 +1315,12 @@ class SimulatedPart:
     params: dict
 
 
-def _touchstone_text(f_hz, s, z0: float, comment: str) -> str:
+def _touchstone_text(f_hz, columns, z0: float, comment: str) -> str:
     import numpy as np
 
-    body = np.column_stack([f_hz, s.real, s.imag])
+    body = np.column_stack([f_hz] + [x for c in columns for x in (c.real, c.imag)])
     lines = [f"! {c}" for c in comment.splitlines()] + [f"# HZ S RI R {z0:g}"]
-    lines += [f"{a:.10e} {b:.12e} {c:.12e}" for a, b, c in body]
+    lines += [" ".join(f"{x:.12e}" for x in row) for row in body]
     return "\n".join(lines) + "\n"
 
 
@@ -1335,13 +1335,15 @@ def _table_text(f_hz, z, comment: str) -> str:
 
 def write_simulated_lot(folder, parts: Sequence[SimulatedPart], f_hz, *, seed: int = 0,
                         noise_rel: float = 1e-3, noise_floor: float = 1e-5, z0: float = 50.0,
-                        impedance=None) -> list[Path]:
+                        impedance=None, connection: str = "shunt-thru") -> list[Path]:
     """Write a lot of simulated sweeps with instrument-like noise.
 
-    ``.s1p`` parts are written as reflection S11 (Touchstone 1.x, RI) with
-    complex-circular noise of standard deviation ``noise_rel |S| + noise_floor``
-    on S (the readers' default noise model); ``.csv`` parts as an
-    impedance-analyser table of R and X with noise ``noise_rel |Z|``.
+    ``.s1p`` parts are written as reflection S11 (Touchstone 1.x, RI) and
+    ``.s2p`` parts as the full two-port of a shunt-thru or series-thru
+    fixture, with complex-circular noise of standard deviation
+    ``noise_rel |S| + noise_floor`` on each S (the readers' default noise
+    model); ``.csv`` parts as an impedance-analyser table of R and X with
+    noise ``noise_rel |Z|``.
 
     Parameters
     ----------
@@ -1362,6 +1364,8 @@ def write_simulated_lot(folder, parts: Sequence[SimulatedPart], f_hz, *, seed: i
         ``impedance(model, params, f_hz) -> Z``; default
         `zfit._circuits.circuit_impedance` (an ngspice AC analysis can be
         passed instead).
+    connection : {'shunt-thru', 'series-thru'}
+        The fixture of the ``.s2p`` parts.
 
     Returns
     -------
@@ -1383,13 +1387,26 @@ def write_simulated_lot(folder, parts: Sequence[SimulatedPart], f_hz, *, seed: i
         truth = ", ".join(f"{k}={v:.6g}" for k, v in part.params.items())
         comment = f"zfit simulated part {part.name} ({part.model}): {truth}"
         path = folder / part.name
-        if path.suffix.lower() == ".csv":
+        suffix = path.suffix.lower()
+        if suffix == ".csv":
             zn = z + noise * noise_rel * np.abs(z)
             text = _table_text(f, zn, comment)
+        elif suffix == ".s2p":
+            from ._connection import s_from_impedance
+
+            # Shunt part: S11 = S21 - 1; series part: S11 = 1 - S21 (ABCD of a
+            # shunt admittance / series impedance, Pozar 2012, Table 4.2).
+            s21 = s_from_impedance(z, connection, z0)
+            s11 = s21 - 1.0 if connection == "shunt-thru" else 1.0 - s21
+            cols = []
+            for k, sp in enumerate((s11, s21, s21, s11)):
+                nk = (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) / math.sqrt(2.0)
+                cols.append(sp + (noise if k == 1 else nk) * (noise_rel * np.abs(sp) + noise_floor))
+            text = _touchstone_text(f, cols, z0, comment + f"\nfixture: {connection}")
         else:
             s = (z - z0) / (z + z0)
             sn = s + noise * (noise_rel * np.abs(s) + noise_floor)
-            text = _touchstone_text(f, sn, z0, comment)
+            text = _touchstone_text(f, [sn], z0, comment)
         path.write_text(text)
         paths.append(path)
     return paths
