@@ -1065,13 +1065,16 @@ def vector_fit(
     full covariance takes the poles as parameters too.
 
     *Automatic pole count.* Counts `min_poles` (0 with an optional term, else
-    1), then one more each time, up to `max_poles`, are fitted from fresh
+    1), then the next even count and one pole pair more each time (a pair
+    may split into two real poles), up to `max_poles`, are fitted from fresh
     starting poles.  The search stops
     at the first count whose RMS normalised residual reaches the noise (see
     `noise_tol`; with relative weights, at a residual of 1e-10, exact data);
     otherwise, when two successive counts each fail to lower the
     best residual by `min_improvement`, it returns the smallest count within
-    `min_improvement` of the best residual found.  Counts whose unknowns would
+    `min_improvement` of the best residual found.  When a count reaches the
+    noise, one pole fewer is tried too (an odd count, one real pole) and
+    preferred if it also does.  Counts whose unknowns would
     not leave at least one degree of freedom are not tried; if not even the
     smallest can be fitted, `FitError` explains why.
 
@@ -1192,19 +1195,29 @@ def _solve(s, hh, w, flags, w0, band, n_poles, n_real_poles, init, n_iter, pole_
     if n_poles is not None:
         return fit(n_poles)
 
-    # Automatic count.
+    # Automatic count: grow by pole pairs (a pair can also split into two real
+    # poles), then see whether one pole fewer does as well.
     start, max_poles = limits
     target = 1.0 + max(noise_tol, 3.0 / math.sqrt(4.0 * n))
+
+    def good(m):
+        rms = m.rms_normalized_residual
+        return (weighting == "sigma" and rms <= target) or rms <= _EXACT
+
+    def fits_data(count):
+        return 2 * n > _unknowns(count, n_extra)
+
+    counts = [start] + list(range(start + 1 + (start + 1) % 2, max_poles + 1, 2))
     fits = []
     best = math.inf
     stale = 0
-    for count in range(start, max_poles + 1):
-        if 2 * n <= _unknowns(count, n_extra):
+    for count in counts:
+        if count > max_poles or not fits_data(count):
             break
         m = fit(count, stall_tol=1e-4)
         fits.append(m)
         rms = m.rms_normalized_residual
-        if (weighting == "sigma" and rms <= target) or rms <= _EXACT:
+        if good(m):
             break
         if rms < best * (1.0 - min_improvement):
             best = rms
@@ -1214,13 +1227,21 @@ def _solve(s, hh, w, flags, w0, band, n_poles, n_real_poles, init, n_iter, pole_
             stale += 1
             if stale >= 2:
                 break
-    trials = tuple((m.n_poles, float(m.rms_normalized_residual)) for m in fits)
-    last = fits[-1].rms_normalized_residual
-    if (weighting == "sigma" and last <= target) or last <= _EXACT:
+    if good(fits[-1]):
         chosen = fits[-1]
+        fewer = chosen.n_poles - 1
+        if len(fits) > 1 and fewer > fits[-2].n_poles:
+            m = fit(fewer, stall_tol=1e-4)
+            fits.append(m)
+            if good(m):
+                chosen = m
     else:
         best = min(m.rms_normalized_residual for m in fits)
-        chosen = next(m for m in fits if m.rms_normalized_residual <= best * (1.0 + min_improvement))
+        chosen = min(
+            (m for m in fits if m.rms_normalized_residual <= best * (1.0 + min_improvement)),
+            key=lambda m: m.n_poles,
+        )
+    trials = tuple((m.n_poles, float(m.rms_normalized_residual)) for m in fits)
     left = n_iter - len(chosen.iterations)
     if not chosen.converged and chosen.n_poles and left > 0:
         # The trial stopped on a settled residual: finish the relocation.
