@@ -364,6 +364,11 @@ def test_progress_bar_on_a_terminal_and_log_lines_otherwise():
     assert len(lines) == 2
     assert lines[0].startswith("zfit batch: 1/4 parts, ") and "/s, ETA " in lines[0]
     assert lines[1].startswith("zfit batch: 4/4 parts, ") and lines[1].endswith("ETA 00:00, 1 error")
+    # Reused parts count as done but not in the rate: with nothing processed yet, no rate and no ETA.
+    log = io.StringIO()
+    p = Progress(6, stream=log, tty=False, interval=1e9)
+    p.skip(4)
+    assert log.getvalue() == "zfit batch: 4/6 parts, 0.0/s, ETA --:--\n"
     tty = io.StringIO()
     p = Progress(10, stream=tty, tty=True)
     p.update(5, force=True)
