@@ -416,11 +416,12 @@ def plan_measurement(
         import warnings as _w
 
         try:
-            with _w.catch_warnings(record=True) as caught:
-                _w.simplefilter("always")
+            with _w.catch_warnings():
+                # The identification's warnings are kept in its result; numpy's
+                # arithmetic warnings on a simulated extreme are not the plan's news.
+                _w.simplefilter("ignore")
                 ident = identify(measured, model=model)
-            warns += [str(w.message) for w in caught]
-            warns += [w for w in getattr(ident, "warnings", ()) if w not in warns]
+            warns += list(getattr(ident, "warnings", ()))
             topology = ident.topology
             reported = {k: e for k, e in ident.parameters.items()}
             fit = ident.fit
@@ -499,6 +500,8 @@ def format_plan(plan: Plan) -> str:
     plan : Plan
         The plan.
     """
+    from ._resolution import unresolved_text
+
     vals = ", ".join(f"{k} = {format_eng(v, _UNITS[k])}" for k, v in plan.params.items())
     srf = f" (SRF {format_eng(plan.srf_hz)}Hz)" if plan.srf_hz else ""
     lines = [f"plan: {plan.model}, {plan.topology}: {vals}{srf}",
@@ -516,10 +519,7 @@ def format_plan(plan: Plan) -> str:
             p = c.parameters[k]
             cell = f"+-{format_eng(p.std, p.unit)} ({_percent(p.relative_std)})" if math.isfinite(p.std) else "not determined"
             if not p.resolved and p.resolution_limit is not None:
-                if k in ("R_p", "R_leak"):
-                    cell = f"not resolved, > {format_eng(p.resolution_limit, p.unit)}"
-                else:
-                    cell = f"below resolution, < {format_eng(p.resolution_limit, p.unit)}"
+                cell = unresolved_text(k, p.resolution_limit, p.unit)
             elif not p.resolved:
                 cell = "not resolved"
             cells[k, c.connection] = cell
@@ -533,6 +533,9 @@ def format_plan(plan: Plan) -> str:
         if c.error:
             lines.append(f"{c.label}: identification failed: {c.error}")
     lines.append("")
+    for c in plan.connections:
+        for w in c.warnings[:3]:
+            lines.append(f"{c.label} (one simulated measurement): {w}")
     lines.append(f"recommended: {label(plan.recommended)}")
     lines.append(f"why: {plan.reason}")
     return "\n".join(lines)

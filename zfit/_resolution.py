@@ -60,6 +60,8 @@ __all__ = [
     "resolution_limits",
     "limits_for",
     "is_resolved",
+    "resolution_entries",
+    "unresolved_text",
     "ground_loop_warning",
 ]
 
@@ -134,8 +136,15 @@ def fisher_uncertainties(model: str, params, f_hz, sigma_ohm) -> dict[str, float
     cov = np.full((len(keys), len(keys)), np.inf)
     if good.any():
         fg = fisher[np.ix_(good, good)] / np.outer(d[good], d[good])
-        if np.all(np.isfinite(fg)) and np.linalg.cond(fg) < 1e15:
-            cov[np.ix_(good, good)] = np.linalg.inv(fg) / np.outer(d[good], d[good])
+        if np.all(np.isfinite(fg)):
+            try:
+                inv = np.linalg.inv(fg)
+            except np.linalg.LinAlgError:
+                inv = None
+            # A (near-)singular information leaves a parameter undetermined:
+            # its inverse diagonal is huge, negative or not finite.
+            if inv is not None and np.all(np.isfinite(inv)) and np.all(np.diag(inv) > 0) and np.max(np.diag(inv)) < 1e15:
+                cov[np.ix_(good, good)] = inv / np.outer(d[good], d[good])
     out = {}
     for i, k in enumerate(keys):
         var = cov[i, i]
@@ -260,8 +269,28 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
 
 
 def _limit(rel_std, x0, kind):
-    """Solve ``rel_std(x) = 1/3`` on a log axis, starting at `x0`."""
+    """Solve ``rel_std(x) = 1/3`` for x > 0, starting at `x0`.
+
+    First by fixed-point iteration on the absolute uncertainty of ``x``
+    (lower kind) or of ``1/x`` (upper kind), which is nearly independent of
+    the value when the noise does not follow it: ``x <- x * 3 rel_std(x)``
+    (or ``x <- x / (3 rel_std(x))``), a few evaluations.  Where that does
+    not settle, by bracketing in decades and Brent's method on ``log x``.
+    """
     from scipy.optimize import brentq
+
+    sign = 1.0 if kind == "lower" else -1.0
+    x = x0
+    for _ in range(8):
+        r = rel_std(x)
+        if not (np.isfinite(r) and r > 0):
+            break
+        step = sign * math.log(3.0 * r)
+        if abs(step) > math.log(1e3):
+            break
+        x = x * math.exp(step)
+        if abs(step) < 1e-4:
+            return float(x)
 
     def g(lx):
         r = rel_std(math.exp(lx))
@@ -276,7 +305,7 @@ def _limit(rel_std, x0, kind):
         b = a + step
         gb = g(b)
         if (ga > 0) != (gb > 0):
-            root = brentq(g, min(a, b), max(a, b), xtol=1e-4)
+            root = brentq(g, min(a, b), max(a, b), xtol=1e-3)
             return float(math.exp(root))
         a, ga = b, gb
     return None
@@ -299,6 +328,57 @@ def is_resolved(key: str, value: float, limit: float | None) -> bool:
     if RESOLUTION_KIND.get(key, "lower") == "upper":
         return abs(value) <= limit
     return abs(value) >= limit
+
+
+def resolution_entries(sweep, identification) -> dict[str, dict]:
+    """Return the JSON additions of each parameter: resolved or not, and the limit.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The measurement.
+    identification : Identification
+        Its identification.
+
+    Returns
+    -------
+    dict
+        ``{key: {"resolved": bool, "resolution_limit": float or None}}`` for
+        every circuit parameter (empty for a rational model), ready to merge
+        into the ``parameters`` entries of the ``zfit.identify/1`` JSON.
+    """
+    limits = resolution_limits(sweep, identification)
+    out = {}
+    for key, limit in limits.items():
+        value = float(identification.parameters[key].value)
+        out[key] = {
+            "resolved": bool(is_resolved(key, value, limit)),
+            "resolution_limit": None if limit is None or not math.isfinite(limit) else float(limit),
+        }
+    return out
+
+
+def unresolved_text(key: str, limit: float, unit: str = "") -> str:
+    """Return what the table prints for an unresolved parameter.
+
+    Parameters
+    ----------
+    key : str
+        Parameter name.
+    limit : float
+        Its resolution limit.
+    unit : str
+        Its unit.
+
+    Returns
+    -------
+    str
+        ``"below resolution, < 4.5m ohm"``, or for ``R_p`` / ``R_leak``
+        ``"not resolved, > 1.9M ohm"``.
+    """
+    if RESOLUTION_KIND.get(key, "lower") == "upper":
+        return f"not resolved, > {format_eng(limit, unit)}"
+    return f"below resolution, < {format_eng(limit, unit)}"
 
 
 def ground_loop_warning(sweep, identification) -> str | None:
