@@ -332,3 +332,16 @@ def test_public_parameters_are_documented():
                 if p == "options":
                     p = "**options"
                 assert p in doc, f"{name}.{fn.__name__}: parameter {p} not documented"
+
+
+def test_convergence_history_shows_the_poles_settling():
+    # Noise-free inductor: relocation converges; the pole movement ends below
+    # pole_tol and the relaxation constant d~ tends to 1 (Gustavsen 2006: at
+    # convergence sigma(s) -> 1).
+    f = np.geomspace(1e5, 1e8, 300)
+    m = fit_impedance(f, _inductor(f), kind="inductor", n_poles=2)
+    hist = m.convergence()
+    assert hist["iteration"].tolist() == list(range(1, len(m.iterations) + 1))
+    assert hist["max_relative_pole_change"][-1] < 1e-10
+    assert hist["sigma_constant"][-1] == pytest.approx(1.0, abs=1e-8)
+    assert m.converged

@@ -57,7 +57,7 @@ IMPEDANCE_FIT_OPTIONS = {
 # --------------------------------------------------------------------------
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class VFIteration:
     """One pole relocation of vector fitting.
 
@@ -123,7 +123,7 @@ class PassivityViolation:
         return bool(np.isfinite(self.worst_std) and -self.worst_value <= 2.0 * self.worst_std)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class RationalModel:
     """A rational model of a one-port response, from `vector_fit`.
 
@@ -235,6 +235,24 @@ class RationalModel:
         """Number of real poles (origin pole not counted)."""
         return int(np.count_nonzero(self.poles.imag == 0))
 
+    def convergence(self) -> dict:
+        """Return the relocation history as arrays, for a convergence plot.
+
+        Returns
+        -------
+        dict
+            ``iteration`` (int), ``max_relative_pole_change``,
+            ``rms_normalized_residual`` and ``sigma_constant`` (float arrays,
+            one entry per relocation; empty when there was none).
+        """
+        its = self.iterations
+        return {
+            "iteration": np.array([i.index for i in its], dtype=int),
+            "max_relative_pole_change": np.array([i.max_relative_pole_change for i in its], dtype=float),
+            "rms_normalized_residual": np.array([i.rms_normalized_residual for i in its], dtype=float),
+            "sigma_constant": np.array([i.sigma_constant for i in its], dtype=float),
+        }
+
     def _split(self):
         real = self.poles.imag == 0
         upper = self.poles.imag > 0
@@ -289,17 +307,18 @@ class RationalModel:
         f = np.asarray(f_hz, dtype=float).ravel()
         s = 1j * TWO_PI * f
         preal, pcplx = self._split()
-        cols = [_pole_basis(s, preal, pcplx)]
-        if self.has_constant:
-            cols.append(np.ones((s.size, 1), complex))
-        if self.has_proportional:
-            cols.append(s[:, None])
-        if self.has_origin_pole:
-            cols.append(1.0 / s[:, None])
-        if include_poles:
-            rreal = self.residues[self.poles.imag == 0].real
-            rcplx = self.residues[self.poles.imag > 0]
-            cols.append(_pole_jacobian(s, preal, pcplx, rreal, rcplx))
+        with np.errstate(divide="ignore", invalid="ignore"):
+            cols = [_pole_basis(s, preal, pcplx)]
+            if self.has_constant:
+                cols.append(np.ones((s.size, 1), complex))
+            if self.has_proportional:
+                cols.append(s[:, None])
+            if self.has_origin_pole:
+                cols.append(1.0 / s[:, None])
+            if include_poles:
+                rreal = self.residues[self.poles.imag == 0].real
+                rcplx = self.residues[self.poles.imag > 0]
+                cols.append(_pole_jacobian(s, preal, pcplx, rreal, rcplx))
         return np.concatenate(cols, axis=1)
 
     def impedance_covariance(self, f_hz, include_poles: bool = True) -> np.ndarray:
