@@ -1052,15 +1052,32 @@ def _chunk_size(n: int, workers: int) -> int:
     return max(1, min(16, math.ceil(n / (8 * max(1, workers)))))
 
 
-def _preload_modules(plot: bool = False) -> list[str]:
+def _needs_skrf(tasks, sample: int = 8) -> bool:
+    """Whether the lot looks like Touchstone 2.0 (read through scikit-rf):
+    a peek at the head of the first few files."""
+    for t in tasks[:sample]:
+        try:
+            with open(t.path, "rb") as fh:
+                head = fh.read(4096).lower()
+        except OSError:
+            continue
+        if b"[version]" in head:
+            return True
+    return False
+
+
+def _preload_modules(plot: bool = False, skrf: bool = False) -> list[str]:
     # What the first part of a worker would otherwise import (measured with
     # ``python -X importtime``: scipy.optimize and friends are about 0.4 s;
-    # matplotlib another 0.5 s when plotting).
+    # matplotlib another 0.5 s when plotting; scikit-rf, for Touchstone 2.0
+    # only, up to a second).
     mods = ["zfit._batch", "zfit._cli_common", "zfit._readers", "zfit._touchstone", "zfit._table",
             "zfit._vectfit", "zfit._circuits", "zfit._refine", "zfit._figures", "zfit._identify",
             "scipy.optimize", "scipy.linalg"]
     if plot:
         mods += ["zfit._outputs", "zfit._plots", "matplotlib", "matplotlib.pyplot"]
+    if skrf:
+        mods += ["skrf", "skrf.io.touchstone", "skrf.network"]
     return mods
 
 
@@ -1075,7 +1092,7 @@ def _run_local(tasks, jobs, on_done):
     # (the command line) a plain fork shares what this process has imported;
     # where threads run (a notebook, a test session with a Dask cluster) a
     # fork is unsafe, so workers fork from a forkserver that preloads zfit.
-    mods = _preload_modules(any(t.plot_path for t in tasks))
+    mods = _preload_modules(any(t.plot_path for t in tasks), _needs_skrf(tasks))
     methods = mp.get_all_start_methods()
     if "fork" in methods and threading.active_count() == 1:
         ctx = mp.get_context("fork")
