@@ -469,6 +469,108 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
 # -------------------------------------------------------------------- step ---
 
 
+def _step_plot_data(result) -> dict:
+    """The arrays the capture plots need, taken from a `StepResult`."""
+    cap = result.capture
+    ew = result.edge_waveform
+    out_name = result.output_name
+    in_name = result.input_name
+    if cap is None:
+        raise ZfitInputError("the step result carries no capture to plot")
+    n = int(result.n_samples)
+    dt = 1.0 / float(result.sample_rate_hz)
+    t = np.arange(n) * dt
+    channels = {}
+    levels = {}
+    if in_name is not None:
+        channels[f"input ({in_name})"] = cap.channels[in_name]
+        if result.input_levels_v is not None:
+            levels[f"input ({in_name})"] = tuple(result.input_levels_v)
+    channels[f"output ({out_name})"] = cap.channels[out_name]
+    levels[f"output ({out_name})"] = tuple(result.levels_v)
+    edges = np.asarray(result.edge_times_s, dtype=float)
+    # Show about two periods from just before the first analysed edge.
+    if edges.size >= 3:
+        half = float(np.median(np.diff(edges)))
+        window = (max(0.0, edges[0] - 0.3 * half), min(t[-1], edges[0] + 3.7 * half))
+    else:
+        window = None
+    fitted = {}
+    if ew is not None and ew.fit_v is not None and np.isfinite(ew.fit_v).any():
+        ref = cap.channels[in_name if in_name is not None else out_name]
+        ref_levels = result.input_levels_v if in_name is not None else result.levels_v
+        mid = 0.5 * (ref_levels[0] + ref_levels[1])
+        ok = np.isfinite(ew.fit_v)
+        tf_all, vf_all = [], []
+        for e in edges:
+            if window is not None and not (window[0] <= e <= window[1]):
+                continue
+            i = min(int(round(e / dt)) + 3, n - 1)
+            if ref[i] > mid:  # a rising edge: the averaged edge is rising
+                tf_all.append(np.concatenate([e + ew.t_s[ok], [np.nan]]))
+                vf_all.append(np.concatenate([ew.fit_v[ok], [np.nan]]))
+        if tf_all:
+            fitted[f"first-order response, output"] = (np.concatenate(tf_all), np.concatenate(vf_all))
+    resp = result.response
+    d = {
+        "t_s": t, "channels": channels, "levels": levels, "edges_s": edges, "fitted": fitted, "window_s": window,
+        "title": f"{Path(str(result.source)).name}: {result.edges} edges at {pretty(result.sample_rate_hz, 'Hz')} sampling",
+        "source": result.source,
+        "identification": result.impedance,
+        "f_hz": None,
+    }
+    if resp is not None and resp.f_hz.size:
+        pos = resp.f_hz > 0
+        d.update({"f_hz": resp.f_hz[pos], "h": resp.h[pos], "coherence": resp.coherence[pos],
+                  "h_std": resp.h_std[pos], "usable_band_hz": tuple(result.usable_band_hz)})
+    d["subtitle"] = (f"{Path(str(result.source)).name} · input {in_name or 'none (single channel)'} · output {out_name} · "
+                     f"{result.n_samples} samples at {pretty(result.sample_rate_hz, 'Hz')}"
+                     + (f" · sense resistor {pretty(result.shunt_ohm, 'ohm')}" if result.shunt_ohm else ""))
+    bits = []
+    if result.time_constant_s is not None:
+        bits.append(f"time constant {pretty_std(result.time_constant_s, result.time_constant_std_s, 's')}")
+    if result.ringing is not None:
+        bits.append(f"ringing at {pretty_std(result.ringing.frequency_hz, result.ringing.frequency_std_hz, 'Hz')}")
+    lo, hi = result.usable_band_hz
+    if lo and hi:
+        bits.append(f"usable band {pretty(lo, 'Hz')} to {pretty(hi, 'Hz')}")
+    v = "; ".join(bits)
+    d["verdict"] = (v[:1].upper() + v[1:] + ".") if v else ""
+    return d
+
+
+def _step_facts(result) -> list:
+    rows = [
+        ("edges analysed", f"{result.edges} ({result.edges_rising} rising, {result.edges_falling} falling)"),
+        ("output levels", f"{pretty(result.levels_v[0], 'V')} / {pretty(result.levels_v[1], 'V')} (histogram method)"),
+    ]
+    if result.input_levels_v is not None:
+        rows.append(("input levels", f"{pretty(result.input_levels_v[0], 'V')} / {pretty(result.input_levels_v[1], 'V')}"))
+    if result.transition_10_90_s is not None:
+        rows.append(("10-90 % transition", pretty_std(result.transition_10_90_s, result.transition_10_90_std_s, "s")))
+    if result.overshoot_pct is not None:
+        std = result.overshoot_std_pct
+        rows.append(("overshoot", f"{result.overshoot_pct:.3g} %" + (f" ± {std:.2g} %" if std else "")))
+    if result.time_constant_s is not None:
+        rows.append(("time constant", pretty_std(result.time_constant_s, result.time_constant_std_s, "s")
+                     + f" ({result.time_constant_method})"))
+    if result.midpoint_time_constant_s is not None:
+        rows.append(("cross-check", pretty_std(result.midpoint_time_constant_s, result.midpoint_time_constant_std_s, "s")
+                     + " (low-to-midpoint time / ln 2)"))
+    r = result.ringing
+    if r is not None:
+        rows.append(("ringing", f"{pretty_std(r.frequency_hz, r.frequency_std_hz, 'Hz')}, damping ratio {r.damping_ratio:.3g}"))
+    sc = result.stray_capacitance
+    if sc is not None:
+        rows.append(("stray capacitance", f"{pretty_std(sc.value_f, sc.std_f, 'F')} ({sc.method})"))
+    lo, hi = result.usable_band_hz
+    rows.append(("usable band", _band((lo, hi))))
+    rows.append(("response", f"{result.response.method}, {result.response.n_averages} averages"))
+    for w in result.warnings:
+        rows.append(("warning", w))
+    return rows
+
+
 def step_figures(result) -> dict:
     """Return the figures of a step (capture) analysis by name.
 

@@ -677,14 +677,13 @@ def plot_time_record(
     for k, (label, v) in enumerate(channels.items()):
         colour, ls = styles[k % len(styles)]
         te, ve = envelope(t[sel], np.asarray(v, dtype=float)[sel])
-        ax.plot(te, ve, color=colour, ls=ls, lw=0.9, label=label, gid=f"record-{label}", zorder=3)
+        text = label
         if levels_v and label in levels_v:
             low, high = levels_v[label]
+            text = f"{label}; levels {eng_tick(low, 'V')}, {eng_tick(high, 'V')}"
             ax.axhline(low, color=colour, ls=(0, (6, 3)), lw=0.6, gid=f"level-{label}-low", zorder=2)
             ax.axhline(high, color=colour, ls=(0, (6, 3)), lw=0.6, gid=f"level-{label}-high", zorder=2)
-            x_text = te[0] if te.size else 0.0
-            ax.annotate(f"{eng_tick(low, 'V')} / {eng_tick(high, 'V')}", xy=(x_text, high), xytext=(2, 2),
-                        textcoords="offset points", fontsize=6.5, color=colour)
+        ax.plot(te, ve, color=colour, ls=ls, lw=0.9, label=text, gid=f"record-{label}", zorder=3)
     if edges_s is not None:
         e = np.asarray(edges_s, dtype=float)
         if window_s is not None:
