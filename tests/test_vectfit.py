@@ -345,3 +345,26 @@ def test_convergence_history_shows_the_poles_settling():
     assert hist["max_relative_pole_change"][-1] < 1e-10
     assert hist["sigma_constant"][-1] == pytest.approx(1.0, abs=1e-8)
     assert m.converged
+
+
+def test_agrees_with_scikit_rf_on_a_reflection_measurement():
+    skrf = pytest.importorskip("skrf")
+    from skrf.vectorFitting import VectorFitting
+
+    # The inductor as S11 = (Z - 50)/(Z + 50), itself rational with one pole
+    # pair (the zeros of N + 50 D for Z = N/D). scikit-rf fits S11; zfit fits
+    # both S11 (same options) and Z; all must agree with each other.
+    f = np.geomspace(1e5, 1e8, 601)
+    z = _inductor(f)
+    s11 = (z - 50) / (z + 50)
+    net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="hz"), s=s11.reshape(-1, 1, 1), z0=50)
+    vf = VectorFitting(net)
+    vf.vector_fit(n_poles_real=0, n_poles_cmplx=1, init_pole_spacing="log", parameter_type="s",
+                  fit_constant=True, fit_proportional=False)
+    s_skrf = vf.get_model_response(0, 0, f)
+    ms = vector_fit(f, s11, n_poles=2, constant=True, proportional=False)
+    np.testing.assert_allclose(ms(f), s_skrf, rtol=1e-9, atol=1e-12)
+    np.testing.assert_allclose(np.sort_complex(ms.poles), np.sort_complex(_pairs(vf.poles)), rtol=1e-9)
+    mz = fit_impedance(f, z, kind="inductor", n_poles=2)
+    z_skrf = 50 * (1 + s_skrf) / (1 - s_skrf)
+    np.testing.assert_allclose(mz(f), z_skrf, rtol=1e-8)
