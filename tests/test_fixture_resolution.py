@@ -17,7 +17,10 @@ from zfit._circuits import circuit_impedance
 from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
 from zfit._identify import identify
-from zfit._resolution import fisher_uncertainties, ground_loop_warning, is_resolved, limits_for, resolution_limits
+from zfit._resolution import (
+    fisher_uncertainties, ground_loop_warning, is_resolved, limits_for, resolution_entries, resolution_limits,
+    unresolved_text,
+)
 from zfit._sweep import Sweep
 
 NOISE = InstrumentNoise(1e-3, 1e-5)
@@ -61,9 +64,16 @@ def test_resolution_limits_of_an_identification_and_the_resolved_flag(rng):
             warnings.simplefilter("ignore", MeasurementWarning)
             ident = identify(sw, model="capacitor")
         out[conn] = (ident, resolution_limits(sw, ident))
+        if conn == "series-thru":
+            sw_series = sw
     ident, lim = out["series-thru"]
     assert lim["ESR"] > 2 * 5e-3
     assert not is_resolved("ESR", 5e-3, lim["ESR"])
+    entries = resolution_entries(sw_series, out["series-thru"][0])
+    assert entries["ESR"] == {"resolved": False, "resolution_limit": lim["ESR"]}
+    assert entries["C"]["resolved"] is True
+    assert unresolved_text("ESR", lim["ESR"], "ohm").startswith("below resolution, < ")
+    assert unresolved_text("R_leak", 2e6, "ohm") == "not resolved, > 2M ohm"
     ident, lim = out["shunt-thru"]
     assert lim["ESR"] < 5e-3 / 10
     assert is_resolved("ESR", ident.parameters["ESR"].value, lim["ESR"])

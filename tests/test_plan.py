@@ -143,3 +143,22 @@ def test_bad_plan_input_is_one_line_error():
     assert r.exit_code == 2 and "zfit: error:" in r.output and "band" in r.output
     with pytest.raises(ZfitInputError, match="needs --ESL"):
         plan_measurement("capacitor", {"C": 1e-7, "ESR": 1e-3})
+
+
+def test_plan_json_validates_against_its_schema(plans):
+    # The schema shipped in zfit/schemas/plan.schema.json (JSON Schema 2020-12,
+    # checked by the jsonschema library).
+    jsonschema = pytest.importorskip("jsonschema")
+    from pathlib import Path
+
+    import zfit
+
+    schema = json.loads((Path(zfit.__file__).parent / "schemas" / "plan.schema.json").read_text())
+    jsonschema.Draft202012Validator.check_schema(schema)
+    for plan in plans.values():
+        doc = json.loads(json.dumps(plan.to_dict()))
+        jsonschema.Draft202012Validator(schema).validate(doc)
+    bad = json.loads(json.dumps(plans["capacitor"].to_dict()))
+    bad["connections"]["shunt-thru"]["parameters"]["ESR"]["resolved"] = "yes"
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.Draft202012Validator(schema).validate(bad)
