@@ -41,8 +41,8 @@ TWO_PI = 2.0 * math.pi
 #: `fit_impedance`.  Why: an inductor with parallel C, (R + sL) || 1/(sC), is a
 #: strictly proper function of s (Z -> R at DC, Z -> 1/(sC) at high frequency):
 #: one complex pole pair near the SRF (so the automatic count starts at 2) and no
-#: constant or proportional term, and a fitted constant would only add noise (and, if it came out negative, a
-#: non-passive model at high frequency).  A capacitor, ESR + sESL + 1/(sC), has a
+#: constant or proportional term; a fitted constant would only add noise (and, if
+#: it came out negative, a non-passive model at high frequency).  A capacitor, ESR + sESL + 1/(sC), has a
 #: pole at the origin, a constant and a proportional term and needs no other
 #: pole at all; dielectric absorption or leakage adds real poles.
 IMPEDANCE_FIT_OPTIONS = {
@@ -229,6 +229,19 @@ class RationalModel:
     def n_poles(self) -> int:
         """Number of poles, not counting the origin pole (pairs count two)."""
         return int(self.poles.size)
+
+    @property
+    def full_parameter_names(self) -> tuple:
+        """Names of the rows of `full_covariance`: `coefficient_names`, then
+        ``pole[i]`` for each real pole and ``Re pole[i]``, ``Im pole[i]`` for
+        each pair (i: the index in `poles` of its positive-imaginary member)."""
+        names = list(self.coefficient_names)
+        for i, p in enumerate(self.poles):
+            if p.imag == 0:
+                names.append(f"pole[{i}]")
+            elif p.imag > 0:
+                names += [f"Re pole[{i}]", f"Im pole[{i}]"]
+        return tuple(names)
 
     @property
     def n_real_poles(self) -> int:
@@ -668,7 +681,7 @@ def _r_factor(A, overwrite=False):
     m = A.shape[1]
     if A.shape[0] < m:
         return np.linalg.qr(A, mode="r")
-    qr, _, _, info = _LAPACK.dgeqrf(A, overwrite_a=overwrite)
+    qr = _LAPACK.dgeqrf(A, overwrite_a=overwrite)[0]
     return np.triu(qr[:m, :m])
 
 
@@ -841,7 +854,7 @@ def _fit_fixed(s, h, w, preal, pcplx, flags):
         chi2 = float(R[m, m] ** 2)
         G = Ri @ Ri.T
     else:
-        G, Vt, inv = _pinv_gram(Ab[:, :m])
+        G = _pinv_gram(Ab[:, :m])[0]
         xs = G @ (Ab[:, :m].T @ Ab[:, m])
         r = Ab[:, :m] @ xs - Ab[:, m]
         chi2 = float(r @ r)
