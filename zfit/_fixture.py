@@ -478,6 +478,8 @@ def compensate_from_files(
         raise ZfitInputError("the load standard needs its known impedance: give --load-value (ohm)", load_path)
     if load_path is None and load_ohm is not None:
         raise ZfitInputError("--load-value given without a --load file")
+    if isinstance(noise, str) and noise != "part":
+        raise ZfitInputError(f"noise must be 'part', None or an InstrumentNoise, not {noise!r}")
     conn = connection
     if conn is None and sweep.connection in NA_CONNECTIONS and sweep.s_param is not None:
         conn = sweep.connection
@@ -515,7 +517,29 @@ def compensate_from_files(
     )
 
 
+#: Standards read so far, by file identity and reading options: a lot of
+#: thousands of parts shares its three standards' files (`Sweep` is frozen).
+_STANDARDS: dict = {}
+_STANDARDS_MAX = 32
+
+
 def _read_standard(read_sweep, path, connection, noise):
+    try:
+        st = path.stat()
+        key = (str(path.resolve()), st.st_mtime_ns, st.st_size, connection, noise)
+    except OSError:
+        key = None
+    if key is not None and key in _STANDARDS:
+        return _STANDARDS[key]
+    sweep = _read_standard_uncached(read_sweep, path, connection, noise)
+    if key is not None:
+        if len(_STANDARDS) >= _STANDARDS_MAX:
+            _STANDARDS.pop(next(iter(_STANDARDS)))
+        _STANDARDS[key] = sweep
+    return sweep
+
+
+def _read_standard_uncached(read_sweep, path, connection, noise):
     try:
         return read_sweep(path, connection=connection, noise=noise)
     except ZfitInputError:
