@@ -422,11 +422,14 @@ class InductorCircuit(Circuit):
             if rk.real > 0:
                 C = 1.0 / (2.0 * rk.real)
                 L = 1.0 / (abs(pk) ** 2 * C)
-                R = max(-2.0 * pk.real * L, 1e-9)
-                p = [L, R, C]
+                damping = -2.0 * pk.real  # = R_s/L (+ 1/(R_p C_p) with core loss)
                 if self.core_loss:
-                    p.append(1e2 * float(abs(rational.impedance(np.array([abs(pk) / _TWO_PI]))[0])))
-                return np.array(p)
+                    # R_s from the low-frequency end (Z -> R_s || R_p ~ R_s), R_p from the rest of the damping.
+                    R = max(float(rational.impedance(f[:1]).real[0]), 1e-9)
+                    g = damping - R / L
+                    Rp = 1.0 / (g * C) if g > 0 else 1e2 * float(abs(rational.impedance(np.array([abs(pk) / _TWO_PI]))[0]))
+                    return np.array([L, R, C, Rp])
+                return np.array([L, max(damping * L, 1e-9), C])
         L = float(rational.proportional)
         R = float(rational.constant)
         if L > 0:
@@ -611,10 +614,13 @@ class CapacitorCircuit(Circuit):
         inv_c = float(getattr(rational, "origin_residue", 0.0) or 0.0)
         leak_pole = None
         real = np.abs(poles.imag) <= 1e-9 * np.abs(poles)
-        if not inv_c > 0 and real.any():
+        if real.any():
+            # The real pole nearest the origin is a leaky C when it dominates the origin term at f_min.
             k = int(np.argmin(np.abs(poles[real])))
-            inv_c = float(res[real][k].real)
-            leak_pole = float(-poles[real][k].real)
+            r, p = float(res[real][k].real), float(poles[real][k].real)
+            s0 = 1j * _TWO_PI * f[0]
+            if r > 0 and p < 0 and abs(r / (s0 - p)) > abs(inv_c / s0):
+                inv_c, leak_pole = r, -p
         if not inv_c > 0:
             return None
         C = 1.0 / inv_c

@@ -62,7 +62,6 @@ DEFAULT_RDC_REL = 0.01
 #: resolved by the sweep.
 UNRESOLVED_REL = 0.5
 
-_DEBUG = False
 _PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
 
 
@@ -513,13 +512,14 @@ def _rational_fit(sweep, kind, n_poles):
     return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts)
 
 
-def _reweighted_rational(sweep, ref, kind, n_poles):
-    """The rational model refitted with sigma at the circuit's S, if that matters."""
+def _reweighted_rational(sweep, ref, kind, n_poles, inside):
+    """The rational model refitted with sigma at the circuit's S (where `inside`), if that matters."""
     from ._connection import dz_ds, s_from_impedance
 
     s_model = s_from_impedance(ref.impedance(sweep.f_hz), sweep.connection, sweep.reference_ohm)
     with np.errstate(all="ignore"):
         sig_model = np.abs(dz_ds(s_model, sweep.connection, sweep.reference_ohm)) * sweep.noise.sigma(s_model)
+    sig_model = np.where(inside, sig_model, 0.0)
     sig = np.fmax(sweep.sigma_ohm, np.where(np.isfinite(sig_model), sig_model, np.inf))
     sig = np.where(np.isfinite(sig), sig, 1e6 * np.max(sweep.sigma_ohm))
     if not np.any(sig > 1.5 * sweep.sigma_ohm):
@@ -756,9 +756,6 @@ def identify(
         return b if rf is None else min(b, _summary(rf, rows_full) + margin)
 
     family = min(fitted, key=family_bic)
-    if _DEBUG and len(fitted) == 2:
-        ch = {f: fitted[f].chi2 for f in fitted}
-        print("DBG", sweep.source, {f: round(family_bic(f)) for f in fitted}, {f: round(ch[f]) for f in ch}, family, min(fitted, key=lambda f: ch[f]))
     prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
     rb, rf = fitted[family], optional[family]
     cands = []
@@ -770,43 +767,91 @@ def identify(
     if rf is not None and _summary(rf, rows_full) < _summary(rb, rows_full) - margin:
         chosen = rf
 
-    # The rational model again, weighted with the analyser noise at the circuit's
-    # impedance where that is larger than at the measured one: where the part's
-    # impedance sits in the analyser's noise (1 - S within the noise) the measured
-    # Z is biased and its first-order sigma far too small, and those points
-    # would otherwise distort the whole rational model.
-    if rational is not None and obs.on_s:
-        refit_rm = _reweighted_rational(sweep, chosen, kind, n_poles)
-        if refit_rm is not None:
-            rational = refit_rm
-            e_rat, rat_rms, bic_rat = rational_scores(rational)
-
     # 4. The band where the circuit holds; refit over it when it is not the whole band.
     def residual_energy(ref):
         return np.abs(obs.normalized(ref.impedance(sweep.f_hz))) ** 2
 
     e_c = residual_energy(chosen)
-    ok = valid_mask(e_c, e_rat)
-    i0, i1 = _run_length_band(ok)
+    i0, i1 = _run_length_band(valid_mask(e_c, e_rat))
     fitted_mask = None
     k = chosen.circuit.n_params
-    if (i1 - i0) < 0.97 * sweep.n_points and (i1 - i0) >= max(10, 4 * k):
-        mask = np.zeros(sweep.n_points, bool)
-        mask[i0:i1] = True
-        sub = obs.subset(mask)
-        try:
-            starts = [chosen.values] + chosen.circuit.starts(sub.f_hz, sub.z_ohm, sub.sigma_ohm, rational)
-            refit = refine(chosen.circuit, sub, starts, prior=prior, n_best=3)
-            e_new = residual_energy(refit)
-            ok_new = valid_mask(e_new, e_rat)
-            j0, j1 = _run_length_band(ok_new)
-            if (j1 - j0) >= (i1 - i0):
-                chosen, e_c, (i0, i1) = refit, e_new, (j0, j1)
-                fitted_mask = mask
-        except FitError:
-            pass
+    n = sweep.n_points
+    min_pts = max(10, 4 * k + 2)
+    if (i1 - i0) < 0.97 * n:
+        from ._circuits import circuits_of
+
+        base, full = circuits_of(family)
+
+        def sub_fit(circuit, mask, seed=None):
+            sub = obs.subset(mask)
+            starts = ([] if seed is None else [seed]) + circuit.starts(sub.f_hz, sub.z_ohm, sub.sigma_ohm, rational)
+            try:
+                ref = refine(circuit, sub, starts, prior=prior, n_best=2)
+            except FitError:
+                return None
+            e = residual_energy(ref)
+            return ref, e, _run_length_band(valid_mask(e, e_rat)), mask
+
+        # Sub-bands to try: the valid run found, the band below each further
+        # resonance of the rational model, and the upper or lower part of the band.
+        logf = np.log(sweep.f_hz)
+        span = logf[-1] - logf[0]
+        masks = []
+        if i1 - i0 >= min_pts:
+            m = np.zeros(n, bool)
+            m[i0:i1] = True
+            masks.append(m)
+        if rational is not None:
+            fr = np.sort(np.abs(np.asarray(rational.poles)[np.asarray(rational.poles).imag > 0])) / (2 * math.pi)
+            fr = fr[(fr > band[0]) & (fr < band[1])]
+            for fa, fb in zip(fr[:-1], fr[1:]):
+                masks.append(sweep.f_hz <= math.sqrt(fa * fb))
+        for frac in (0.75, 0.5):
+            masks.append(logf <= logf[0] + frac * span)
+            masks.append(logf >= logf[-1] - frac * span)
+        best = None
+        for m in masks:
+            if m.sum() < min_pts:
+                continue
+            got = sub_fit(base, m)
+            if got is not None and (best is None or (got[2][1] - got[2][0], m.sum()) > (best[2][1] - best[2][0], best[3].sum())):
+                best = got
+        if best is not None and (best[2][1] - best[2][0]) > (i1 - i0):
+            # Refit over the valid run found, and decide the optional element there.
+            j0, j1 = best[2]
+            m = np.zeros(n, bool)
+            m[j0:j1] = True
+            if m.sum() >= min_pts:
+                got_b = sub_fit(base, m, best[0].values) or best
+                got_f = sub_fit(full, m, np.append(got_b[0].values, np.max(np.abs(sweep.z_ohm)) * 10)
+                                if family == "inductor" else None)
+                pick = got_b
+                if got_f is not None:
+                    rows_m = 2 * int(m.sum())
+                    if _summary(got_f[0], rows_m) < _summary(got_b[0], rows_m) - margin:
+                        pick = got_f
+                if (pick[2][1] - pick[2][0]) >= (best[2][1] - best[2][0]):
+                    best = pick
+            chosen, e_c, (i0, i1), fitted_mask = best
+            k = chosen.circuit.n_params
     if i1 <= i0:
         i0, i1 = 0, 0
+    # The rational model again, weighted with the analyser noise at the circuit's
+    # impedance where that is larger than at the measured one, inside the band
+    # where the circuit holds: where the part's impedance sits in the analyser's
+    # noise (1 - S within the noise) the measured Z is biased and its
+    # first-order sigma far too small, and those points would otherwise distort
+    # the whole rational model.  Kept only if it describes the measured S better.
+    if rational is not None and obs.on_s and i1 > i0:
+        inside = np.zeros(sweep.n_points, bool)
+        inside[i0:i1] = True
+        refit_rm = _reweighted_rational(sweep, chosen, kind, n_poles, inside)
+        if refit_rm is not None:
+            scores = rational_scores(refit_rm)
+            if scores[1] <= rat_rms * 1.02:
+                rational = refit_rm
+                e_rat, rat_rms, bic_rat = scores
+
     valid_band = (float(sweep.f_hz[i0]), float(sweep.f_hz[max(i1 - 1, i0)])) if i1 > i0 else (math.nan, math.nan)
     fitted_band = band if fitted_mask is None else (float(sweep.f_hz[fitted_mask][0]), float(sweep.f_hz[fitted_mask][-1]))
     bic_c_full = _bic(float(2 * e_c.sum()), rows_full, k)
@@ -820,7 +865,12 @@ def identify(
         return _finish(res, notes)
     if worse:
         rms_full = float(math.sqrt(np.mean(e_c)))
-        if fitted_mask is not None or (i1 - i0) < sweep.n_points:
+        if i1 <= i0:
+            notes.append(
+                f"the {chosen.circuit.topology} does not describe the data to within the noise anywhere in the band "
+                f"(normalised RMS residual {rms_full:.3g}, rational model {rat_rms:.3g}); its values are not reliable"
+            )
+        elif fitted_mask is not None or (i1 - i0) < sweep.n_points:
             notes.append(
                 f"the {chosen.circuit.topology} describes the data to within the noise only from "
                 f"{valid_band[0]:.4g} Hz to {valid_band[1]:.4g} Hz (normalised RMS residual {rms_full:.3g} over the "

@@ -46,7 +46,6 @@ _SQRT2 = math.sqrt(2.0)
 _LOG_SPAN = 25.0
 # Trust-region reflective with the Jacobian's own scaling.  Tolerances of
 # 1e-8 on the cost are far below any change of statistical meaning.
-_DEBUG = False
 _METHOD = dict(method="trf", x_scale="jac", xtol=1e-8, ftol=1e-8, gtol=1e-8)
 
 
@@ -395,8 +394,6 @@ def refine(
         except (ValueError, FloatingPointError, np.linalg.LinAlgError):
             continue
         nfev += sol.nfev
-        if _DEBUG:
-            print(circuit.topology, sol.nfev, sol.njev, sol.cost, sol.status)
         if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
             best = sol
     if best is None:
