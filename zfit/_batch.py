@@ -164,7 +164,8 @@ class PartOutcome:
     index : int
     name : str
     result : dict or None
-        The ``zfit.identify/1`` JSON object, None on error.
+        The ``zfit.identify/1`` JSON object (the parts the summary needs:
+        model, topology, parameters, srf, fit, spot, warnings), None on error.
     error : str or None
         One line saying what went wrong.
     warnings : tuple of str
@@ -271,7 +272,18 @@ def _identify_part(task: PartTask) -> PartOutcome:
         w = w[len(task.name) + 2:] if w.startswith(task.name + ": ") else w
         if w not in seen:
             seen.append(w)
-    return PartOutcome(task.index, task.name, result, error, tuple(seen), False, time.perf_counter() - t0)
+    return PartOutcome(task.index, task.name, None if result is None else _slim(result), error, tuple(seen),
+                       False, time.perf_counter() - t0)
+
+
+#: What the summary needs of a result: the rest stays in the part's JSON file,
+#: so that a lot of many thousands of parts costs little memory and pickling.
+_ROW_KEYS = ("schema", "zfit_version", "source", "connection", "model", "topology", "parameters", "srf",
+             "fit", "spot", "warnings")
+
+
+def _slim(result: dict) -> dict:
+    return {k: result[k] for k in _ROW_KEYS if k in result}
 
 
 def _identify_chunk(tasks: Sequence[PartTask]) -> list[PartOutcome]:
@@ -1279,7 +1291,7 @@ def run_batch(
         if stored is None:
             todo.append(t)
         else:
-            outcomes[t.index] = PartOutcome(t.index, t.name, stored, skipped=True)
+            outcomes[t.index] = PartOutcome(t.index, t.name, _slim(stored), skipped=True)
     if outcomes:
         progress.skip(len(outcomes))
 
