@@ -476,3 +476,14 @@ def test_capacitor_lot_measured_shunt_thru(tmp_path):
         assert float(row["D@1MHz"]) == pytest.approx(d_true, rel=0.02)
         assert float(row["C"]) == pytest.approx(p["C"], rel=0.01)
     assert rows["C07.s2p"]["failed_limits"] == "ESR;ESR@100kHz;D@1MHz"
+
+
+def test_output_names_mirror_the_inputs_and_never_collide(tmp_path):
+    from zfit._batch import _output_names
+
+    for rel in ("day1/L1.s1p", "day2/L1.s1p", "day2/L2.s1p", "day2/L2.csv"):
+        (tmp_path / rel).parent.mkdir(parents=True, exist_ok=True)
+        (tmp_path / rel).write_text("x")
+    items = [(tmp_path / rel, rel) for rel in ("day1/L1.s1p", "day2/L1.s1p", "day2/L2.csv", "day2/L2.s1p")]
+    assert _output_names(items) == ["day1/L1", "day2/L1", "day2/L2.csv", "day2/L2.s1p"]
+    assert _output_names(items[2:3]) == ["L2"]
