@@ -61,6 +61,7 @@ def test_predicted_uncertainty_agrees_with_a_monte_carlo_of_identify(part, plans
     compared = 0
     for cp in plan.connections:
         values = {k: [] for k in params}
+        srfs = []
         for _ in range(RUNS):
             sw = noisy_sweep(model, params, cp.connection, f, rng)
             with warnings.catch_warnings():
@@ -72,6 +73,8 @@ def test_predicted_uncertainty_agrees_with_a_monte_carlo_of_identify(part, plans
             for k in params:
                 if k in ident.parameters:
                     values[k].append(ident.parameters[k].value)
+            if ident.srf.value_hz is not None:
+                srfs.append(ident.srf.value_hz)
         for k, p in cp.parameters.items():
             if not p.resolved:
                 continue
@@ -81,6 +84,9 @@ def test_predicted_uncertainty_agrees_with_a_monte_carlo_of_identify(part, plans
             # and the estimates are centred on the truth (4 standard errors)
             assert abs(np.mean(values[k]) - params[k]) < 4 * mc / math.sqrt(len(values[k])) + 1e-9 * params[k]
             compared += 1
+        # The SRF, propagated through the same covariance.
+        assert len(srfs) == RUNS
+        assert abs(np.std(srfs, ddof=1) / cp.srf_std_hz - 1) < 0.25, (cp.connection, "SRF")
     assert compared >= 3 * len(plan.connections) - 1
 
 

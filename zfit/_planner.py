@@ -155,6 +155,9 @@ class ConnectionPlan:
         The identification's warnings, the connection's conditioning warning.
     error : str or None
         Why the identification failed on the simulated measurement, if it did.
+    srf_std_hz : float or None
+        Expected standard uncertainty of the self-resonant frequency (first
+        order through the same covariance), None without a resonance.
     """
 
     connection: str
@@ -162,6 +165,7 @@ class ConnectionPlan:
     parameters: "MappingProxyType[str, PlannedParameter]"
     fit_band_hz: tuple
     topology: str | None = None
+    srf_std_hz: float | None = None
     warnings: tuple = ()
     error: str | None = None
 
@@ -195,6 +199,7 @@ class ConnectionPlan:
             "resolved": self.n_resolved,
             "score": self.score,
             "fit_band_hz": list(self.fit_band_hz),
+            "srf_std_hz": None if self.srf_std_hz is None or not math.isfinite(self.srf_std_hz) else self.srf_std_hz,
             "topology": self.topology,
             "warnings": list(self.warnings),
             "error": self.error,
@@ -392,7 +397,7 @@ def plan_measurement(
     """
     from ._circuits import circuit_for
     from ._identify import identify
-    from ._resolution import fisher_uncertainties, is_resolved, limits_for
+    from ._resolution import fisher_log_covariance, fisher_uncertainties, is_resolved, limits_for
 
     params = _check_params(model, dict(params))
     lo, hi = (float(band[0]), float(band[1]))
@@ -449,6 +454,7 @@ def plan_measurement(
             connection=conn, noise=nz, parameters=MappingProxyType(entries),
             fit_band_hz=(float(f[keep][0]), float(f[keep][-1])), topology=topology,
             warnings=tuple(dict.fromkeys(warns)), error=error,
+            srf_std_hz=_srf_std(circuit, params, *fisher_log_covariance(model, params, f[keep], clean.sigma_ohm[keep])),
         ))
     ranked = sorted(plans, key=lambda c: (c.error is not None, -c.n_resolved, c.score))
     best = ranked[0]
@@ -465,6 +471,25 @@ def plan_measurement(
             "the identification fitted; the circuit is taken as exact and calibration errors are not included",
         ),
     )
+
+
+def _srf_std(circuit, params, keys, log_cov):
+    """First-order uncertainty of the circuit's SRF from the log-parameter covariance."""
+    p = circuit.vector(params)
+    f0 = circuit.srf_hz(p)
+    if f0 is None or not np.all(np.isfinite(log_cov)):
+        return None if f0 is None else math.inf
+    h = 1e-6
+    g = np.empty(p.size)
+    for i in range(p.size):
+        up, dn = p.copy(), p.copy()
+        up[i] *= math.exp(h)
+        dn[i] *= math.exp(-h)
+        a, b = circuit.srf_hz(up), circuit.srf_hz(dn)
+        if a is None or b is None:
+            return None
+        g[i] = (a - b) / (2 * h)
+    return float(math.sqrt(max(g @ log_cov @ g, 0.0)))
 
 
 def _rel_text(p: PlannedParameter) -> str:
@@ -523,11 +548,22 @@ def format_plan(plan: Plan) -> str:
             elif not p.resolved:
                 cell = "not resolved"
             cells[k, c.connection] = cell
-    widths = {c.connection: 2 + max([len(c.label)] + [len(cells[k, c.connection]) for k in plan.params])
+    rows = list(plan.params)
+    if plan.srf_hz:
+        rows.append("SRF")
+        for c in plan.connections:
+            ok = c.srf_std_hz is not None and math.isfinite(c.srf_std_hz)
+            cells["SRF", c.connection] = (
+                f"+-{format_eng(c.srf_std_hz)}Hz ({_percent(c.srf_std_hz / plan.srf_hz)})" if ok else "not determined"
+            )
+    widths = {c.connection: 2 + max([len(c.label)] + [len(cells[k, c.connection]) for k in rows])
               for c in plan.connections}
     lines.append(("parameter".ljust(10) + "".join(c.label.ljust(widths[c.connection]) for c in plan.connections)).rstrip())
     for k in plan.params:
         row = k.ljust(10) + "".join(cells[k, c.connection].ljust(widths[c.connection]) for c in plan.connections)
+        lines.append(row.rstrip())
+    if plan.srf_hz:
+        row = "SRF".ljust(10) + "".join(cells["SRF", c.connection].ljust(widths[c.connection]) for c in plan.connections)
         lines.append(row.rstrip())
     for c in plan.connections:
         if c.error:

@@ -56,6 +56,7 @@ from ._units import format_eng
 __all__ = [
     "PARAMETER_KEYS",
     "RESOLUTION_KIND",
+    "fisher_log_covariance",
     "fisher_uncertainties",
     "resolution_limits",
     "limits_for",
@@ -85,8 +86,8 @@ def _impedance(model, params, f):
     return np.asarray(circuit_impedance(model, params, f), dtype=complex)
 
 
-def fisher_uncertainties(model: str, params, f_hz, sigma_ohm) -> dict[str, float]:
-    """Return each parameter's standard uncertainty from the Fisher information.
+def fisher_log_covariance(model: str, params, f_hz, sigma_ohm):
+    """Return the inverse Fisher information of a circuit's log-parameters.
 
     Parameters
     ----------
@@ -102,17 +103,20 @@ def fisher_uncertainties(model: str, params, f_hz, sigma_ohm) -> dict[str, float
 
     Returns
     -------
-    dict
-        ``{key: std}`` in the parameter's unit; ``inf`` for a parameter the
-        sweep does not determine at all (singular information).
+    keys : tuple of str
+        The circuit's parameters, in the order of the matrix.
+    log_cov : numpy.ndarray
+        Covariance of ``ln(theta)``; rows and columns of a parameter the
+        sweep does not determine are ``inf``.
 
     Notes
     -----
     For data ``Z_k = Z(f_k; theta) + e_k`` with independent circular Gaussian
     ``e_k`` of variance ``sigma_k^2``, the Fisher information is
-    ``F = 2 Re(J^H diag(1/sigma^2) J)`` with ``J = dZ/dtheta``; its inverse
-    is the covariance an efficient (weighted least-squares) estimator
-    reaches.  ``J`` is taken by central differences in ``log theta``.
+    ``F = 2 Re(J^H diag(1/sigma^2) J)`` with ``J = dZ/d ln(theta)`` (the
+    circuit's analytic log-Jacobian); its inverse is the covariance an
+    efficient (weighted least-squares) estimator reaches, the Cramer-Rao
+    bound.
 
     References
     ----------
@@ -145,10 +149,35 @@ def fisher_uncertainties(model: str, params, f_hz, sigma_ohm) -> dict[str, float
             # its inverse diagonal is huge, negative or not finite.
             if inv is not None and np.all(np.isfinite(inv)) and np.all(np.diag(inv) > 0) and np.max(np.diag(inv)) < 1e15:
                 cov[np.ix_(good, good)] = inv / np.outer(d[good], d[good])
+    return keys, cov
+
+
+def fisher_uncertainties(model: str, params, f_hz, sigma_ohm) -> dict[str, float]:
+    """Return each parameter's standard uncertainty from the Fisher information.
+
+    Parameters
+    ----------
+    model : {'inductor', 'capacitor'}
+        The equivalent circuit (`zfit._circuits.circuit_impedance`).
+    params : mapping
+        Parameter values in SI units (the keys present choose the topology).
+    f_hz : array_like
+        Frequencies, Hz.
+    sigma_ohm : array_like
+        Standard uncertainty of each measured impedance, complex-circular, ohm.
+
+    Returns
+    -------
+    dict
+        ``{key: std}`` in the parameter's unit (``value * std(ln value)``,
+        first order); ``inf`` for a parameter the sweep does not determine
+        (see `fisher_log_covariance`).
+    """
+    keys, cov = fisher_log_covariance(model, params, f_hz, sigma_ohm)
     out = {}
     for i, k in enumerate(keys):
         var = cov[i, i]
-        out[k] = float(theta[i] * math.sqrt(var)) if np.isfinite(var) and var >= 0 else math.inf
+        out[k] = float(abs(float(params[k])) * math.sqrt(var)) if np.isfinite(var) and var >= 0 else math.inf
     return out
 
 
