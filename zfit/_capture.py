@@ -522,6 +522,8 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
     if len(head) == _HEAD_BYTES and len(lines) > 1:
         lines = lines[:-1]  # the last line of the head may be cut
     lines = [ln.rstrip("\r") for ln in lines]
+    while lines and not lines[-1].strip():
+        lines.pop()
     try:
         delim, dec, start, ncols = _guess_layout(lines, delimiter)
     except ZfitInputError as exc:
@@ -544,6 +546,7 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
     meta_t0 = _meta_value(meta, _T0_KEYS)
 
     tcol = None
+    guessed = False
     if time_column is False:
         tcol = None
     elif time_column is not None:
@@ -555,7 +558,8 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
     elif dt_given is None and meta_dt is None:
         if ncols < 2:
             raise ZfitInputError("one column and no sample interval in the file; give the sample interval (dt)", path)
-        tcol = 0  # no header and no interval: the first column is time, as scopes write it
+        tcol = 0  # no time name and no interval: the first column is time, as scopes write it
+        guessed = True
     offset = _line_offsets(head, start)
 
     # Estimated rows, for one allocation: file size over the typical line length.
@@ -586,6 +590,9 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
 
     t0 = 0.0
     if tcol is not None:
+        if guessed and not np.all(np.diff(cols[tcol][: 1 << 12]) >= 0):
+            raise ZfitInputError("no time column (column 1 does not increase) and no sample interval in the header; "
+                                 "give the sample interval (dt)", path)
         tdt, tt0, tnotes = _uniform_time(cols[tcol], path, start + 1)
         notes.extend(tnotes)
         dt, t0 = tdt, tt0
@@ -667,17 +674,19 @@ def _uniform_time(t: np.ndarray, path, first_line: int):
     rms = math.sqrt(sum_sq / n)
     resolution = max(dt, min_pos if math.isfinite(min_pos) else dt)
     coarse = resolution > 1.5 * dt
-    if max_res > 0.5 * resolution * 1.02 + 1e-12 * abs(t).max():
-        # Locate the first step that breaks the grid for the message.
-        for i in range(0, n, step):
-            seg = t[i:i + step + 1]
-            d = np.diff(seg)
-            bad = (d > 1.5 * resolution) | ((d == 0) & (not coarse))
-            if bad.any():
-                k = i + int(np.flatnonzero(bad)[0]) + 1
-                raise ZfitInputError(
-                    f"non-uniform time steps: step of {d[k - i - 1]:.6g} s where the record averages {dt:.6g} s "
-                    f"(missing or repeated samples, or a pieced-together record)", path, first_line + k)
+    # A step of more than 1.5 intervals (a missing sample) or of zero (a
+    # repeated one) breaks the grid, unless the printout is coarser than dt.
+    for i in range(0, n, step):
+        seg = t[i:i + step + 1]
+        d = np.diff(seg)
+        bad = (d > 1.5 * resolution + 1e-9 * resolution) | ((d <= 0.5 * dt) & (not coarse))
+        if bad.any():
+            k = i + int(np.flatnonzero(bad)[0]) + 1
+            raise ZfitInputError(
+                f"non-uniform time steps: step of {d[k - i - 1]:.6g} s where the record averages {dt:.6g} s "
+                f"(missing or repeated samples, or a pieced-together record)", path, first_line + k)
+    # A coarse printout rounds the two end points too, which anchor the grid.
+    if max_res > (1.0 if coarse else 0.5) * resolution * 1.02 + 1e-12 * abs(t).max():
         raise ZfitInputError(
             f"non-uniform time steps: times drift up to {max_res / dt:.3g} sample intervals from a uniform grid "
             f"(dt = {dt:.6g} s)", path, first_line)

@@ -127,13 +127,22 @@ def state_levels(x, *, bins: int | None = None) -> Levels:
         m = lo_bin + int(np.argmax(counts[lo_bin:hi_bin]))
         a, b = max(lo_bin, m - w), min(hi_bin, m + w + 1)
         c = counts[a:b].sum()
-        mean = sums[a:b].sum() / c
-        var = max(sq[a:b].sum() / c - mean * mean, 0.0)
-        return mean, math.sqrt(var)
+        return sums[a:b].sum() / c, (lo + a / scale, lo + b / scale)
 
-    low, ln = level(0, half)
-    high, hn = level(half, nb)
-    return Levels(float(low), float(high), float(ln), float(hn))
+    low, (la, lb) = level(0, half)
+    high, (ha, hb) = level(half, nb)
+    # The noise from differences of consecutive settled samples: a slow
+    # approach to the level (an R-C tail) inflates the spread of the samples
+    # around the level, but not their differences.
+    d = np.diff(x)
+
+    def noise(a, b):
+        inside = (x >= a) & (x <= b)
+        pair = inside[:-1] & inside[1:]
+        k = int(np.count_nonzero(pair))
+        return math.sqrt(float(np.dot(d[pair], d[pair])) / (2.0 * k)) if k else 0.0
+
+    return Levels(float(low), float(high), noise(la, lb), noise(ha, hb))
 
 
 def find_edges(x, levels: Levels, *, low_ref: float = 0.1, high_ref: float = 0.9):
