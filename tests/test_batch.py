@@ -14,6 +14,7 @@ import io
 import json
 import math
 import os
+import shutil
 import statistics
 
 import numpy as np
@@ -328,7 +329,11 @@ def test_inputs_as_files_folders_and_globs(lot, tmp_path):
         assert names.count("sweeps/L001.s1p") == 1
         assert [n for _, n in expand_inputs(["sweeps/L01[0-2].s1p"])] == [
             "sweeps/L010.s1p", "sweeps/L011.s1p", "sweeps/L012.s1p"]
-        # The output folder is never taken as input.
+        # The output folder is never taken as input, nor an earlier run's output inside a folder input.
+        (root / "sweeps" / "old_run").mkdir(exist_ok=True)
+        (root / "sweeps" / "old_run" / "summary.csv").write_text("file,verdict\n")
+        (root / "sweeps" / "old_run" / "lot.json").write_text('{\n  "schema": "zfit.batch-lot/1"\n}\n')
+        assert len(expand_inputs(["sweeps"])) == 52
         with pytest.raises(ZfitInputError, match="no sweep files found"):
             expand_inputs(["sweeps"], exclude="sweeps")
         with pytest.raises(ZfitInputError, match="no file matches"):
@@ -336,6 +341,7 @@ def test_inputs_as_files_folders_and_globs(lot, tmp_path):
         with pytest.raises(ZfitInputError, match="no such file"):
             expand_inputs(["nowhere.s1p"])
     finally:
+        shutil.rmtree(root / "sweeps" / "old_run", ignore_errors=True)
         os.chdir(cwd)
 
 

@@ -329,14 +329,23 @@ def _reusable(task: PartTask, force: bool) -> dict | None:
 # Inputs
 
 
+def _is_batch_output(folder: Path) -> bool:
+    try:
+        with open(folder / LOT_JSON_NAME, "rb") as fh:
+            return b'"zfit.batch-lot/1"' in fh.read(256)
+    except OSError:
+        return False
+
+
 def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
     """Return the sweep files named by `inputs`, sorted and without repeats.
 
     Parameters
     ----------
     inputs : sequence of str or os.PathLike
-        Files, folders (searched recursively for `SWEEP_SUFFIXES`, hidden
-        entries skipped) and glob patterns (``lot7/*.s1p``, ``**`` allowed).
+        Files, folders (searched recursively for `SWEEP_SUFFIXES`; hidden
+        entries and the output folders of earlier runs skipped) and glob
+        patterns (``lot7/*.s1p``, ``**`` allowed).
     exclude : str or os.PathLike, optional
         A folder whose content is never taken (the output folder).
 
@@ -365,6 +374,9 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
         p = Path(text)
         if p.is_dir():
             for root, dirs, files in os.walk(p):
+                if LOT_JSON_NAME in files and _is_batch_output(Path(root)):
+                    dirs[:] = []  # an earlier run's output folder: its CSVs are not sweeps
+                    continue
                 dirs[:] = sorted(d for d in dirs if not d.startswith("."))
                 for fn in sorted(files):
                     if not fn.startswith(".") and Path(fn).suffix.lower() in SWEEP_SUFFIXES:
