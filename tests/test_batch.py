@@ -168,6 +168,7 @@ def runs(lot):
     return out
 
 
+@pytest.mark.ngspice
 def test_every_verdict_is_right_and_bad_files_are_reported(lot, runs):
     root, _, _, truth = lot
     r = runs["jobs1"]
@@ -208,6 +209,7 @@ def test_every_verdict_is_right_and_bad_files_are_reported(lot, runs):
     assert not (root / "jobs1" / "L900.json").exists()
 
 
+@pytest.mark.ngspice
 def test_same_summary_for_jobs_1_jobs_2_and_dask(lot, runs):
     root = lot[0]
     for tag in ("jobs2", "dask"):
@@ -220,6 +222,7 @@ def test_same_summary_for_jobs_1_jobs_2_and_dask(lot, runs):
         assert (root / "dask" / name).read_bytes() == ref, name
 
 
+@pytest.mark.ngspice
 def test_lot_statistics_and_capability(lot, runs):
     root = lot[0]
     rows = [r for r in _read_csv(root / "jobs1" / "summary.csv") if r["verdict"] != "error"]
@@ -258,6 +261,7 @@ def test_capability_formula_against_the_normal_table():
     assert _ppm_out(10.0, 0.1, 9.7, 10.5) == pytest.approx(1349.898 + 0.2867, rel=1e-4)
 
 
+@pytest.mark.ngspice
 def test_guard_band_makes_a_part_near_a_limit_indeterminate(lot, runs, tmp_path):
     root, folder, _, _ = lot
     doc = json.loads((root / "jobs1" / "L004.json").read_text())
@@ -284,6 +288,7 @@ def test_guard_band_makes_a_part_near_a_limit_indeterminate(lot, runs, tmp_path)
         assert summary[0]["verdict"] == verdict
 
 
+@pytest.mark.ngspice
 def test_rerun_skips_up_to_date_parts_and_force_redoes_them(lot, tmp_path):
     _, folder, limits, _ = lot
     src = tmp_path / "in"
@@ -318,6 +323,7 @@ def test_rerun_skips_up_to_date_parts_and_force_redoes_them(lot, tmp_path):
     assert not [p for p in out.rglob("*.part")]
 
 
+@pytest.mark.ngspice
 def test_inputs_as_files_folders_and_globs(lot, tmp_path):
     root, folder, _, _ = lot
     cwd = os.getcwd()
@@ -345,6 +351,7 @@ def test_inputs_as_files_folders_and_globs(lot, tmp_path):
         os.chdir(cwd)
 
 
+@pytest.mark.ngspice
 def test_cli_reports_bad_limits_and_inputs_in_one_line(lot, tmp_path):
     _, folder, _, _ = lot
     bad = tmp_path / "bad.toml"
