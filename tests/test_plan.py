@@ -66,9 +66,6 @@ def test_predicted_uncertainty_agrees_with_a_monte_carlo_of_identify(part, plans
             sw = noisy_sweep(model, params, cp.connection, f, rng)
             with warnings.catch_warnings():
                 warnings.simplefilter("ignore", MeasurementWarning)
-                # identify's figures can raise a numpy RuntimeWarning on an
-                # unlucky realisation (reported to its owner); not this test's subject.
-                warnings.simplefilter("ignore", RuntimeWarning)
                 ident = identify(sw, model=model)
             for k in params:
                 if k in ident.parameters:
