@@ -29,8 +29,8 @@ the open's admittance corrected for the short.  In general
 (``AD - BC = 1``), so the two-standard result is the part's impedance
 divided by ``D^2``: exact when ``D = 1`` (series residual at the analyser,
 stray admittance across the part), off by about ``2 |D - 1|`` otherwise.
-With a stray admittance ``Y_a`` at the analyser's side of leads ``Z_l``,
-``D = 1 + Y_a Z_l``: negligible for an electrically short fixture, the
+With a stray admittance ``Y_a`` at the analyser's side of leads
+``Z_lead``, ``D = 1 + Y_a Z_lead``: negligible for an electrically short fixture, the
 reason to measure a load for a longer one.
 
 The corrections are holomorphic in each measured impedance, so independent
