@@ -22,7 +22,7 @@ from ._units import parse_quantity
 __all__ = [
     "app", "guarded", "quantity", "quantities", "echo", "warn_line", "sweep_from_options",
     "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
-    "LoadOpt", "LoadValueOpt", "PortDelayOpt", "ForceOpt",
+    "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
 ]
 
 app = typer.Typer(
@@ -76,6 +76,9 @@ def guarded(fn):
                 text = exc.one_line() if isinstance(exc, ZfitInputError) else str(exc)
                 typer.echo(f"zfit: error: {text}", err=True)
                 raise typer.Exit(2) from None
+            except BrokenPipeError:
+                # The reader of our output (`| head`) has gone: not an error of ours.
+                raise typer.Exit(0) from None
             except OSError as exc:
                 name = exc.filename if exc.filename is not None else ""
                 typer.echo(f"zfit: error: {name}: {exc.strerror or exc}", err=True)
@@ -123,6 +126,10 @@ ShortOpt = Annotated[Optional[Path], typer.Option("--short", help="Short-fixture
 LoadOpt = Annotated[Optional[Path], typer.Option("--load", help="Load-standard measurement (open/short/load compensation).")]
 LoadValueOpt = Annotated[Optional[str], typer.Option("--load-value", help="Known impedance of the load standard in ohm, e.g. 50 or 100.")]
 PortDelayOpt = Annotated[Optional[str], typer.Option("--port-delay", help="Port extension for reflection: one-way delay of the line to remove, e.g. 35p.")]
+PortLossOpt = Annotated[
+    Optional[float],
+    typer.Option("--port-loss", help="With --port-delay: one-way loss of that line in dB at 1 GHz, scaled with sqrt(f)."),
+]
 ForceOpt = Annotated[bool, typer.Option("--force", help="Overwrite output files that exist.")]
 
 
@@ -137,6 +144,7 @@ def sweep_from_options(
     load: Path | None = None,
     load_value: str | None = None,
     port_delay: str | None = None,
+    port_loss: float | None = None,
 ):
     """Return the `Sweep` that the shared reading options describe.
 
@@ -159,7 +167,9 @@ def sweep_from_options(
     if port_delay is not None:
         from ._fixture import port_extended
 
-        sweep = port_extended(sweep, parse_quantity(port_delay, "--port-delay"))
+        sweep = port_extended(sweep, parse_quantity(port_delay, "--port-delay"), loss=port_loss)
+    elif port_loss is not None:
+        raise ZfitInputError("--port-loss goes with --port-delay (the loss of the line being removed)", path)
     if open_ is not None or short is not None or load is not None:
         from ._fixture import compensate_from_files
 

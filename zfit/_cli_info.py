@@ -9,7 +9,7 @@ import typer
 
 from ._cli_common import (
     ColumnsOpt, ConnectionOpt, ForceOpt, LoadOpt, LoadValueOpt, NoiseFloorOpt, NoiseRelOpt, OpenOpt, PortDelayOpt,
-    ShortOpt, app, echo, guarded, sweep_from_options,
+    PortLossOpt, ShortOpt, app, echo, guarded, sweep_from_options,
 )
 
 #: Version tag of the ``--json`` output.
@@ -102,6 +102,7 @@ def info_command(
     load: LoadOpt = None,
     load_value: LoadValueOpt = None,
     port_delay: PortDelayOpt = None,
+    port_loss: PortLossOpt = None,
     json_path: Annotated[Optional[Path], typer.Option("--json", help="Also write what was read as JSON (zfit.info/1) to this file.")] = None,
     force: ForceOpt = False,
 ):
@@ -116,7 +117,9 @@ def info_command(
 
     from ._errors import MeasurementWarning
 
-    s = sweep_from_options(sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay)
+    s = sweep_from_options(
+        sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay, port_loss
+    )
     d = info_dict(s)
     for line in info_lines(d):
         echo(line)
