@@ -62,6 +62,11 @@ DEFAULT_RDC_REL = 0.01
 #: resolved by the sweep.
 UNRESOLVED_REL = 0.5
 
+# Screening of the second family: this many evaluations, refined fully only
+# within this factor of the first family's chi-square.
+_SCREEN_NFEV = 12
+_SCREEN_RATIO = 10.0
+
 _PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
 
 
@@ -500,19 +505,20 @@ def _looks_capacitive(sweep) -> bool:
     return bool(np.median(sweep.z_ohm[:n].imag) < 0)
 
 
-def _rational_fit(sweep, kind, n_poles):
+def _rational_fit(sweep, kind, n_poles, initial_poles=None):
     from . import _vectfit
 
+    extra = {} if initial_poles is None else {"initial_poles": initial_poles, "n_iter": 8}
     fit = getattr(_vectfit, "fit_impedance", None)
     if fit is not None:
-        return fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, kind=kind, n_poles=n_poles)
+        return fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, kind=kind, n_poles=n_poles, **extra)
     opts = {"inductor": dict(constant=False, proportional=False, origin_pole=False),
             "capacitor": dict(constant=True, proportional=True, origin_pole=True),
             "general": dict(constant=True, proportional=True, origin_pole=False)}[kind]
-    return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts)
+    return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts, **extra)
 
 
-def _reweighted_rational(sweep, ref, kind, n_poles, inside):
+def _reweighted_rational(sweep, ref, kind, n_poles, inside, rational):
     """The rational model refitted with sigma at the circuit's S (where `inside`), if that matters."""
     from ._connection import dz_ds, s_from_impedance
 
@@ -527,7 +533,11 @@ def _reweighted_rational(sweep, ref, kind, n_poles, inside):
     import dataclasses
 
     try:
-        return _rational_fit(dataclasses.replace(sweep, sigma_ohm=sig), kind, n_poles)
+        # From the first model's poles: the same count, and few relocations.
+        poles = np.asarray(rational.poles)
+        return _rational_fit(
+            dataclasses.replace(sweep, sigma_ohm=sig), kind, None, initial_poles=poles if poles.size else None
+        )
     except FitError:
         return None
 
@@ -545,15 +555,15 @@ def _n_poles(rm) -> int:
     return int(len(rm.poles))
 
 
-def _fit_base(family, obs, rational, prior):
+def _fit_base(family, obs, rational, prior, max_nfev=200, seed=None):
     """Refine the base circuit of a family (several starts for a sharp resonance)."""
     from ._circuits import circuits_of, sharp_resonance
     from ._refine import refine
 
     base, _ = circuits_of(family)
-    starts = base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational)
+    starts = ([] if seed is None else [seed]) + base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational)
     n_best = 3 if sharp_resonance(family, obs.z_ohm) else 1
-    return refine(base, obs, starts, prior=prior, n_best=n_best)
+    return refine(base, obs, starts, prior=prior, n_best=n_best, max_nfev=max_nfev)
 
 
 def _fit_optional(rb, obs, rational, prior):
@@ -729,33 +739,50 @@ def identify(
         ), notes)
 
     # 2-3. Circuits of each family, the family and the optional element by BIC.
-    families = FAMILIES if model == "auto" else (model,)
-    fitted = {}
-    for fam in families:
+    # The family the data look like is fitted first; the other is screened
+    # with a few iterations and refined fully (with its optional element)
+    # only if it comes within a factor _SCREEN_RATIO of the chi-square of the
+    # first: a circuit of the wrong family is far off and slow to converge.
+    # (A capacitor with leakage and an inductor whose R_s plays the leak can
+    # look alike where ESL and ESR are not resolved: then both are refined,
+    # and the families are compared by the better of their two circuits.)
+    likely = "capacitor" if _looks_capacitive(sweep) else "inductor"
+    families = (likely, "inductor" if likely == "capacitor" else "capacitor") if model == "auto" else (model,)
+    fitted, optional = {}, {}
+    best_chi2 = math.inf
+    for idx, fam in enumerate(families):
         prior = None if rdc is None else Prior(_PRIOR_KEY[fam], rdc, rdc_std)
         try:
-            fitted[fam] = _fit_base(fam, obs, rational, prior)
+            if idx == 0:
+                rb = _fit_base(fam, obs, rational, prior)
+            else:
+                rb = _fit_base(fam, obs, rational, prior, max_nfev=_SCREEN_NFEV)
+                if rb.chi2 <= _SCREEN_RATIO * best_chi2:
+                    rb = _fit_base(fam, obs, rational, prior, seed=rb.values)
         except FitError as exc:
             notes.append(f"{fam} circuit could not be fitted: {exc}")
+            continue
+        fitted[fam] = rb
+        optional[fam] = None
+        if rb.chi2 <= _SCREEN_RATIO * best_chi2:
+            optional[fam] = _fit_optional(rb, obs, rational, prior)
+        best_chi2 = min(best_chi2, rb.chi2, math.inf if optional[fam] is None else optional[fam].chi2)
     if not fitted:
         if rational is None:
             raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
         return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
-    # The optional element of each family, then the family by the better of
-    # its two circuits, then the optional element only if it wins by the margin.
-    # (A capacitor with leakage and an inductor whose R_s plays the leak can
-    # look alike where ESL and ESR are not resolved: compare whole families.)
-    optional = {}
-    for fam, rb in fitted.items():
-        prior = None if rdc is None else Prior(_PRIOR_KEY[fam], rdc, rdc_std)
-        optional[fam] = _fit_optional(rb, obs, rational, prior)
 
     def family_bic(fam):
         b = _summary(fitted[fam], rows_full)
         rf = optional[fam]
         return b if rf is None else min(b, _summary(rf, rows_full) + margin)
 
+    # The family the data look like (sign of the low-frequency reactance) unless
+    # the other describes them better by the margin: a series R-L is also a
+    # capacitor with an infinite C, and such ties go to what the data look like.
     family = min(fitted, key=family_bic)
+    if likely in fitted and family != likely and family_bic(family) > family_bic(likely) - margin:
+        family = likely
     prior = None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
     rb, rf = fitted[family], optional[family]
     cands = []
@@ -845,7 +872,7 @@ def identify(
     if rational is not None and obs.on_s and i1 > i0:
         inside = np.zeros(sweep.n_points, bool)
         inside[i0:i1] = True
-        refit_rm = _reweighted_rational(sweep, chosen, kind, n_poles, inside)
+        refit_rm = _reweighted_rational(sweep, chosen, kind, n_poles, inside, rational)
         if refit_rm is not None:
             scores = rational_scores(refit_rm)
             if scores[1] <= rat_rms * 1.02:

@@ -1,0 +1,195 @@
+"""Time zfit's whole identification against scikit-rf's VectorFitting fit alone.
+
+On the same twelve 1601-point reflection sweeps (six inductors, six
+capacitors from the ranges of issue 3, 0.2 % relative noise on S11 plus a
+-100 dB floor):
+
+* zfit: ``identify(sweep)`` -- vector fitting, both circuit families with and
+  without their optional element, model choice, valid band, SRF, figures;
+* scikit-rf: ``VectorFitting`` on S11 with 2 real and 2 complex poles and a
+  constant term, the fit alone.
+
+Accuracy for both on the same data: the worst-point relative |Z| error of
+the fitted model against the noise-free truth (the circuit's impedance,
+checked against ngspice in tests/test_circuits.py), and for zfit the
+parameter errors.
+
+Run: ``python benchmarks/bench_identify.py [--repeat N] [--out docs/perf_identify.md]``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import statistics
+import sys
+import time
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+from zfit._circuits import circuit_impedance
+from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit._errors import MeasurementWarning
+from zfit._identify import identify
+from zfit._sweep import make_sweep
+
+NOISE = InstrumentNoise(2e-3, 1e-5)
+
+PARTS = [
+    ("RF coil 100 nH", "inductor", {"L": 100e-9, "R_s": 0.05, "C_p": 0.3e-12}),
+    ("chip inductor 1 uH", "inductor", {"L": 1e-6, "R_s": 0.2, "C_p": 1.5e-12}),
+    ("power inductor 10 uH", "inductor", {"L": 10e-6, "R_s": 0.5, "C_p": 5e-12}),
+    ("choke 100 uH, core loss", "inductor", {"L": 100e-6, "R_s": 2.0, "C_p": 10e-12, "R_p": 50e3}),
+    ("choke 1 mH", "inductor", {"L": 1e-3, "R_s": 8.0, "C_p": 30e-12}),
+    ("choke 10 mH", "inductor", {"L": 10e-3, "R_s": 40.0, "C_p": 300e-12}),
+    ("C0G 10 pF", "capacitor", {"C": 10e-12, "ESR": 0.3, "ESL": 0.3e-9}),
+    ("ceramic 1 nF", "capacitor", {"C": 1e-9, "ESR": 0.1, "ESL": 0.6e-9}),
+    ("ceramic 100 nF", "capacitor", {"C": 100e-9, "ESR": 0.02, "ESL": 1e-9}),
+    ("ceramic 10 uF", "capacitor", {"C": 10e-6, "ESR": 0.005, "ESL": 2e-9}),
+    ("electrolytic 100 uF, leaky", "capacitor", {"C": 100e-6, "ESR": 0.2, "ESL": 5e-9, "R_leak": 200.0}),
+    ("electrolytic 1 mF", "capacitor", {"C": 1e-3, "ESR": 0.05, "ESL": 10e-9}),
+]
+
+
+def srf_of(kind, p):
+    if kind == "inductor":
+        return math.sqrt(1 / (p["L"] * p["C_p"]) - (p["R_s"] / p["L"]) ** 2) / (2 * math.pi)
+    return 1 / (2 * math.pi * math.sqrt(p["C"] * p["ESL"]))
+
+
+def band_of(kind, p):
+    f0 = srf_of(kind, p)
+    return (f0 / 300, f0 * 3)
+
+
+def sweep_of(kind, p, rng, n=1601):
+    lo, hi = band_of(kind, p)
+    f = np.geomspace(lo, hi, n)
+    z = circuit_impedance(kind, p, f)
+    s = s_from_impedance(z, "reflection")
+    for _ in range(50):
+        sm = s + NOISE.sigma(s) * (rng.standard_normal(n) + 1j * rng.standard_normal(n)) / math.sqrt(2)
+        try:
+            sweep = make_sweep(
+                f, impedance_from_s(sm, "reflection"), sigma_z_from_s(sm, "reflection", noise=NOISE),
+                connection="reflection", s_param=sm, reference_ohm=50.0, noise=NOISE, source=f"{kind}",
+            )
+            return sweep, z
+        except Exception:  # a realisation make_sweep rejects (see tests/test_identify_ngspice.py)
+            continue
+    raise RuntimeError("no usable realisation")
+
+
+def skrf_fit(f, s11, z0=50.0):
+    import skrf
+    from skrf.vectorFitting import VectorFitting
+
+    net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="hz"), s=s11.reshape(-1, 1, 1), z0=z0)
+    vf = VectorFitting(net)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        vf.vector_fit(n_poles_real=2, n_poles_cmplx=2, init_pole_spacing="log", parameter_type="s",
+                      fit_constant=True, fit_proportional=False)
+    s_fit = vf.get_model_response(0, 0, f)
+    return z0 * (1 + s_fit) / (1 - s_fit)
+
+
+def timed(fn, repeat):
+    times, out = [], None
+    for _ in range(repeat):
+        t = time.perf_counter()
+        out = fn()
+        times.append(time.perf_counter() - t)
+    return statistics.median(times), out
+
+
+def run(repeat: int, seed: int = 20261201):
+    rng = np.random.default_rng(seed)
+    warnings.simplefilter("ignore", MeasurementWarning)
+    # Warm both up (imports, caches) on a throwaway sweep.
+    sw, _ = sweep_of("inductor", PARTS[2][2], rng)
+    identify(sw)
+    skrf_fit(sw.f_hz, sw.s_param)
+    rows = []
+    for name, kind, p in PARTS:
+        sweep, z_true = sweep_of(kind, p, rng)
+        t_z, res = timed(lambda: identify(sweep), repeat)
+        t_s, z_s = timed(lambda: skrf_fit(sweep.f_hz, sweep.s_param), max(1, repeat // 3))
+        z_z = res.impedance(sweep.f_hz)
+        err_z = float(np.max(np.abs(z_z - z_true) / np.abs(z_true)))
+        err_s = float(np.max(np.abs(z_s - z_true) / np.abs(z_true)))
+        par = {k: res.parameters[k].value / v - 1 for k, v in p.items() if k in res.parameters}
+        pulls = {k: (res.parameters[k].value - v) / res.parameters[k].std for k, v in p.items() if k in res.parameters}
+        srf_err = (res.srf.value_hz / srf_of(kind, p) - 1) if res.srf.value_hz else float("nan")
+        rows.append(dict(
+            name=name, kind=kind, model=res.model, topology=res.topology, t_zfit=t_z, t_skrf=t_s, ratio=t_s / t_z,
+            err_zfit=err_z, err_skrf=err_s, par=par, pulls=pulls, srf_err=srf_err,
+            rms=res.fit.rms_normalized_residual, expected_keys=set(p), got_keys=set(res.parameters),
+        ))
+    return rows
+
+
+def markdown(rows, repeat):
+    ratios = [r["ratio"] for r in rows]
+    lines = [
+        "# Performance of identification",
+        "",
+        "`python benchmarks/bench_identify.py` (this file is its output). Twelve parts of the ranges of",
+        "issue 3, 1601-point log sweeps from SRF/300 to 3 SRF, measured in reflection with 0.2 % relative",
+        "noise on S11 and a -100 dB floor (`InstrumentNoise(2e-3, 1e-5)`).",
+        "",
+        "* **zfit**: `identify(sweep)`, the whole identification: vector fitting with automatic pole count,",
+        "  both circuit families with and without their optional element (weighted NLLS on S, covariance),",
+        "  BIC model choice, valid band, SRF, Q/ESR/D figures.",
+        "* **scikit-rf**: `VectorFitting` on S11 with 2 real + 2 complex poles and a constant term, the fit",
+        "  alone (no circuit, no uncertainties).",
+        "",
+        f"Times are medians of {repeat} runs (scikit-rf: of {max(1, repeat // 3)}), on the shared 2-core machine",
+        "the project is built on, under load from other work: absolute times vary, the ratio less so.",
+        "Accuracy: the worst-point relative |Z| error of each model against the noise-free truth.",
+        "",
+        "| part | zfit model | zfit ms | scikit-rf ms | ratio | zfit worst |Z| err | scikit-rf worst |Z| err | zfit parameter errors (pull) | SRF err |",
+        "|---|---|---:|---:|---:|---:|---:|---|---:|",
+    ]
+    for r in rows:
+        par = ", ".join(f"{k} {100 * v:+.2f} % ({r['pulls'][k]:+.1f})" for k, v in r["par"].items())
+        lines.append(
+            f"| {r['name']} | {r['topology']} | {r['t_zfit'] * 1e3:.1f} | {r['t_skrf'] * 1e3:.0f} | {r['ratio']:.0f}x | "
+            f"{100 * r['err_zfit']:.3g} % | {100 * r['err_skrf']:.3g} % | {par} | {100 * r['srf_err']:+.3f} % |"
+        )
+    ez = [r["err_zfit"] for r in rows]
+    es = [r["err_skrf"] for r in rows]
+    lines += [
+        "",
+        f"**Median speed ratio (scikit-rf fit time / zfit identification time): {statistics.median(ratios):.0f}x** "
+        f"(range {min(ratios):.0f}x-{max(ratios):.0f}x).",
+        "",
+        f"Worst-point relative |Z| error: zfit {100 * min(ez):.3g}-{100 * max(ez):.3g} %, "
+        f"scikit-rf {100 * min(es):.3g}-{100 * max(es):.3g} %.",
+        f"Models chosen as simulated: {sum(r['expected_keys'] == r['got_keys'] for r in rows)} of {len(rows)}; "
+        f"parameter pulls (error / reported sigma) all within "
+        f"{max(abs(x) for r in rows for x in r['pulls'].values()):.1f}.",
+        "",
+        "The zfit error is what is left of the noise after fitting a 3- or 4-parameter circuit to 1601",
+        "points; scikit-rf's fixed 4-pole model of S11 cannot follow a sharp resonance on a wide log band",
+        "and misses it by far more than the noise at its worst point.",
+    ]
+    return "\n".join(lines) + "\n"
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--repeat", type=int, default=9)
+    ap.add_argument("--out", type=Path, default=None, help="Write the markdown table here.")
+    args = ap.parse_args(argv)
+    rows = run(args.repeat)
+    text = markdown(rows, args.repeat)
+    sys.stdout.write(text)
+    if args.out is not None:
+        args.out.write_text(text)
+
+
+if __name__ == "__main__":
+    main()
