@@ -63,3 +63,23 @@ def test_rational_netlist_of_a_vector_fit_reproduces_it():
     fs, zs = _ngspice(text, 1e4, 1e9)
     np.testing.assert_allclose(zs, model.impedance(fs), rtol=1e-3)  # issue 5: 0.1 %
     np.testing.assert_allclose(zs, truth(fs), rtol=1e-3)
+
+
+@pytest.mark.ngspice
+def test_rational_netlist_of_a_noisy_two_resonance_part():
+    import zfit
+    from zfit._sweep import make_sweep
+
+    # A choke whose winding has a lossless-series second section: noise gives
+    # the fit a slightly negative constant / series R that the netlist repairs
+    # (refit without the term, clamp to zero) and documents in its header.
+    rng = np.random.default_rng(11)
+    f = np.geomspace(1e4, 2e8, 600)
+    s = 2j * np.pi * f
+    z = 0.35 + 1 / (s * 12e-12 + 1 / 60e3 + 1 / (s * 470e-6)) + 1 / (s * 3.3e-12 + 1 / 8e3 + 1 / (s * 2.2e-6))
+    sig = 1e-3 * np.abs(z) + 1e-2
+    z = z + sig / np.sqrt(2) * (rng.normal(size=f.size) + 1j * rng.normal(size=f.size))
+    result = zfit.identify(make_sweep(f, z, sig, source="choke.csv"), model="rational")
+    text = identification_netlist(result, "rational")
+    fs, zs = _ngspice(text, f[0], f[-1])
+    np.testing.assert_allclose(zs, result.rational.impedance(fs), rtol=1e-3)  # issue 5: 0.1 %

@@ -16,6 +16,7 @@ _COMMAND_MODULES = (
     "_cli_identify",
     "_cli_batch",
     "_cli_plan",
+    "_cli_demo",
 )
 
 

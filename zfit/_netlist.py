@@ -269,11 +269,18 @@ def _pole_text(p: complex) -> str:
     return f"complex pole pair at {format_eng(w / (2 * math.pi))}Hz (Q {q:.3g})"
 
 
-def _check(value: float, scale: float, what: str, branch: str) -> float:
-    """Return `value`, zero if it is negative by rounding only; raise if negative."""
+def _check(value: float, scale: float, what: str, branch: str, clamped: list | None = None) -> float:
+    """Return `value`, zero if it is negative by rounding only; raise if negative.
+
+    With a `clamped` list, a negative value becomes zero and is recorded
+    there instead (the caller then checks what that does to the impedance).
+    """
     if value >= 0:
         return value
     if abs(value) <= _ROUNDING * abs(scale):
+        return 0.0
+    if clamped is not None:
+        clamped.append(f"{what} of the {branch}")
         return 0.0
     raise SynthesisError(
         f"cannot synthesise the rational model as a passive R-L-C network: the branch of the {branch} "
@@ -288,6 +295,8 @@ def foster_branches(
     constant: float = 0.0,
     proportional: float = 0.0,
     origin_residue: float = 0.0,
+    *,
+    clamped: list | None = None,
 ) -> list[FosterBranch]:
     """Return the Foster realisation of an impedance in pole-residue form.
 
@@ -303,6 +312,12 @@ def foster_branches(
         The coefficient ``e`` of ``s`` in henry.
     origin_residue : float
         The coefficient ``r0`` of ``1/s`` in ohm rad/s (1/F); 0 for none.
+    clamped : list, optional
+        When given, a negative resistance or conductance (the constant term,
+        a branch's R_s or 1/R_p) or a negative proportional term is set to
+        zero and described in this list instead of raising; the realisation
+        then differs from the model, and the caller must check by how much.
+        Capacitances (residues) are never clamped.
 
     Returns
     -------
@@ -330,10 +345,14 @@ def foster_branches(
     out: list[FosterBranch] = []
     d, e, r0 = float(constant), float(proportional), float(origin_residue)
     zscale = max(abs(d), float(np.max(np.abs(r) / np.maximum(np.abs(p), 1e-300))) if p.size else 0.0, 1e-300)
-    if d != 0:
-        out.append(FosterBranch("constant", "constant term", {"R": _check(d, zscale, f"series resistance ({d:.4g} ohm)", "constant term")}))
-    if e != 0:
-        out.append(FosterBranch("proportional", "proportional (s) term", {"L": _check(e, 0.0, f"series inductance ({e:.4g} H)", "proportional (s) term")}))
+    if d != 0 and (d > 0 or clamped is None):
+        out.append(FosterBranch("constant", "constant term", {"R": _check(d, zscale, f"series resistance ({d:.4g} ohm)", "constant term", clamped)}))
+    if d < 0 and clamped is not None:
+        _check(d, zscale, f"series resistance ({d:.4g} ohm)", "constant term", clamped)
+    if e < 0 and clamped is not None:
+        _check(e, 0.0, f"series inductance ({e:.4g} H)", "proportional (s) term", clamped)
+    if e != 0 and (e > 0 or clamped is None):
+        out.append(FosterBranch("proportional", "proportional (s) term", {"L": _check(e, 0.0, f"series inductance ({e:.4g} H)", "proportional (s) term", clamped)}))
     if r0 != 0:
         _check(r0, 0.0, f"series capacitance (1/{r0:.4g} F)", "pole at the origin")
         out.append(FosterBranch("origin", "pole at the origin", {"C": 1.0 / r0}))
@@ -374,8 +393,8 @@ def foster_branches(
                 f"would need a negative or infinite capacitance (2 Re r = {b1:.4g}); use the equivalent-circuit "
                 f"netlist instead (identify with --model inductor or --model capacitor)"
             )
-        b0 = _check(b0, rscale * abs(pi), "series resistance R_s", desc)
-        g_b1 = _check(a1 * b1 - b0, max(a1 * b1, b0), "parallel conductance 1/R_p", desc)
+        b0 = _check(b0, rscale * abs(pi), "series resistance R_s", desc, clamped)
+        g_b1 = _check(a1 * b1 - b0, max(a1 * b1, b0), "parallel conductance 1/R_p", desc, clamped)
         g = g_b1 / (b1 * b1)
         big_l = b1 / (a0 - g * b0)
         values = {
@@ -485,7 +504,7 @@ def circuit_netlist(model: str, parameters: Mapping[str, float], *, name: str = 
     return _subckt_text(name, f"Equivalent circuit of a{'n' if model[0] in 'aeiou' else ''} {model}: {topo}", header, els)
 
 
-def rational_elements(model) -> list[NetlistElement]:
+def rational_elements(model, *, clamped: list | None = None) -> list[NetlistElement]:
     """Return the element lines of the Foster realisation of a rational model.
 
     Parameters
@@ -493,19 +512,22 @@ def rational_elements(model) -> list[NetlistElement]:
     model : RationalModel or object with the same fields
         ``poles``, ``residues``, ``constant``, ``proportional``,
         ``origin_residue``.
+    clamped : list, optional
+        See `foster_branches`.
 
     Raises
     ------
     SynthesisError
         When a branch would need a negative element.
     """
-    branches = foster_branches(*_model_terms(model))
+    branches = foster_branches(*_model_terms(model), clamped=clamped)
     if not branches:
         raise SynthesisError("the rational model has no terms to synthesise")
     return _branch_elements(branches)
 
 
-def rational_netlist(model, *, name: str = "part", header: Mapping[str, str] | None = None) -> str:
+def rational_netlist(model, *, name: str = "part", header: Mapping[str, str] | None = None,
+                     elements: Sequence[NetlistElement] | None = None) -> str:
     """Return the SPICE subcircuit of a rational impedance model as a passive R-L-C network.
 
     Parameters
@@ -517,6 +539,9 @@ def rational_netlist(model, *, name: str = "part", header: Mapping[str, str] | N
         Subcircuit name.
     header : mapping of str to str, optional
         Comment lines for the header.
+    elements : sequence of NetlistElement, optional
+        Elements already synthesised (e.g. by `rational_elements` with
+        clamping); by default they are synthesised here.
 
     Raises
     ------
@@ -530,15 +555,15 @@ def rational_netlist(model, *, name: str = "part", header: Mapping[str, str] | N
     G. Antonini, "SPICE equivalent circuits of frequency-domain responses",
     IEEE Trans. EMC 45(3), 502-512, 2003. doi:10.1109/TEMC.2003.815528
     """
-    branches = foster_branches(*_model_terms(model))
-    els = rational_elements(model)
+    els = list(elements) if elements is not None else rational_elements(model)
+    n_branches = sum(1 for el in els if el.role)
     hdr = dict(header or {})
     hdr.setdefault(
         "synthesis",
         "Foster realisation of the partial fractions, one branch per term in series "
         "(Foster 1924, doi:10.1002/j.1538-7305.1924.tb01358.x; Antonini 2003, doi:10.1109/TEMC.2003.815528)",
     )
-    return _subckt_text(name, f"Rational impedance model, {len(branches)} branches in series", hdr, els)
+    return _subckt_text(name, f"Rational impedance model, {n_branches} branches in series", hdr, els)
 
 
 def netlist_impedance(elements: Sequence[NetlistElement], f_hz) -> np.ndarray:

@@ -250,12 +250,75 @@ def identification_netlist(result, kind: str = "auto", name: str | None = None) 
             if rr is not None:
                 hdr["fit quality"] = f"RMS normalised residual {rr:.3g} over {result.sweep.n_points} points"
             hdr["band of validity"] = f"{format_eng(result.sweep.f_hz[0])}Hz..{format_eng(result.sweep.f_hz[-1])}Hz (the measured band)"
-        return rational_netlist(result.rational, name=name, header=hdr)
+        model, elements, note = _synthesisable_rational(result)
+        if note:
+            hdr["synthesis note"] = note
+        return rational_netlist(model, name=name, header=hdr, elements=elements)
     if result.model == "rational":
         raise ZfitInputError(
             "the result is a rational model; an equivalent-circuit netlist needs identify with --model inductor or --model capacitor"
         )
     return circuit_netlist(result.model, {k: e.value for k, e in result.parameters.items()}, name=name, header=hdr)
+
+
+def _synthesisable_rational(result):
+    """Return (model, elements, note): a rational model and its passive realisation.
+
+    Vector fitting may leave a small negative constant or proportional term,
+    or a branch with a slightly negative series or parallel resistance, where
+    the part has none (the noise's doing): a network would need a negative
+    element.  Then (1) the model is refitted from its own poles without a
+    negative constant or proportional term, and (2) a remaining negative
+    resistance or conductance is set to zero.  The result is used only if it
+    describes the sweep as well as the model (RMS normalised residual within
+    5 %) and stays within 0.1 % of the model's |Z| at every point; the header
+    says what was done.
+    Otherwise the original refusal stands.
+    """
+    from ._netlist import SynthesisError, netlist_impedance, rational_elements
+    from ._vectfit import vector_fit
+
+    rm = result.rational
+    try:
+        return rm, rational_elements(rm), ""
+    except SynthesisError as first:
+        error = first
+    sw = result.sweep
+    f = np.asarray(sw.f_hz, dtype=float)
+    candidates = [(rm, "")]
+    if rm.constant < 0 or rm.proportional < 0:
+        try:
+            refit = vector_fit(
+                f, sw.z_ohm, sw.sigma_ohm, n_poles=len(rm.poles),
+                constant=bool(rm.constant > 0), proportional=bool(rm.proportional > 0),
+                origin_pole=bool(getattr(rm, "has_origin_pole", rm.origin_residue != 0)), initial_poles=rm.poles,
+            )
+            dropped = " and ".join(t for t, v in (("constant", rm.constant), ("proportional (s)", rm.proportional)) if v < 0)
+            candidates.insert(0, (refit, f"refitted from the same {len(rm.poles)} poles without the negative {dropped} "
+                                         f"term (RMS normalised residual {rm.rms_normalized_residual:.3g} -> "
+                                         f"{refit.rms_normalized_residual:.3g})"))
+        except Exception:  # noqa: BLE001 - the refit is a convenience; the refusal stands
+            pass
+    z_model = rm.impedance(f)
+    for model, note in candidates:
+        clamped: list = []
+        try:
+            els = rational_elements(model, clamped=clamped)
+            z_net = netlist_impedance(els, f)
+        except (SynthesisError, ValueError, np.linalg.LinAlgError):
+            continue
+        dev_sigma = float(np.max(np.abs(z_net - z_model) / sw.sigma_ohm))
+        dev_rel = float(np.max(np.abs(z_net - z_model) / np.abs(z_model)))
+        rms_net = float(np.sqrt(np.mean(np.abs(z_net - sw.z_ohm) ** 2 / sw.sigma_ohm ** 2)))
+        rms_model = float(np.sqrt(np.mean(np.abs(z_model - sw.z_ohm) ** 2 / sw.sigma_ohm ** 2)))
+        if rms_net <= 1.05 * rms_model and dev_rel <= 1e-3:
+            parts = [note] if note else []
+            if clamped:
+                parts.append("set to zero: " + "; ".join(clamped))
+            parts.append(f"the network departs from the reported rational model by at most {100 * dev_rel:.2g} % "
+                         f"of |Z| ({dev_sigma:.2g} sigma) over the sweep; RMS normalised residual {rms_net:.3g}")
+            return model, els, "; ".join(parts)
+    raise error
 
 
 # ------------------------------------------------------------------ report ---
@@ -315,6 +378,38 @@ def _figure_rows(result) -> list:
                 f"{x.value:.4g} ± {x.std:.2g}" if x.std else f"{x.value:.4g}")
             rows.append((x.definition, val + where))
     return rows
+
+
+def _network_table(result):
+    """The Foster network of a rational model as a table, or None if it cannot be built."""
+    from ._netlist import SynthesisError
+    from ._report import Table
+
+    try:
+        model, elements, note = _synthesisable_rational(result)
+    except (SynthesisError, ZfitInputError, ValueError):
+        return None
+    from ._netlist import foster_branches
+
+    clamped: list = []
+    branches = foster_branches(model.poles, model.residues, model.constant, model.proportional,
+                               model.origin_residue, clamped=clamped)
+    rows = []
+    for br in branches:
+        v = br.values
+        if br.kind == "complex":
+            cells = [pretty(v["C"], "F"), pretty(v["R_p"], "ohm") if np.isfinite(v["R_p"]) else "open",
+                     pretty(v["L"], "H"), pretty(v["R_s"], "ohm") if v["R_s"] > 0 else "0"]
+            label = re.sub(r"complex pole pair at (\S+)Hz \(Q (\S+)\)", r"\1Hz, Q \2", br.description)
+            rows.append((_micro(label.replace("MHz", " MHz").replace("kHz", " kHz").replace("GHz", " GHz")), *cells))
+        elif br.kind == "real":
+            rows.append((br.description, pretty(v["C"], "F"), pretty(v["R"], "ohm"), "", ""))
+        else:
+            key = next(iter(v))
+            unit = {"R": "ohm", "L": "H", "C": "F"}[key]
+            rows.append((f"series {key} ({br.description})", pretty(v[key], unit), "", "", ""))
+    caption = f"{result.topology} as a passive network: branches in series, each C || R_p || (L + R_s)"
+    return Table(("branch", "C", "R_p", "L", "R_s"), tuple(rows), numeric=(1, 2, 3, 4), caption=caption)
 
 
 def _dimensionless(e) -> str:
@@ -392,14 +487,17 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
             w = abs(p)
             q = w / (-2 * p.real) if p.real < 0 else float("inf")
             prow.append((pretty(w / (2 * math.pi), "Hz"), "real" if p.imag == 0 else f"{q:.3g}"))
+        net = _network_table(result)
+        poles = Table(("pole frequency", "Q of the pole"), tuple(prow), numeric=(0, 1), caption=result.topology)
         sections.append(Section(
             "Rational model",
-            tables=(Table(("pole frequency", "Q of the pole"), tuple(prow), numeric=(0, 1),
-                          caption=result.topology), *extra),
-            notes=("No simple circuit describes the whole band; the rational model (vector fitting) does.",),
+            tables=(net if net is not None else poles,),
+            notes=("No simple circuit describes the whole band; the rational model (vector fitting) does"
+                   + (", and so does the passive network above (the SPICE netlist's elements)." if net is not None else "."),),
         ))
 
-    sections.append(Section("Self-resonance and figures", facts=tuple(_figure_rows(result))))
+    sections.append(Section("Self-resonance and figures", facts=tuple(_figure_rows(result)),
+                            tables=extra if not params else ()))
     if result.warnings or fit.worse_than_rational:
         notes = list(result.warnings)
         if fit.worse_than_rational and not any("rational" in w for w in notes):
@@ -571,13 +669,17 @@ def _step_facts(result) -> list:
     return rows
 
 
-def step_figures(result) -> dict:
+def step_figures(result, titles: bool = True, impedance: bool = True) -> dict:
     """Return the figures of a step (capture) analysis by name.
 
     Parameters
     ----------
     result : StepResult
         The result of `zfit.analyse_capture`.
+    titles : bool
+        Whether the figures carry titles (a report has its own headings).
+    impedance : bool
+        Whether to add the impedance figures when a sense resistor gave one.
 
     Returns
     -------
@@ -591,14 +693,15 @@ def step_figures(result) -> dict:
     d = _step_plot_data(result)
     figs = {
         "time": plot_time_record(d["t_s"], d["channels"], levels_v=d["levels"], edges_s=d["edges_s"],
-                                 fitted=d["fitted"], window_s=d["window_s"], title=d["title"]),
+                                 fitted=d["fitted"], window_s=d["window_s"], title=d["title"] if titles else ""),
     }
     if d.get("f_hz") is not None:
         figs["bode"] = plot_bode(d["f_hz"], d["h"], d["coherence"], usable_band_hz=d["usable_band_hz"],
-                                 h_std=d.get("h_std"), title="Response H = V_out / V_in (H1 estimate)")
+                                 h_std=d.get("h_std"),
+                                 title="Response H = V_out / V_in (H1 estimate)" if titles else "")
     ident = d.get("identification")
-    if ident is not None:
-        figs.update(identification_figures(ident))
+    if ident is not None and impedance:
+        figs.update(identification_figures(ident, titles=titles))
     return figs
 
 
@@ -618,26 +721,32 @@ def step_report(result, command=None, *, netlist_text: str | None = None):
 
     d = _step_plot_data(result)
     ident = d.get("identification")
-    sections = [Section("Time-domain figures (IEEE Std 181)", facts=tuple(_step_facts(result)))]
-    if ident is not None:
-        sub = identification_report(ident, None, netlist_text=netlist_text)
-        sections.extend(s for s in sub.sections if s.title not in ("Measurement",))
-    figs = step_figures(result)
-    for key, cap in (("time", "The record with the detected state levels (dashed), edge times (ticks) and the fitted "
-                              "response (dash-dot)."),
-                     ("bode", "H = V_out/V_in from all edges (H1 estimator) with ±2σ band; shaded: the usable band; "
-                              "coherence below.")):
+    facts_section = Section("Time-domain figures (IEEE Std 181)", facts=tuple(_step_facts(result)))
+    figs = step_figures(result, titles=False, impedance=False)
+    capture_sections = []
+    for key, title, cap, h in (
+        ("time", "Time record", "The record: state levels (dashed), edge times (ticks), fitted response (dash-dot).", 2.5),
+        ("bode", "Frequency response", "H = V_out/V_in from all edges (H1) with ±2σ band; shaded: usable band; "
+                                       "coherence below.", 3.0),
+    ):
         if key in figs:
-            fig = _resize(figs.pop(key), 7.3, 3.0 if key == "time" else 4.2)
-            sections.append(Section("Time record" if key == "time" else "Frequency response",
-                                    figures=(FigureBlock(_svg(fig, key, cap), cap),), css_class="full"))
-    for fig in figs.values():
-        from ._plots import _pyplot
-
-        _pyplot().close(fig)
+            fig = _resize(figs.pop(key), 3.6, h)
+            capture_sections.append(Section(title, figures=(FigureBlock(_svg(fig, key, cap), cap),)))
+    sections = []
+    if ident is not None:
+        sub = [s for s in identification_report(ident, None, netlist_text=netlist_text).sections]
+        by = {s.title: s for s in sub}
+        head = [s for s in sub if s.title in ("Equivalent circuit", "Rational model", "Self-resonance and figures",
+                                               "Warnings", "Impedance")]
+        rest = [s for s in sub if s not in head]
+        sections = head + capture_sections + [s for s in rest if s.title in ("Quality factor", "Losses")] + \
+            [facts_section] + [s for s in rest if s.title not in ("Quality factor", "Losses")]
+        del by
+    else:
+        sections = [facts_section] + capture_sections
     src = Path(str(d["source"])).name
     title = "Capture: " + (f"{ident.model}, " + next((f"{k} = {_est(e)}" for k, e in ident.parameters.items()), "")
-                           if ident is not None else d["title"])
+                           if ident is not None else src)
     return Report(title=title, subtitle=d["subtitle"], verdict=d["verdict"], sections=tuple(sections),
                   command=_command_text(command))
 

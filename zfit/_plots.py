@@ -698,7 +698,9 @@ def plot_time_record(
     ax.set_ylabel("voltage")
     if sel.any():
         ax.set_xlim(t[sel][0], t[sel][-1])
-    ax.legend(loc="center right", handlelength=2.6)
+    # Below the axes, so that it never hides the record.
+    handles, labels = ax.get_legend_handles_labels()
+    fig.legend(handles, labels, loc="outside lower center", ncols=2, handlelength=2.6, frameon=False)
     if title:
         ax.set_title(title, loc="left")
     return fig
