@@ -80,6 +80,18 @@ _EXPORTS = {
     "conformity": "_limits",
     "run_batch": "_batch",
     "BatchResult": "_batch",
+    "write_outputs": "_outputs",
+    "identification_netlist": "_outputs",
+    "circuit_netlist": "_netlist",
+    "rational_netlist": "_netlist",
+    "foster_branches": "_netlist",
+    "SynthesisError": "_netlist",
+    "write_touchstone": "_export",
+    "plot_sweep": "_plots",
+    "plot_q": "_plots",
+    "plot_esr_d": "_plots",
+    "plot_bode": "_plots",
+    "plot_time_record": "_plots",
 }
 
 __all__ = ["__version__", *_EXPORTS]
