@@ -5,8 +5,10 @@ A capture is a set of channels sampled on one uniform time grid
 a header with the channel names, then a time column and one column per
 channel, or no time column and the sample interval in the metadata) or as
 binary arrays.  The numeric block of a text file is parsed by numpy's C
-number parser in large chunks (pandas' C tokenizer is used instead when it
-is importable, being about twice as fast): no Python loop touches a line of
+reader (``numpy.loadtxt``, C-implemented since numpy 1.23; pandas' C
+tokenizer instead for large files when pandas is importable, being faster
+still; numpy's ``fromstring`` over translated chunks for decimal commas and
+to name the line of a bad row): no Python loop touches a line of
 the data, so that records of ten million samples per channel read in seconds.
 """
 
@@ -33,6 +35,8 @@ MIN_SAMPLES = 16
 # per-chunk overhead vanishes, small enough that the translated copy of the
 # chunk stays a few percent of the parsed arrays.
 _CHUNK_BYTES = 1 << 24
+# Above this size the import of pandas pays for itself (see docs/perf_capture.md).
+_PANDAS_MIN_BYTES = 32 << 20
 # How much of the start of a text file is searched for the metadata and the header.
 _HEAD_BYTES = 1 << 16
 # Time steps may scatter around the mean by this much (rms, relative to dt)
@@ -335,8 +339,11 @@ def _guess_layout(lines: list[str], delimiter):
             for i, c in enumerate(counts):
                 if c == 0:
                     continue
+                # Most of the next lines are numbers with one field count; a
+                # bad row among them is the data's fault, reported by line later.
                 run = counts[i:i + 8]
-                if all(r == c for r in run) and (len(run) >= 3 or i + len(run) == len(counts)):
+                good = sum(r == c for r in run)
+                if (good >= max(3, len(run) - 1) or (good == len(run) and i + len(run) == len(counts))):
                     if c >= 2 or delim is None:
                         cand = (delim, dec, i, c)
                         # More fields per line wins: "1,5;2,5" with ';' and decimal comma
@@ -494,6 +501,20 @@ def _parse_block_pandas(path, offset_lines: int, ncols: int, delim, decimal_comm
     return arr
 
 
+def _parse_block_loadtxt(path, skip_lines: int, ncols: int, delim):
+    """Parse the numeric block with numpy's C reader; None when a row is bad.
+
+    The channels are returned as column views of the parsed block, so that
+    no second copy of the record is made.
+    """
+    try:
+        a = np.loadtxt(path, delimiter=delim, skiprows=skip_lines, usecols=range(ncols), quotechar='"',
+                       ndmin=2, dtype=np.float64, encoding="latin-1")
+    except ValueError:
+        return None
+    return [a[:, j] for j in range(ncols)]
+
+
 def _raise_bad_line(data: bytes, ncols, delim, decimal_comma, path, first_line):
     # Only on the error path: find the offending line of this chunk in Python.
     text = data.decode("utf-8", errors="replace").split("\n")
@@ -567,11 +588,19 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
     avg = max(1.0, sum(len(s) + 1 for s in sample) / max(len(sample), 1))
     est = int((size - offset) / avg * 1.02) + 16
     cols = None
+    if accelerate is None:
+        # pandas' reader is faster, but importing it costs about half a
+        # second: worth it only for large files.
+        accelerate = size > _PANDAS_MIN_BYTES
     if accelerate and _pandas_available():
         cols = _parse_block_pandas(path, start, ncols, delim, dec)
         if cols is not None:
             notes.append("numeric block parsed by pandas' C reader")
+    if cols is None and not dec:
+        cols = _parse_block_loadtxt(path, start, ncols, delim)
     if cols is None:
+        # Decimal commas, or a bad row to locate: numpy's number parser over
+        # translated chunks, which names the line of a bad row.
         with open(path, "rb") as fh:
             fh.seek(offset)
             cols = _parse_block_numpy(fh, ncols, est, delim, dec, path, start + 1)
@@ -657,18 +686,22 @@ def _uniform_time(t: np.ndarray, path, first_line: int):
     max_res = 0.0
     sum_sq = 0.0
     min_pos = math.inf
+    base = dt * np.arange(min(step, n))
+    buf = np.empty(min(step, n))
     for i in range(0, n, step):
-        seg = t[i:i + step + 1]
+        m = min(step, n - i)
+        seg = t[i:i + m + 1]
         d = np.diff(seg)
         if d.size:
-            neg = d < 0
-            if neg.any():
-                k = i + int(np.flatnonzero(neg)[0]) + 1
+            dmin = float(d.min())
+            if dmin < 0:
+                k = i + int(np.argmax(d < 0)) + 1
                 raise ZfitInputError("time goes backwards", path, first_line + k)
-            pos = d[d > 0]
-            if pos.size:
-                min_pos = min(min_pos, float(pos.min()))
-        r = seg[: step] - (t[0] + dt * np.arange(i, i + min(step, n - i)))
+            min_pos = min(min_pos, dmin if dmin > 0 else float(d[d > 0].min(initial=math.inf)))
+        # Residual from the uniform grid, in place (no temporaries of the block's size).
+        r = buf[:m]
+        np.subtract(seg[:m], t[0] + dt * i, out=r)
+        r -= base[:m]
         max_res = max(max_res, float(np.abs(r).max()))
         sum_sq += float(np.dot(r, r))
     rms = math.sqrt(sum_sq / n)
@@ -768,7 +801,7 @@ def _read_npz(path: Path, dt_given, t0_given):
 
 
 def read_capture(path, *, dt: float | None = None, t0: float | None = None, time_column=None,
-                 delimiter: str | None = None, accelerate: bool = True) -> Capture:
+                 delimiter: str | None = None, accelerate: bool | None = None) -> Capture:
     """Return the capture stored in an oscilloscope export.
 
     Text files: optional metadata lines (``key,value``, ``key: value`` or
@@ -796,9 +829,11 @@ def read_capture(path, *, dt: float | None = None, t0: float | None = None, time
         none.  Default: guessed from the header.
     delimiter : str, optional
         Field separator; guessed when omitted.
-    accelerate : bool
+    accelerate : bool or None
         Use pandas' C reader for the numeric block when pandas is importable
-        (about twice as fast as numpy's parser, which is used otherwise).
+        (faster than numpy's ``loadtxt``, which is used otherwise); None
+        (default) does so for files above 32 MB, where the faster parse pays
+        for importing pandas.
 
     Returns
     -------
