@@ -227,6 +227,8 @@ def demo_command(
                                        f"{DEFAULT_OUT}-N if that one is taken)."),
     sweeps: Optional[Path] = typer.Option(None, "--sweeps", help="The demo files' folder (default: demo_sweeps/ of the checkout)."),
     force: bool = typer.Option(False, "--force", help="Write into --out even if it holds files (replacing the demo's own)."),
+    part: Optional[list[str]] = typer.Option(None, "--part", help="Run only this part (its file stem, e.g. C-0342_100nF); "
+                                             "repeatable. Default: all four."),
 ):
     """Run zfit end to end on the invented bench files of demo_sweeps/.
 
@@ -250,13 +252,20 @@ def demo_command(
     missing = [p.file for p in PARTS if not (src / p.file).is_file()]
     if missing:
         raise ZfitInputError(f"demo files missing from {src}: {', '.join(missing)}")
+    chosen = PARTS
+    if part:
+        known = {p.stem: p for p in PARTS}
+        bad = [name for name in part if name not in known]
+        if bad:
+            raise ZfitInputError(f"--part {bad[0]!r}: the demo parts are {', '.join(known)}")
+        chosen = tuple(known[name] for name in dict.fromkeys(part))
     folder = _fresh_folder(out, force)
     folder.mkdir(parents=True, exist_ok=True)
-    jobs = _run_all(src, folder, force)
+    jobs = _run_all(chosen, src, folder, force)
     rows = []
     n_files = 0
-    for k, (part, job) in enumerate(zip(PARTS, jobs), 1):
-        echo(f"=== {k}/{len(PARTS)}  {part.title}")
+    for k, (part, job) in enumerate(zip(chosen, jobs), 1):
+        echo(f"=== {k}/{len(chosen)}  {part.title}")
         echo(f"    ({part.story})")
         echo(f"$ {_quoted(job['command'])}")
         for line in job["lines"]:
@@ -273,7 +282,7 @@ def demo_command(
     write_atomic(folder / "index.html", _index_html(rows, Report("x").generated), force)
     n_files += 1
     dt = time.perf_counter() - t0
-    echo(f"zfit demo: {len(PARTS)} parts, {n_files} files in {dt:.1f} s")
+    echo(f"zfit demo: {len(chosen)} parts, {n_files} files in {dt:.1f} s")
     echo(f"results in {folder}{'/' if not str(folder).endswith('/') else ''}  (open {folder / 'index.html'})")
 
 
@@ -293,15 +302,15 @@ def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
     }
 
 
-def _run_all(sweeps: Path, folder: Path, force: bool) -> list:
+def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
     """Run the parts, two at a time where the machine has the cores."""
     import multiprocessing
     import os
     from concurrent.futures import ProcessPoolExecutor
 
-    workers = min(2, os.cpu_count() or 1, len(PARTS))
+    workers = min(2, os.cpu_count() or 1, len(parts))
     if workers < 2 or "fork" not in multiprocessing.get_all_start_methods():
-        return [_part_job(p, sweeps, folder, force) for p in PARTS]
+        return [_part_job(p, sweeps, folder, force) for p in parts]
     # Import the heavy parts once, before the fork, so the workers start warm.
     import matplotlib  # noqa: F401
 
@@ -309,7 +318,7 @@ def _run_all(sweeps: Path, folder: Path, force: bool) -> list:
 
     matplotlib.use("Agg")
     # The slowest parts first, so the two workers finish together.
-    order = sorted(range(len(PARTS)), key=lambda i: PARTS[i].kind != "capture")
+    order = sorted(range(len(parts)), key=lambda i: parts[i].kind != "capture")
     with ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork")) as pool:
-        futures = {i: pool.submit(_part_job, PARTS[i], sweeps, folder, force) for i in order}
-        return [futures[i].result() for i in range(len(PARTS))]
+        futures = {i: pool.submit(_part_job, parts[i], sweeps, folder, force) for i in order}
+        return [futures[i].result() for i in range(len(parts))]

@@ -1,0 +1,80 @@
+"""``zfit demo``: runs end to end on demo_sweeps/, names its folder, never
+overwrites, and what it writes is consistent (ngspice on the netlist agrees
+with the Touchstone file of the same model)."""
+
+import json
+import re
+from pathlib import Path
+
+import numpy as np
+import pytest
+from typer.testing import CliRunner
+
+from zfit._cli import app
+
+DEMO = Path(__file__).resolve().parent.parent / "demo_sweeps"
+pytestmark = pytest.mark.skipif(not (DEMO / "cap_100n_shunt_thru.s2p").is_file(), reason="demo_sweeps/ not present")
+
+
+def _run(args, cwd):
+    import os
+
+    old = os.getcwd()
+    os.chdir(cwd)
+    try:
+        return CliRunner().invoke(app, ["demo", *args])
+    finally:
+        os.chdir(old)
+
+
+def test_demo_part_end_to_end(tmp_path):
+    r = _run(["--part", "C-0342_100nF"], tmp_path)
+    assert r.exit_code == 0, r.output
+    out = tmp_path / "zfit-demo-output"
+    assert "results in zfit-demo-output/" in r.output
+    assert "$ zfit identify" in r.output and "--connection shunt-thru" in r.output
+    names = sorted(p.name for p in out.iterdir())
+    assert names == sorted(["C-0342_100nF.json", "C-0342_100nF.png", "C-0342_100nF-esr-d.png", "C-0342_100nF.cir",
+                            "C-0342_100nF.s1p", "C-0342_100nF.html", "index.html"])
+    data = json.loads((out / "C-0342_100nF.json").read_text())
+    assert data["schema"] == "zfit.identify/1" and data["model"] == "capacitor"
+    # demo_sweeps/README.md: C-0342 is 100 nF, 8 mohm, 0.9 nH; common practice: within a few sigma of the truth.
+    p = data["parameters"]
+    assert abs(p["C"]["value"] - 100e-9) < 4 * p["C"]["std"] + 1e-3 * 100e-9
+    assert abs(p["ESR"]["value"] - 8e-3) < 0.05 * 8e-3
+    # A second run does not touch the first folder: it names a fresh one.
+    r2 = _run(["--part", "C-0342_100nF"], tmp_path)
+    assert r2.exit_code == 0 and "results in zfit-demo-output-2/" in r2.output
+    # An explicit folder that holds files is refused without --force.
+    r3 = _run(["--part", "C-0342_100nF", "--out", "zfit-demo-output"], tmp_path)
+    assert r3.exit_code == 2 and "exists already; give --force" in r3.output
+
+
+@pytest.mark.ngspice
+def test_demo_netlist_and_touchstone_agree_in_ngspice(tmp_path):
+    import skrf
+
+    from ngspice import run_ac
+
+    r = _run(["--part", "L-0117_10uH"], tmp_path)
+    assert r.exit_code == 0, r.output
+    out = tmp_path / "zfit-demo-output"
+    text = (out / "L-0117_10uH.cir").read_text()
+    name = re.search(r"^\.subckt (\S+) a b$", text, re.M).group(1)
+    net = skrf.Network(str(out / "L-0117_10uH.s1p"))
+    f, z = run_ac(text + f"X1 n1 0 {name}\n", net.f[0], net.f[-1], 20)
+    # The admittance of a parallel-resonant part is smooth where Z peaks, so it
+    # is what is interpolated between the file's 801 points onto ngspice's grid.
+    y = 1 / net.z[:, 0, 0]
+    y_ts = np.interp(np.log(f), np.log(net.f), y.real) + 1j * np.interp(np.log(f), np.log(net.f), y.imag)
+    np.testing.assert_allclose(z, 1 / y_ts, rtol=1e-3)  # issue 5: 0.1 %
+
+
+def test_demo_rejects_unknown_part(tmp_path):
+    r = _run(["--part", "nope"], tmp_path)
+    assert r.exit_code == 2 and "the demo parts are" in r.output
+
+
+def test_demo_without_files_says_so(tmp_path):
+    r = _run(["--sweeps", str(tmp_path / "empty")], tmp_path)
+    assert r.exit_code == 2 and "demo files missing" in r.output
