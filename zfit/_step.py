@@ -80,7 +80,13 @@ class Levels:
         return self.high - self.low
 
     def reference(self, fraction: float) -> float:
-        """Return the reference level at `fraction` of the amplitude (0.1, 0.5, 0.9)."""
+        """Return the reference level at `fraction` of the amplitude.
+
+        Parameters
+        ----------
+        fraction : float
+            0.1, 0.5 and 0.9 give the 10 %, 50 % and 90 % reference levels.
+        """
         return self.low + fraction * self.amplitude
 
     @property
