@@ -110,8 +110,23 @@ def _fresh_folder(out: Optional[Path], force: bool) -> Path:
 def _command(part: DemoPart, sweeps: Path, outputs: dict) -> list[str]:
     cmd = ["zfit", "identify" if part.kind == "sweep" else "step", str(sweeps / part.file), *part.args]
     for opt, name in outputs.items():
-        cmd += [opt, name]
+        if opt in _step_options() or part.kind == "sweep":
+            cmd += [opt, name]
     return cmd
+
+
+def _step_options() -> set:
+    """The output options ``zfit step`` has (the demo writes the rest itself)."""
+    import click
+    import typer.main
+
+    from ._cli_common import app as _app
+
+    command = typer.main.get_command(_app)
+    step = command.commands.get("step") if isinstance(command, click.Group) else None
+    if step is None:
+        return {"--json", "--plot"}
+    return {o for p in step.params for o in getattr(p, "opts", ())}
 
 
 def _quoted(cmd) -> str:

@@ -455,8 +455,14 @@ def _branch_elements(branches: Sequence[FosterBranch]) -> list[NetlistElement]:
 
 def _header(title: str, header: Mapping[str, str] | None) -> list[str]:
     lines = [f"* {title}", f"* written by zfit {__version__}"]
+    import textwrap
+
     for key, value in (header or {}).items():
-        for k, part in enumerate(str(value).splitlines() or [""]):
+        pieces = []
+        for part in str(value).splitlines() or [""]:
+            # Short comment lines: some simulators limit the line length.
+            pieces += textwrap.wrap(part, 96 - len(key)) or [""]
+        for k, part in enumerate(pieces):
             lines.append(f"* {key + ':' if k == 0 else ' ' * (len(key) + 1)} {part}".rstrip())
     lines.append("* Plain R, L, C elements only; values in ohm, henry, farad (SPICE suffixes, meg = 1e6).")
     # Some simulators reject non-ASCII bytes even in comments.

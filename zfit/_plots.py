@@ -309,7 +309,7 @@ def plot_sweep(
     ax_r.axhline(3.0, color=MARK, ls=":", lw=0.8, zorder=2, gid="noise-3sigma")
     if models:
         # A legend entry for the dotted levels, on the |Z| legend.
-        ax_m.plot([], [], color=MARK, ls=":", lw=0.8, label="residual at 1σ and 3σ (below)")
+        ax_m.plot([], [], color=MARK, ls=":", lw=0.8, label="1σ and 3σ residual levels")
     if valid_band_hz is not None and circuit_ohm is not None:
         for ax in (ax_m, ax_p, ax_r):
             _shade_outside(ax, f, valid_band_hz, label="outside the circuit's band" if ax is ax_m else None, gid="outside-band")
@@ -333,9 +333,9 @@ def plot_sweep(
     for ax in (ax_m, ax_p):
         ax.tick_params(labelbottom=False)
     ax_m.set_xlim(f[0], f[-1])
-    # Above the panels, so that it never hides the data.
+    # Below the panels, so that it never hides the data.
     handles, labels = ax_m.get_legend_handles_labels()
-    fig.legend(handles, labels, loc="outside upper center", ncols=3, handlelength=2.6, frameon=False)
+    fig.legend(handles, labels, loc="outside lower center", ncols=3, handlelength=2.6, frameon=False)
     if title:
         fig.suptitle(title, x=0.01, ha="left", fontsize=9.5)
     return fig
