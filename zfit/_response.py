@@ -293,13 +293,16 @@ def edge_response(
 
 
 def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence_min=DEFAULT_COHERENCE_MIN,
-                energy_min_db=DEFAULT_ENERGY_MIN_DB, snr_min: float = 3.0):
-    """Return (mask, (f_lo, f_hi)) of the usable band.
+                energy_min_db=DEFAULT_ENERGY_MIN_DB, snr_min: float = 3.0, min_run: int = 5):
+    """Return (mask, (f_lo, f_hi)) of the usable bins and the band they span.
 
-    The band runs from the lowest bin up to where the input loses energy,
-    the coherence drops or the estimate drowns in noise; a bin must pass
-    in a majority of its five-bin neighbourhood, so one noisy bin does not
-    cut the band short.
+    A bin is usable where the input has energy, the coherence is high and
+    the estimate stands clear of its uncertainty, judged by the majority of
+    its five-bin neighbourhood so that one noisy bin neither cuts nor
+    extends the band.  Runs of at least `min_run` such bins are kept: a
+    dip of the coherence inside the band (where |H| is tiny at a part's
+    resonance) leaves out those bins only, and the band ends with the last
+    run.
 
     Parameters
     ----------
@@ -314,27 +317,28 @@ def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence
         Lowest input level accepted.
     snr_min : float
         Lowest ``|H| / h_std`` accepted.
+    min_run : int
+        Shortest run of usable bins kept.
     """
     ok = (input_level_db >= energy_min_db) & np.isfinite(h) & (np.abs(h) > snr_min * h_std)
     if n_averages >= 2:
         ok &= coherence >= coherence_min
     if ok.size >= 5:
         votes = np.convolve(ok.astype(int), np.ones(5, dtype=int), mode="same")
-        smooth = votes >= 3
+        mask = (votes >= 3) & ok
     else:
-        smooth = ok
-    if not smooth[0]:
-        # The lowest bin fails: the band starts at the first passing run.
-        first = int(np.argmax(smooth)) if smooth.any() else f.size
-    else:
-        first = 0
-    if first >= f.size:
-        return np.zeros(f.size, dtype=bool), (float("nan"), float("nan"))
-    stop = first + (int(np.argmin(smooth[first:])) if not smooth[first:].all() else f.size - first)
-    mask = np.zeros(f.size, dtype=bool)
-    mask[first:stop] = True
-    mask &= ok | smooth
-    return mask, (float(f[first]), float(f[stop - 1]))
+        mask = ok.copy()
+    # Runs of consecutive usable bins; short runs are dropped.
+    edges = np.diff(np.concatenate([[0], mask.astype(np.int8), [0]]))
+    starts, stops = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
+    keep = np.zeros(f.size, dtype=bool)
+    for a, b in zip(starts, stops):
+        if b - a >= min(min_run, f.size):
+            keep[a:b] = True
+    if not keep.any():
+        return keep, (float("nan"), float("nan"))
+    idx = np.flatnonzero(keep)
+    return keep, (float(f[idx[0]]), float(f[idx[-1]]))
 
 
 def _log_merge(f, h, h_std, max_points):

@@ -975,7 +975,7 @@ def analyse_capture(
     sum_x = np.zeros(length) if x is not None else None
     in_t10 = np.full(n_edges, np.nan)
     in_t90 = np.full(n_edges, np.nan)
-    # Output polarity relative to the reference edge: an inverting output is aligned too.
+    # Rows flipped by the reference edge's sign: a passive part's output steps the same way as its input.
     for b0, b1 in _gather_blocks(n_edges, length):
         st = starts[b0:b1]
         p = pol[b0:b1]
@@ -1063,7 +1063,7 @@ def analyse_capture(
         arr_avg = _output_edges(avg_y[None, :], out_lv, 0)[3][0]
         if arr_avg > 0:
             groups = []
-            ng = min(6, n_edges // 2)
+            ng = min(4, n_edges // 2)
             if ng >= 3:
                 gsum = [np.zeros(length - arr_avg) for _ in range(ng)]
                 gcnt = [0] * ng
