@@ -152,7 +152,7 @@ class Circuit:
         """
         return {k: float(v) for k, v in zip(self.keys, p)}
 
-    def starts(self, f_hz, z_ohm, sigma_ohm, rational=None) -> list:
+    def starts(self, f_hz, z_ohm, sigma_ohm, rational=None, spread: bool = True) -> list:
         """Return candidate starting points for the refinement.
 
         The asymptote guess, the rational-model guess (when given) and, where
@@ -168,6 +168,8 @@ class Circuit:
             The sweep.
         rational : RationalModel, optional
             The vector-fitting model of the sweep.
+        spread : bool
+            Whether to add the spread of resonant frequencies and losses.
         """
         f = np.asarray(f_hz, float)
         z = np.asarray(z_ohm, complex)
@@ -179,12 +181,14 @@ class Circuit:
                 g = None
             if g is not None and np.all(np.isfinite(g)) and np.all(g > 0):
                 out.append(g)
+        if not spread:
+            return out
         mag = np.abs(z)
         k = int(np.argmax(mag) if self.family == "inductor" else np.argmin(mag))
         if 0 < k < f.size - 1:
             lo, hi = f[k - 1], f[k + 1]
             for base in list(out):
-                for f0 in np.geomspace(lo, hi, 9)[1:-1]:
+                for f0 in np.geomspace(lo, hi, 7)[1:-1]:
                     for scale in (0.3, 1.0, 3.0):
                         out.append(self._with_resonance(base, f0, scale, mag[k]))
         return out

@@ -62,9 +62,10 @@ DEFAULT_RDC_REL = 0.01
 #: resolved by the sweep.
 UNRESOLVED_REL = 0.5
 
-# Screening of the second family: this many evaluations, refined fully only
-# within this factor of the first family's chi-square.
-_SCREEN_NFEV = 12
+# Screening of the second family: refined only if its best starting point
+# comes within _SCREEN_START of the first family's fitted chi-square, and
+# given its optional element only within _SCREEN_RATIO after refinement.
+_SCREEN_START = 100.0
 _SCREEN_RATIO = 10.0
 
 _PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
@@ -518,6 +519,12 @@ def _rational_fit(sweep, kind, n_poles, initial_poles=None):
     return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts, **extra)
 
 
+def _at_noise(e) -> bool:
+    """Whether squared normalised residuals average to the noise (within 5 sigma of their mean)."""
+    n = max(int(np.size(e)), 1)
+    return float(np.mean(e)) <= 1.0 + 5.0 / math.sqrt(n)
+
+
 def _reweighted_rational(sweep, ref, kind, n_poles, inside, rational):
     """The rational model refitted with sigma at the circuit's S (where `inside`), if that matters."""
     from ._connection import dz_ds, s_from_impedance
@@ -561,9 +568,22 @@ def _fit_base(family, obs, rational, prior, max_nfev=200, seed=None):
     from ._refine import refine
 
     base, _ = circuits_of(family)
-    starts = ([] if seed is None else [seed]) + base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational)
-    n_best = 3 if sharp_resonance(family, obs.z_ohm) else 1
-    return refine(base, obs, starts, prior=prior, n_best=n_best, max_nfev=max_nfev)
+    first = ([] if seed is None else [seed]) + base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational, spread=False)
+    more = None
+    if sharp_resonance(family, obs.z_ohm):
+        def more():
+            return base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational)[len(first):]
+    return refine(base, obs, first, extra_starts=more, prior=prior, n_best=3, max_nfev=max_nfev)
+
+
+def _screened_out(family, obs, rational, prior, best_chi2) -> bool:
+    """Whether a family's best start is so far off that it cannot compete."""
+    from ._circuits import circuits_of
+    from ._refine import best_start_chi2
+
+    base, _ = circuits_of(family)
+    starts = base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational, spread=False)
+    return best_start_chi2(base, obs, starts, prior=prior) > _SCREEN_START * best_chi2
 
 
 def _fit_optional(rb, obs, rational, prior):
@@ -581,7 +601,7 @@ def _fit_optional(rb, obs, rational, prior):
     else:
         c = rb.values[0]
         extra = [x / (2 * math.pi * f[0] * c) for x in (1e4, 1e2, 10.0)]
-    starts = [np.append(rb.values, e) for e in extra] + full.starts(f, z, sig, rational)[:2]
+    starts = [np.append(rb.values, e) for e in extra] + full.starts(f, z, sig, rational, spread=False)
     n_best = 3 if sharp_resonance(family, z) else 1
     try:
         return refine(full, obs, starts, prior=prior, n_best=n_best)
@@ -739,26 +759,25 @@ def identify(
         ), notes)
 
     # 2-3. Circuits of each family, the family and the optional element by BIC.
-    # The family the data look like is fitted first; the other is screened
-    # with a few iterations and refined fully (with its optional element)
-    # only if it comes within a factor _SCREEN_RATIO of the chi-square of the
-    # first: a circuit of the wrong family is far off and slow to converge.
+    # The family the data look like is fitted first; the other is refined only
+    # if its best starting point comes within a factor _SCREEN_START of the
+    # first's fitted chi-square, and given its optional element only within
+    # _SCREEN_RATIO: a circuit of the wrong family is far off and slow to converge.
     # (A capacitor with leakage and an inductor whose R_s plays the leak can
     # look alike where ESL and ESR are not resolved: then both are refined,
     # and the families are compared by the better of their two circuits.)
     likely = "capacitor" if _looks_capacitive(sweep) else "inductor"
     families = (likely, "inductor" if likely == "capacitor" else "capacitor") if model == "auto" else (model,)
     fitted, optional = {}, {}
+    notes_screened = []
     best_chi2 = math.inf
     for idx, fam in enumerate(families):
         prior = None if rdc is None else Prior(_PRIOR_KEY[fam], rdc, rdc_std)
         try:
-            if idx == 0:
-                rb = _fit_base(fam, obs, rational, prior)
-            else:
-                rb = _fit_base(fam, obs, rational, prior, max_nfev=_SCREEN_NFEV)
-                if rb.chi2 <= _SCREEN_RATIO * best_chi2:
-                    rb = _fit_base(fam, obs, rational, prior, seed=rb.values)
+            if idx > 0 and _screened_out(fam, obs, rational, prior, best_chi2):
+                notes_screened.append(fam)
+                continue
+            rb = _fit_base(fam, obs, rational, prior)
         except FitError as exc:
             notes.append(f"{fam} circuit could not be fitted: {exc}")
             continue
@@ -869,9 +888,9 @@ def identify(
     # noise (1 - S within the noise) the measured Z is biased and its
     # first-order sigma far too small, and those points would otherwise distort
     # the whole rational model.  Kept only if it describes the measured S better.
-    if rational is not None and obs.on_s and i1 > i0:
-        inside = np.zeros(sweep.n_points, bool)
-        inside[i0:i1] = True
+    inside = np.zeros(sweep.n_points, bool)
+    inside[i0:i1] = True
+    if rational is not None and obs.on_s and i1 > i0 and not _at_noise(e_rat[inside]):
         refit_rm = _reweighted_rational(sweep, chosen, kind, n_poles, inside, rational)
         if refit_rm is not None:
             scores = rational_scores(refit_rm)

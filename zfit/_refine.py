@@ -37,7 +37,7 @@ import numpy as np
 from ._circuits import Circuit
 from ._errors import FitError
 
-__all__ = ["Observation", "Prior", "Refinement", "refine", "log_gradient"]
+__all__ = ["Observation", "Prior", "best_start_chi2", "Refinement", "refine", "log_gradient"]
 
 _SQRT2 = math.sqrt(2.0)
 # Log-parameters may move at most this far from their start (e^25 ~ 7e10):
@@ -319,13 +319,43 @@ def _jac(theta, circuit, obs, prior_index, prior):
     return out
 
 
+def best_start_chi2(circuit: Circuit, obs: "Observation", starts, *, prior: "Prior | None" = None) -> float:
+    """Return the lowest chi-square among starting points, without refining any.
+
+    Parameters
+    ----------
+    circuit : Circuit
+        The equivalent circuit.
+    obs : Observation
+        The data.
+    starts : sequence of array_like
+        Parameter vectors (SI units, positive).
+    prior : Prior, optional
+        An independent measurement of one parameter.
+    """
+    prior_index = None if prior is None else circuit.keys.index(prior.key)
+    best = math.inf
+    for p0 in starts:
+        p0 = np.asarray(p0, float)
+        if p0.shape != (circuit.n_params,) or not np.all(np.isfinite(p0)) or np.any(p0 <= 0):
+            continue
+        with np.errstate(all="ignore"):
+            r = _rows(np.log(p0), circuit, obs, prior_index, prior)
+        c = float(r @ r)
+        if math.isfinite(c):
+            best = min(best, c)
+    return best
+
+
 def refine(
-    circuit: Circuit, obs: Observation, starts, *, prior: Prior | None = None, n_best: int = 3, max_nfev: int = 200
+    circuit: Circuit, obs: Observation, starts, *, extra_starts=None, prior: Prior | None = None, n_best: int = 3,
+    max_nfev: int = 200,
 ) -> Refinement:
     """Return the weighted least-squares fit of `circuit` to a sweep.
 
     The starting points are ranked by their cost; the `n_best` lowest are
-    refined by ``scipy.optimize.least_squares`` (trust-region reflective,
+    refined (stopping as soon as one reaches the noise), then, if none did,
+    the same with `extra_starts`; refinement is by ``scipy.optimize.least_squares`` (trust-region reflective,
     analytic Jacobian) in log-parameters, and the refined one with the
     lowest cost is kept.
 
@@ -337,6 +367,9 @@ def refine(
         The data (see `Observation.from_sweep`).
     starts : sequence of array_like
         Initial parameter vectors (SI units, positive).
+    extra_starts : sequence of array_like or callable, optional
+        Further starts (or a function returning them), ranked and refined
+        only if no fit from `starts` reaches the noise.
     prior : Prior, optional
         An independent measurement of one parameter.
     n_best : int
@@ -362,40 +395,49 @@ def refine(
             raise FitError(f"{circuit.topology} has no parameter {prior.key}")
         prior_index = circuit.keys.index(prior.key)
 
-    ranked = []
-    for p0 in starts:
-        p0 = np.asarray(p0, float)
-        if p0.shape != (k,) or not np.all(np.isfinite(p0)) or np.any(p0 <= 0):
-            continue
-        theta0 = np.log(p0)
-        if prior is not None:
-            theta0[prior_index] = math.log(max(prior.value, 1e-300))
-        with np.errstate(all="ignore"):
-            r0 = _rows(theta0, circuit, obs, prior_index, prior)
-        c0 = float(r0 @ r0)
-        if math.isfinite(c0):
-            ranked.append((c0, len(ranked), theta0))
-    ranked.sort(key=lambda t: (t[0], t[1]))
+    def rank(candidates):
+        out = []
+        for p0 in candidates:
+            p0 = np.asarray(p0, float)
+            if p0.shape != (k,) or not np.all(np.isfinite(p0)) or np.any(p0 <= 0):
+                continue
+            theta0 = np.log(p0)
+            if prior is not None:
+                theta0[prior_index] = math.log(max(prior.value, 1e-300))
+            with np.errstate(all="ignore"):
+                r0 = _rows(theta0, circuit, obs, prior_index, prior)
+            c0 = float(r0 @ r0)
+            if math.isfinite(c0):
+                out.append((c0, len(out), theta0))
+        out.sort(key=lambda t: (t[0], t[1]))
+        return out
+
     best = None
     nfev = 0
-    used = len(ranked)
+    used = 0
     # Further starts are refined only while the best fit so far is worse than
     # the noise by more than five standard deviations of chi-square: a fit at
-    # the noise level leaves no better valley worth the time.
+    # the noise level leaves no better valley worth the time.  The extra
+    # starts are not even ranked unless the first ones fall short.
     good_enough = 0.5 * (rows + 5.0 * math.sqrt(2.0 * rows))
-    for _, _, theta0 in ranked[: max(1, n_best)]:
-        if best is not None and best.cost <= good_enough:
-            break
-        try:
-            sol = least_squares(
-                _rows, theta0, jac=_jac, args=(circuit, obs, prior_index, prior), max_nfev=max_nfev,
-                bounds=(theta0 - _LOG_SPAN, theta0 + _LOG_SPAN), **_METHOD,
-            )
-        except (ValueError, FloatingPointError, np.linalg.LinAlgError):
+    for tier in (starts, extra_starts):
+        if tier is None or (best is not None and best.cost <= good_enough):
             continue
-        nfev += sol.nfev
-        if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
-            best = sol
+        ranked = rank(tier() if callable(tier) else tier)
+        used += len(ranked)
+        for _, _, theta0 in ranked[: max(1, n_best)]:
+            if best is not None and best.cost <= good_enough:
+                break
+            try:
+                sol = least_squares(
+                    _rows, theta0, jac=_jac, args=(circuit, obs, prior_index, prior), max_nfev=max_nfev,
+                    bounds=(theta0 - _LOG_SPAN, theta0 + _LOG_SPAN), **_METHOD,
+                )
+            except (ValueError, FloatingPointError, np.linalg.LinAlgError):
+                continue
+            nfev += sol.nfev
+            if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
+                best = sol
     if best is None:
         raise FitError(f"{circuit.topology}: no usable starting point for the refinement")
 
