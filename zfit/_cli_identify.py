@@ -21,6 +21,7 @@ from ._cli_common import (
     NoiseRelOpt,
     OpenOpt,
     PortDelayOpt,
+    PortLossOpt,
     ShortOpt,
     app,
     echo,
@@ -54,6 +55,7 @@ def identify_command(
     load: LoadOpt = None,
     load_value: LoadValueOpt = None,
     port_delay: PortDelayOpt = None,
+    port_loss: PortLossOpt = None,
     force: ForceOpt = False,
 ):
     """Identify the equivalent circuit of the part in SWEEP.
@@ -80,7 +82,8 @@ def identify_command(
     r_dc = quantity(rdc, "--rdc")
     r_dc_std = quantity(rdc_std, "--rdc-std")
     s = sweep_from_options(
-        sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay
+        sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay,
+        port_loss=port_loss,
     )
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", MeasurementWarning)
@@ -92,14 +95,16 @@ def identify_command(
         if not any(text.endswith(o) for o in own):
             warn_line(text)
 
-    for line in summary_lines(result):
-        echo(line)
+    to_stdout = json_path is not None and str(json_path) == "-"
+    if not to_stdout:  # with --json - the standard output is the JSON alone
+        for line in summary_lines(result):
+            echo(line)
     for text in result.warnings:
         warn_line(text)
 
     if json_path is not None:
         text = json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n"
-        if str(json_path) == "-":
+        if to_stdout:
             sys.stdout.write(text)
         else:
             write_atomic(json_path, text, force)
@@ -107,17 +112,12 @@ def identify_command(
     if any(x is not None for x in (plot, netlist, touchstone, report)):
         from ._outputs import write_outputs
 
-        grid = None
-        if touchstone_grid is not None:
-            from ._export import parse_grid
-
-            grid = parse_grid(touchstone_grid)
         written = write_outputs(
-            result, plot=plot, netlist=netlist, touchstone=touchstone, touchstone_grid=grid,
+            result, plot=plot, netlist=netlist, touchstone=touchstone, touchstone_grid=touchstone_grid,
             report=report, force=force, command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:]),
         )
         for path in written:
-            echo(f"wrote {path}")
+            typer.echo(f"wrote {path}", err=to_stdout)
 
 
 def summary_lines(result) -> list[str]:

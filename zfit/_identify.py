@@ -562,7 +562,7 @@ def _n_poles(rm) -> int:
     return int(len(rm.poles))
 
 
-def _fit_base(family, obs, rational, prior, max_nfev=200, seed=None):
+def _fit_base(family, obs, rational, prior, max_nfev=200, seed=None, spread=True):
     """Refine the base circuit of a family (several starts for a sharp resonance)."""
     from ._circuits import circuits_of, sharp_resonance
     from ._refine import refine
@@ -570,10 +570,10 @@ def _fit_base(family, obs, rational, prior, max_nfev=200, seed=None):
     base, _ = circuits_of(family)
     first = ([] if seed is None else [seed]) + base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational, spread=False)
     more = None
-    if sharp_resonance(family, obs.z_ohm):
+    if spread and sharp_resonance(family, obs.z_ohm):
         def more():
             return base.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm, rational)[len(first):]
-    return refine(base, obs, first, extra_starts=more, prior=prior, n_best=3, max_nfev=max_nfev)
+    return refine(base, obs, first, extra_starts=more, prior=prior, n_best=3 if spread else 1, max_nfev=max_nfev)
 
 
 def _screened_out(family, obs, rational, prior, best_chi2) -> bool:
@@ -777,7 +777,13 @@ def identify(
             if idx > 0 and _screened_out(fam, obs, rational, prior, best_chi2):
                 notes_screened.append(fam)
                 continue
-            rb = _fit_base(fam, obs, rational, prior)
+            if idx == 0:
+                rb = _fit_base(fam, obs, rational, prior)
+            else:
+                # One start only, unless it turns out to compete.
+                rb = _fit_base(fam, obs, rational, prior, spread=False)
+                if rb.chi2 <= _SCREEN_RATIO * best_chi2:
+                    rb = _fit_base(fam, obs, rational, prior, seed=rb.values)
         except FitError as exc:
             notes.append(f"{fam} circuit could not be fitted: {exc}")
             continue

@@ -436,8 +436,11 @@ def refine(
             except (ValueError, FloatingPointError, np.linalg.LinAlgError):
                 continue
             nfev += sol.nfev
+            same_valley = best is not None and abs(sol.cost - best.cost) <= 1e-6 * best.cost
             if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
                 best = sol
+            if same_valley and tier is extra_starts:
+                break  # the spread leads back to the valley already found
     if best is None:
         raise FitError(f"{circuit.topology}: no usable starting point for the refinement")
 
