@@ -167,7 +167,7 @@ pre { font-family: "DejaVu Sans Mono", "Liberation Mono", Consolas, monospace; f
   background: #f6f6f6; padding: 1mm 1.5mm; margin: 0; white-space: pre-wrap; word-break: break-all; }
 .warn p { margin: 0.3mm 0; }
 footer { margin-top: 2mm; border-top: 0.5pt solid #999; padding-top: 1mm; font-size: 7pt; color: #333; }
-footer p { margin: 0 0 0.4mm 0; }
+footer p { margin: 0 0 0.4mm 0; line-height: 1.75; }
 footer code { font-family: "DejaVu Sans Mono", "Liberation Mono", Consolas, monospace; font-size: 7.5pt;
   background: #f3f3f3; padding: 0.4mm 1mm; word-break: break-all; }
 @media screen { body { padding: 8mm 6mm; } }
