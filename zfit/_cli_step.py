@@ -162,7 +162,7 @@ def summary_lines(result) -> list[str]:
     lo, hi = result.usable_band_hz
     resp = result.response
     out.append(f"usable band:  {format_eng(lo, 'Hz')} to {format_eng(hi, 'Hz')}  "
-               f"({resp.n_averages} edge(s) averaged, bins of {format_eng(1.0 / resp.segment_s, 'Hz')})")
+               f"({resp.n_averages} segment(s) averaged, bins of {format_eng(1.0 / resp.segment_s, 'Hz')})")
     if result.impedance is not None:
         from ._cli_identify import summary_lines as identify_lines
 

@@ -168,12 +168,19 @@ def edge_response(
     x: np.ndarray | None = None,
     step_at: np.ndarray | None = None,
     step_size: float | None = None,
+    step_sign: np.ndarray | None = None,
+    dc_gain: float | None = None,
     noise_x: float = 0.0,
     noise_y: float = 0.0,
     coherence_min: float = DEFAULT_COHERENCE_MIN,
     energy_min_db: float = DEFAULT_ENERGY_MIN_DB,
 ) -> FrequencyResponse:
-    """Return the H1 estimate of V_out/V_in from segments around each edge.
+    """Return the H1 estimate of V_out/V_in from segments of the record.
+
+    A segment holds one period of a square wave (a rising and a falling
+    edge: in periodic steady state ``Y = H X`` then holds exactly at every
+    bin, settled or not) or the transient of one edge (a single step, or a
+    record of two edges, where the response must settle within the segment).
 
     Parameters
     ----------
@@ -190,12 +197,19 @@ def edge_response(
         Input channel samples (two-channel estimate).  Without it the input
         is an ideal step of `step_size` at `step_at` in each segment.
     step_at : numpy.ndarray, optional
-        For a single channel: the instant of the ideal step in each segment,
-        in samples from the segment start (fractional).
+        For a single channel: the instants of the ideal steps in each
+        segment, in samples from the segment start (fractional), shape
+        ``(segments,)`` or ``(segments, steps)``.
     step_size : float, optional
         For a single channel: the height of the ideal step (V), the
-        difference of the measured state levels, signed like each edge
-        through the sign of the output's step in that segment.
+        difference of the measured state levels.
+    step_sign : numpy.ndarray, optional
+        For a single channel: +1 / -1 for each step in `step_at` (0 for none);
+        by default each segment's one step goes the way its output does.
+    dc_gain : float, optional
+        The ratio of the output's step to the input's, when known from the
+        state levels (reported as `FrequencyResponse.dc_gain`); by default
+        the 0 Hz bin of one-edge segments.
     noise_x, noise_y : float
         White-noise standard deviation per sample of each channel (V); sets
         the uncertainty floor from noise and quantisation.
@@ -248,10 +262,15 @@ def edge_response(
         else:
             # The sampled derivative of an ideal step of height A at s samples:
             # A exp(-j w s dt) (e^{j w dt} - 1)/(j w dt) (band-limited view).
-            sign = np.sign(Y[:, 0].real)
-            sign[sign == 0] = 1.0
-            s = np.asarray(step_at, dtype=float)[b:b + per_block]
-            X = (sign * step_size)[:, None] * np.exp(-1j * omega_dt[None, :] * s[:, None]) * ideal_shape[None, :]
+            s = np.asarray(step_at, dtype=float).reshape(n_d, -1)[b:b + per_block]
+            if step_sign is None:
+                sign = np.sign(Y[:, 0].real)
+                sign[sign == 0] = 1.0
+                sign = sign[:, None]
+            else:
+                sign = np.asarray(step_sign, dtype=float).reshape(n_d, -1)[b:b + per_block]
+            phase = np.exp(-1j * omega_dt[None, None, :] * s[:, :, None])
+            X = step_size * np.einsum("rk,rkf->rf", sign, phase) * ideal_shape[None, :]
         sxx += np.sum(X.real**2 + X.imag**2, axis=0)
         syy += np.sum(Y.real**2 + Y.imag**2, axis=0)
         sxy += np.sum(np.conj(X) * Y, axis=0)
@@ -279,30 +298,42 @@ def edge_response(
         floor = dvar * noise_x**2
         excess = np.maximum(gxx - floor, 1e-30 * np.max(gxx))
         level = 10.0 * np.log10(excess / np.max(excess[1:])) if nbin > 1 else np.zeros(nbin)
-        # Input energy near Nyquist that stands clear of the noise floor's own scatter.
-        near = (f > 0.4 / dt) & (gxx - floor > 4.0 * floor / math.sqrt(n_d) + 1e-12 * np.max(gxx))
-        nyquist_db = float(np.max(level[near])) if (x is not None and near.any()) else float("-inf")
-    dc_gain = dc_out / dc_in if dc_in != 0 else float("nan")
-    # Drop the DC bin: a Sweep needs positive frequencies.
-    f, h, h_std, coh, level = f[1:], h[1:], h_std[1:], coh[1:], level[1:]
+        # Input energy near Nyquist that stands clear of the noise floor's own
+        # scatter: the median over the top fifth of the band, since fast edges
+        # alias a smooth, broad spectrum, while noise spikes single bins.
+        top = (f > 0.4 / dt) & (sxx > 0)
+        nyquist_db = float("-inf")
+        if x is not None and top.sum() >= 3:
+            med = float(np.median(gxx[top] - floor[top]))
+            if med > 3.0 * float(np.median(floor[top])) / math.sqrt(n_d) and med > 0:
+                nyquist_db = 10.0 * math.log10(med / np.max(excess[1:]))
+    if dc_gain is None:
+        dc_gain = dc_out / dc_in if abs(dc_in) > 1e-9 * n_d * math.sqrt(np.max(gxx)) else float("nan")
+    # Drop the DC bin (a Sweep needs positive frequencies) and the bins the
+    # input does not excite at all (the even harmonics of a square wave
+    # over one period), which carry no information.
+    keep = np.zeros(f.size, dtype=bool)
+    keep[1:] = level[1:] >= energy_min_db - 30.0
+    f, h, h_std, coh, level = f[keep], h[keep], h_std[keep], coh[keep], level[keep]
     h_std = np.where(np.isfinite(h_std) & (h_std > 0), h_std, np.inf)
     usable, band = usable_band(f, h, h_std, coh, level, n_d, coherence_min=coherence_min, energy_min_db=energy_min_db)
-    method = (f"H1 = G_xy/G_xx over {n_d} edge segment(s) of {seg_len} samples" if x is not None else
-              f"output against an ideal step between the measured levels, {n_d} edge segment(s) of {seg_len} samples")
+    what = f"{n_d} segment(s) of {seg_len} samples"
+    method = (f"H1 = G_xy/G_xx over {what}" if x is not None else
+              f"output against an ideal step between the measured levels, {what}")
     return FrequencyResponse(f, h, h_std, coh, level, usable, band, n_d, seg_len * dt, method, dc_gain, nyquist_db)
 
 
 def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence_min=DEFAULT_COHERENCE_MIN,
-                energy_min_db=DEFAULT_ENERGY_MIN_DB, snr_min: float = 3.0, min_run: int = 5):
+                energy_min_db=DEFAULT_ENERGY_MIN_DB, snr_min: float = 3.0, window: int = 17):
     """Return (mask, (f_lo, f_hi)) of the usable bins and the band they span.
 
     A bin is usable where the input has energy, the coherence is high and
-    the estimate stands clear of its uncertainty, judged by the majority of
-    its five-bin neighbourhood so that one noisy bin neither cuts nor
-    extends the band.  Runs of at least `min_run` such bins are kept: a
-    dip of the coherence inside the band (where |H| is tiny at a part's
-    resonance) leaves out those bins only, and the band ends with the last
-    run.
+    the estimate stands clear of its uncertainty.  The band spans the usable
+    bins around which at least half of the `window` nearest excited bins are
+    usable too, so that a stray good bin in the noise above the band does not
+    extend it; inside the band, bins that fail (a coherence dip where |H| is
+    tiny at a part's resonance, the weak even harmonics of a square wave)
+    are left out.
 
     Parameters
     ----------
@@ -317,28 +348,27 @@ def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence
         Lowest input level accepted.
     snr_min : float
         Lowest ``|H| / h_std`` accepted.
-    min_run : int
-        Shortest run of usable bins kept.
+    window : int
+        Neighbourhood, in excited bins, that must be mostly usable.
     """
-    ok = (input_level_db >= energy_min_db) & np.isfinite(h) & (np.abs(h) > snr_min * h_std)
+    e = np.flatnonzero(input_level_db >= energy_min_db)
+    mask = np.zeros(f.size, dtype=bool)
+    if e.size == 0:
+        return mask, (float("nan"), float("nan"))
+    ok = np.isfinite(h[e]) & (np.abs(h[e]) > snr_min * h_std[e])
     if n_averages >= 2:
-        ok &= coherence >= coherence_min
-    if ok.size >= 5:
-        votes = np.convolve(ok.astype(int), np.ones(5, dtype=int), mode="same")
-        mask = (votes >= 3) & ok
-    else:
-        mask = ok.copy()
-    # Runs of consecutive usable bins; short runs are dropped.
-    edges = np.diff(np.concatenate([[0], mask.astype(np.int8), [0]]))
-    starts, stops = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
-    keep = np.zeros(f.size, dtype=bool)
-    for a, b in zip(starts, stops):
-        if b - a >= min(min_run, f.size):
-            keep[a:b] = True
-    if not keep.any():
-        return keep, (float("nan"), float("nan"))
-    idx = np.flatnonzero(keep)
-    return keep, (float(f[idx[0]]), float(f[idx[-1]]))
+        ok &= coherence[e] >= coherence_min
+    kernel = np.ones(min(window, ok.size))
+    frac = np.convolve(ok.astype(float), kernel, mode="same") / np.convolve(np.ones(ok.size), kernel, mode="same")
+    good = ok & (frac >= 0.5 - 1e-9)
+    if not good.any():
+        return mask, (float("nan"), float("nan"))
+    gi = np.flatnonzero(good)
+    lo, hi = e[gi[0]], e[gi[-1]]
+    mask[e[ok]] = True
+    mask[:lo] = False
+    mask[hi + 1:] = False
+    return mask, (float(f[lo]), float(f[hi]))
 
 
 def _log_merge(f, h, h_std, max_points):

@@ -962,8 +962,26 @@ def analyse_capture(
     noise_y = out_lv.noise if has_states else float(np.std(np.diff(y[: min(n, 1 << 16)]))) / math.sqrt(2.0)
     resp = None
 
+    # ---- response segments: one period (two edges) each, where Y = H X holds
+    # exactly in periodic steady state whether or not the response settles
+    # between edges; one edge each for a record of one or two edges.
+    r_idx = np.zeros(0, dtype=int)
+    if n_edges >= 3:
+        per = t_mid[2:] - t_mid[:-2]
+        r_len = int(round(float(np.median(per))))
+        if np.max(np.abs(per - r_len)) > 0.01 * r_len:
+            notes.append(f"the square wave's period varies by up to {100 * np.max(np.abs(per - r_len)) / r_len:.2g} %")
+        r_idx = np.arange(0, n_edges - 1, 2)
+        r_idx = r_idx[starts[r_idx] + r_len + 1 <= n]
+    if r_idx.size:
+        r_starts = starts[r_idx]
+    else:
+        r_len, r_starts, r_idx = seg_len, starts, np.arange(n_edges)
+    per_period = r_len != seg_len
+    dc_gain = out_lv.amplitude / in_lv.amplitude if (has_states and x is not None) else None
+
     def two_channel_response():
-        return edge_response(y, dt, starts, seg_len, x=x, noise_x=in_lv.noise, noise_y=noise_y,
+        return edge_response(y, dt, r_starts, r_len, x=x, noise_x=in_lv.noise, noise_y=noise_y, dc_gain=dc_gain,
                              coherence_min=coherence_min, energy_min_db=energy_min_db)
 
     # ---- per-edge output figures and the averaged edge, block by block
@@ -1018,8 +1036,8 @@ def analyse_capture(
             overshoot_std = float(np.std(ov, ddof=1) / math.sqrt(ov.size)) if ov.size > 1 else None
             settle = avg_y[-max(3, length // 20):]
             if abs(float(np.mean(settle)) - out_lv.high) > 0.01 * out_lv.amplitude + 3 * out_lv.high_noise / math.sqrt(n_edges * settle.size):
-                warn("the output has not settled before the next edge; the lowest frequencies of the response "
-                     "are biased (use a slower square wave)")
+                warn("the output has not settled before the next edge: the state levels, the transition "
+                     "duration and the time constant refer to an unsettled waveform (use a slower square wave)")
 
             # ---- dominant time constant
             if x is not None:
@@ -1087,8 +1105,17 @@ def analyse_capture(
         if step_at is None:
             step_at = np.where(np.isfinite(t10), t10, edge_frac)
             notes.append("the ideal step is placed at each edge's 10 % instant (no first-order fit)")
-        resp = edge_response(y, dt, starts, seg_len, step_at=step_at, step_size=ref_lv.amplitude,
-                             noise_y=noise_y, coherence_min=coherence_min, energy_min_db=energy_min_db)
+        if per_period:
+            # The two steps of each period, from the row starts of their own edges.
+            absolute = starts + np.asarray(step_at, dtype=float)
+            at = np.stack([absolute[r_idx], absolute[r_idx + 1]], axis=1) - r_starts[:, None]
+            sign = np.stack([pol[r_idx], pol[r_idx + 1]], axis=1)
+            resp = edge_response(y, dt, r_starts, r_len, step_at=at, step_sign=sign, step_size=ref_lv.amplitude,
+                                 noise_y=noise_y, dc_gain=1.0, coherence_min=coherence_min,
+                                 energy_min_db=energy_min_db)
+        else:
+            resp = edge_response(y, dt, starts, seg_len, step_at=step_at, step_size=ref_lv.amplitude,
+                                 noise_y=noise_y, coherence_min=coherence_min, energy_min_db=energy_min_db)
     band = resp.band_hz
     if x is not None and resp.nyquist_level_db > -40.0:
         warn(f"the input still has energy near the Nyquist frequency ({-resp.nyquist_level_db:.0f} dB below its peak): "
