@@ -207,3 +207,21 @@ def test_cli_prints_the_table_and_writes_json(tmp_path):
     bad = CliRunner().invoke(app, ["identify", str(path), "--at", "fast"])
     assert bad.exit_code == 2 and "--at" in bad.output and "Traceback" not in bad.output
     assert CliRunner().invoke(app, ["identify", str(path), "--json", str(out), "--force", "--rdc", "0.5"]).exit_code == 0
+
+
+def test_cli_writes_outputs_and_json_to_stdout(tmp_path):
+    from zfit._cli import app
+
+    path = _s1p(tmp_path, seed=12)
+    net = tmp_path / "coil.cir"
+    ts = tmp_path / "model.s1p"
+    res = CliRunner().invoke(app, ["identify", str(path), "--netlist", str(net), "--touchstone", str(ts),
+                                   "--touchstone-grid", "1M:100M:11"])
+    assert res.exit_code == 0, res.output
+    assert net.exists() and ".subckt" in net.read_text().lower()
+    rows = [ln for ln in ts.read_text().splitlines() if ln.strip() and ln.lstrip()[0].isdigit()]
+    assert len(rows) == 11
+    # --json - : the standard output is the JSON object alone.
+    out = CliRunner().invoke(app, ["identify", str(path), "--json", "-"])
+    assert out.exit_code == 0
+    assert json.loads(out.stdout)["model"] == "inductor"

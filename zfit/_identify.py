@@ -519,6 +519,24 @@ def _rational_fit(sweep, kind, n_poles, initial_poles=None):
     return _vectfit.vector_fit(sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm, n_poles, **opts, **extra)
 
 
+def _second_order_sigma(sweep):
+    """The sweep with the second-order error of the S-to-Z conversion added to sigma.
+
+    Z = g(S) with g a Moebius map: where the analyser noise is comparable to
+    the distance of S from the pole of g (relative uncertainty
+    ``rho = sigma / |Z|`` near 1 or above), the measured Z carries an error
+    of order ``rho * sigma`` beyond the first-order sigma; it is added in
+    quadrature, ``sigma * sqrt(1 + rho^2)``, for the rational fit on Z only
+    (the circuits are fitted on S, where the noise is Gaussian).
+    """
+    import dataclasses
+
+    rho = sweep.sigma_ohm / np.abs(sweep.z_ohm)
+    if not np.any(rho > 0.1):
+        return sweep
+    return dataclasses.replace(sweep, sigma_ohm=sweep.sigma_ohm * np.sqrt(1.0 + rho**2))
+
+
 def _at_noise(e) -> bool:
     """Whether squared normalised residuals average to the noise (within 5 sigma of their mean)."""
     n = max(int(np.size(e)), 1)
@@ -533,7 +551,8 @@ def _reweighted_rational(sweep, ref, kind, n_poles, inside, rational):
     with np.errstate(all="ignore"):
         sig_model = np.abs(dz_ds(s_model, sweep.connection, sweep.reference_ohm)) * sweep.noise.sigma(s_model)
     sig_model = np.where(inside, sig_model, 0.0)
-    sig = np.fmax(sweep.sigma_ohm, np.where(np.isfinite(sig_model), sig_model, np.inf))
+    base_sig = _second_order_sigma(sweep).sigma_ohm
+    sig = np.fmax(base_sig, np.where(np.isfinite(sig_model), sig_model, np.inf))
     sig = np.where(np.isfinite(sig), sig, 1e6 * np.max(sweep.sigma_ohm))
     if not np.any(sig > 1.5 * sweep.sigma_ohm):
         return None
@@ -722,7 +741,7 @@ def identify(
         kind = "capacitor" if _looks_capacitive(sweep) else "inductor"
     rational = None
     try:
-        rational = _rational_fit(sweep, kind, n_poles)
+        rational = _rational_fit(_second_order_sigma(sweep) if obs.on_s else sweep, kind, n_poles)
     except FitError as exc:
         if model == "rational":
             raise

@@ -420,8 +420,9 @@ def refine(
     # the noise level leaves no better valley worth the time.  The extra
     # starts are not even ranked unless the first ones fall short.
     good_enough = 0.5 * (rows + 5.0 * math.sqrt(2.0 * rows))
+    agreed = False
     for tier in (starts, extra_starts):
-        if tier is None or (best is not None and best.cost <= good_enough):
+        if tier is None or agreed or (best is not None and best.cost <= good_enough):
             continue
         ranked = rank(tier() if callable(tier) else tier)
         used += len(ranked)
@@ -439,8 +440,11 @@ def refine(
             same_valley = best is not None and abs(sol.cost - best.cost) <= 1e-6 * best.cost
             if np.isfinite(sol.cost) and (best is None or sol.cost < best.cost):
                 best = sol
-            if same_valley and tier is extra_starts:
-                break  # the spread leads back to the valley already found
+            if same_valley:
+                # Two starts led to the same valley: it is the one the data
+                # point to, and a spread of further starts would only find it again.
+                agreed = True
+                break
     if best is None:
         raise FitError(f"{circuit.topology}: no usable starting point for the refinement")
 
