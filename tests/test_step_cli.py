@@ -38,6 +38,9 @@ def test_shunt_identifies_the_demo_coil(tmp_path):
     # The invented coil's values from the demo script: within 3 % (L) and 8 % (C_p).
     assert p["L"]["value"] == pytest.approx(4.7e-3, rel=0.03)
     assert p["C_p"]["value"] == pytest.approx(38e-12, rel=0.08)
+    # The identified values agree with the invented ones within 3 standard uncertainties.
+    assert abs(p["L"]["value"] - 4.7e-3) < 3 * p["L"]["std"]
+    assert abs(p["C_p"]["value"] - 38e-12) < 3 * p["C_p"]["std"]
     # tau of H = R/(R + R_w + sL) with the stray C: near L/(R + R_w) = 4.64 us, within 3 %.
     assert d["time_constant_s"] == pytest.approx(4.7e-3 / 1012.0, rel=0.03)
     rows = list(csv.reader(line for line in resp.read_text().splitlines() if not line.startswith("#")))
@@ -73,6 +76,8 @@ def test_errors_are_one_line(tmp_path):
     assert res.exit_code == 2 and "no channel named 'CH7'" in res.output
     res = run(SQUARE, "-i", "CH1", "-o", "CH2", "--added-capacitance", "100p")
     assert res.exit_code == 2 and "go together" in res.output
+    res = run(SQUARE, "-i", "CH1", "-o", "CH2", "--netlist", tmp_path / "x.cir")
+    assert res.exit_code == 2 and "--shunt" in res.output and not (tmp_path / "x.cir").exists()
 
 
 def test_help_carries_the_safety_caution():

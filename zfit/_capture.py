@@ -546,7 +546,9 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
     while lines and not lines[-1].strip():
         lines.pop()
     try:
-        delim, dec, start, ncols = _guess_layout(lines, delimiter)
+        # The metadata and the header sit in the first lines: judging the
+        # layout on 400 of them is plenty, and keeps the guess fast.
+        delim, dec, start, ncols = _guess_layout(lines[:400], delimiter)
     except ZfitInputError as exc:
         raise ZfitInputError(exc.message, path) from None
     preamble = lines[:start]
@@ -719,7 +721,7 @@ def _uniform_time(t: np.ndarray, path, first_line: int):
                 f"non-uniform time steps: step of {d[k - i - 1]:.6g} s where the record averages {dt:.6g} s "
                 f"(missing or repeated samples, or a pieced-together record)", path, first_line + k)
     # A coarse printout rounds the two end points too, which anchor the grid.
-    if max_res > (1.0 if coarse else 0.5) * resolution * 1.02 + 1e-12 * abs(t).max():
+    if max_res > (1.0 if coarse else 0.5) * resolution * 1.02 + 1e-12 * max(abs(t[0]), abs(t[-1])):
         raise ZfitInputError(
             f"non-uniform time steps: times drift up to {max_res / dt:.3g} sample intervals from a uniform grid "
             f"(dt = {dt:.6g} s)", path, first_line)

@@ -45,6 +45,8 @@ def step_command(
     json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.step/1 JSON result here."),
     response: Optional[Path] = typer.Option(None, "--response", help="Write the frequency response (CSV: f, |H| dB, phase, uncertainties, coherence, usable)."),
     plot: Optional[Path] = typer.Option(None, "--plot", help="Write the figures (.png or .svg): time record, Bode, and with --shunt the impedance."),
+    netlist: Optional[Path] = typer.Option(None, "--netlist", help="With --shunt: write a SPICE subcircuit of the identified part (.cir, .sp or .lib)."),
+    report: Optional[Path] = typer.Option(None, "--report", help="Write a self-contained HTML report (.html)."),
     inductance: Optional[str] = typer.Option(None, "--inductance", help="The coil's inductance in H (e.g. 25m): turns the ringing into its stray capacitance."),
     added_capture: Optional[Path] = typer.Option(None, "--added-capture", help="Capture of the same coil with a known capacitor across it (two-resonance method)."),
     added_capacitance: Optional[str] = typer.Option(None, "--added-capacitance", help="That capacitor in F (e.g. 100p)."),
@@ -68,6 +70,8 @@ def step_command(
             raise ZfitInputError(f"{name} must be positive")
     if response is not None and response.suffix.lower() not in (".csv", ".txt"):
         raise ZfitInputError("the response file is written as CSV: give a .csv path", response)
+    if netlist is not None and shunt_ohm is None:
+        raise ZfitInputError("--netlist needs the part's impedance: give the sense resistor with --shunt")
     # Fail before the work, not after it, when an output exists.
     for p in (json_path, response):
         if p is not None:
@@ -85,10 +89,10 @@ def step_command(
     if response is not None:
         write_atomic(response, response_csv(result), force)
         echo(f"wrote {response}")
-    if plot is not None:
+    if plot is not None or netlist is not None or report is not None:
         from ._outputs import write_outputs
 
-        for path in write_outputs(result, plot=plot, force=force,
+        for path in write_outputs(result, plot=plot, netlist=netlist, report=report, force=force,
                                   command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:])):
             echo(f"wrote {path}")
 
