@@ -132,6 +132,12 @@ def test_esr_d_plot_data(rng):
     np.testing.assert_allclose(_xy(fig, "d-circuit")[1], d, rtol=1e-15)
     assert fig.axes[0].yaxis.get_major_formatter()(0.01, 0) == "10 mΩ"
     _close(fig)
+    # With the rational model: measured points as dots, the smooth curves as lines.
+    fig = plot_esr_d(f, zc.real * 1.01, d, esr_rational=zc.real, d_rational=d)
+    assert _artist(fig, "esr-measured").get_linestyle() == "None"
+    np.testing.assert_allclose(_xy(fig, "esr-rational")[1], zc.real, rtol=1e-15)
+    np.testing.assert_allclose(_xy(fig, "d-rational")[1], d, rtol=1e-15)
+    _close(fig)
 
 
 def test_bode_plot_data():

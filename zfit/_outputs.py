@@ -183,7 +183,16 @@ def identification_figures(result, titles: bool = True) -> dict:
             d = z.real / np.abs(z.imag)
             esr_c = circuit.real if circuit is not None else None
             d_c = circuit.real / np.abs(circuit.imag) if circuit is not None else None
-            figs["esr_d"] = plot_esr_d(f, esr, d, esr_std=sig / math.sqrt(2.0), esr_circuit=esr_c, d_circuit=d_c,
+            esr_r = rational.real if rational is not None else None
+            d_r = rational.real / np.abs(rational.imag) if rational is not None else None
+            esr_s = sig / math.sqrt(2.0)
+            if result.rational is not None:
+                try:
+                    esr_s = result.rational.impedance_std(f) / math.sqrt(2.0)
+                except Exception:  # pragma: no cover - a model without covariance
+                    esr_r = d_r = None
+            figs["esr_d"] = plot_esr_d(f, esr, d, esr_std=esr_s, esr_circuit=esr_c, d_circuit=d_c,
+                                       esr_rational=esr_r, d_rational=d_r,
                                        title="ESR and dissipation factor" if titles else "")
     return figs
 

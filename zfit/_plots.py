@@ -460,6 +460,8 @@ def plot_esr_d(
     esr_std=None,
     esr_circuit=None,
     d_circuit=None,
+    esr_rational=None,
+    d_rational=None,
     title: str = "",
     width_in: float = 7.2,
     height_in: float = 4.0,
@@ -475,9 +477,14 @@ def plot_esr_d(
     d_measured : array_like
         D = tan(delta) = Re Z / |Im Z| of the measured part.
     esr_std : array_like, optional
-        Standard uncertainty of `esr_measured` (sigma/sqrt 2); +-2 sigma band.
+        Standard uncertainty of `esr_rational` if given, else of
+        `esr_measured` (sigma/sqrt 2); a +-2 sigma band around that curve.
     esr_circuit, d_circuit : array_like, optional
         The same figures of the equivalent circuit.
+    esr_rational, d_rational : array_like, optional
+        The same figures of the rational model (the measurement without its
+        noise); when given, the measured points are drawn as dots and these
+        as the lines.
     title : str
         Figure title.
     width_in, height_in : float
@@ -487,7 +494,7 @@ def plot_esr_d(
     -------
     matplotlib.figure.Figure
         Artists' gids: ``esr-measured``, ``esr-band``, ``esr-circuit``,
-        ``d-measured``, ``d-circuit``.
+        ``esr-rational``, ``d-measured``, ``d-circuit``, ``d-rational``.
     """
     f = np.asarray(f_hz, dtype=float)
     esr = np.asarray(esr_measured, dtype=float)
@@ -497,25 +504,39 @@ def plot_esr_d(
     pos = np.where(esr > 0, esr, np.nan)
     if esr_std is not None:
         s = np.asarray(esr_std, dtype=float)
-        b = ax_e.fill_between(f, np.maximum(esr - 2 * s, np.abs(esr) * 1e-2 + 1e-300), esr + 2 * s, color=BAND, lw=0,
+        c = esr if esr_rational is None else np.asarray(esr_rational, dtype=float)
+        b = ax_e.fill_between(f, np.maximum(c - 2 * s, np.abs(c) * 1e-2 + 1e-300), c + 2 * s, color=BAND, lw=0,
                               label="measured ±2σ", zorder=1)
         b.set_gid("esr-band")
-    ax_e.plot(f, pos, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me, label="measured Re Z",
-              gid="esr-measured", zorder=3)
     dpos = np.where(d > 0, d, np.nan)
-    ax_d.plot(f, dpos, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me, label="measured",
-              gid="d-measured", zorder=3)
+    if esr_rational is None:
+        ax_e.plot(f, pos, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me, label="measured Re Z",
+                  gid="esr-measured", zorder=3)
+        ax_d.plot(f, dpos, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me, label="measured",
+                  gid="d-measured", zorder=3)
+    else:
+        ax_e.plot(f, pos, ls="none", color="#777777", marker=".", ms=2.0, label="measured Re Z, each point",
+                  gid="esr-measured", zorder=2)
+        ax_d.plot(f, dpos, ls="none", color="#777777", marker=".", ms=2.0, gid="d-measured", zorder=2)
+        ax_e.plot(f, np.asarray(esr_rational, dtype=float), color=INK, lw=1.1, label="measured, rational model",
+                  gid="esr-rational", zorder=3)
+        if d_rational is not None:
+            ax_d.plot(f, np.asarray(d_rational, dtype=float), color=INK, lw=1.1, gid="d-rational", zorder=3)
     if esr_circuit is not None:
-        ax_e.plot(f, np.asarray(esr_circuit, dtype=float), color=CIRCUIT, lw=1.5, label="circuit", gid="esr-circuit", zorder=4)
+        ax_e.plot(f, np.asarray(esr_circuit, dtype=float), color=CIRCUIT, lw=1.5, ls=(0, (8, 2)), label="circuit",
+                  gid="esr-circuit", zorder=4)
     if d_circuit is not None:
-        ax_d.plot(f, np.asarray(d_circuit, dtype=float), color=CIRCUIT, lw=1.5, label="circuit", gid="d-circuit", zorder=4)
+        ax_d.plot(f, np.asarray(d_circuit, dtype=float), color=CIRCUIT, lw=1.5, ls=(0, (8, 2)), label="circuit",
+                  gid="d-circuit", zorder=4)
     _style_axis(ax_e, yunit="ohm", ylog=True)
     _style_axis(ax_d, xunit="Hz", ylog=True)
     # Scale to the part, not to the noise of points where R is tiny.
-    for ax, meas, model in ((ax_e, esr, esr_circuit), (ax_d, d, d_circuit)):
+    for ax, meas, models in ((ax_e, esr, (esr_circuit, esr_rational)), (ax_d, d, (d_circuit, d_rational))):
         good = meas[np.isfinite(meas) & (meas > 0)]
         ref = [np.percentile(good, [10, 99])] if good.size else []
-        if model is not None:
+        for model in models:
+            if model is None:
+                continue
             m = np.asarray(model, dtype=float)
             m = m[np.isfinite(m) & (m > 0)]
             if m.size:
