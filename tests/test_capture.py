@@ -200,3 +200,13 @@ def test_no_warning_for_a_clean_file(tmp_path, two_channel):
     with warnings.catch_warnings():
         warnings.simplefilter("error")
         read_capture(p)
+
+
+def test_interval_in_header_and_an_unnamed_time_column(tmp_path, two_channel):
+    t, dt, a, _ = two_channel
+    p = tmp_path / "both.csv"
+    p.write_text(f"Sample interval,{dt:.4E}\n" + "".join(f"{u:.9E},{v:.5f}\n" for u, v in zip(t, a)))
+    cap = read_capture(p)
+    # The first column steps by the interval: it is the time, not a channel.
+    assert cap.names == ("col2",) and cap.file_columns == (2,)
+    assert cap.t0 == pytest.approx(t[0]) and cap.dt == pytest.approx(dt, rel=1e-9)

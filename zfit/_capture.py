@@ -278,7 +278,7 @@ _DT_KEYS = re.compile(
 )
 _RATE_KEYS = re.compile(r"(sampl\w*\s*rate)|(^fs$)|(^sample\s*frequency$)")
 _T0_KEYS = re.compile(r"(^t0$)|(start\s*time)|(x\s*-?\s*(origin|zero|start))|(time\s*(offset|origin|of\s*first))|(first\s*(point|sample)\s*time)")
-_TIME_NAMES = re.compile(r"^(t|time|times|sec|second|seconds|s|x)([\s_\-(\[/].*)?$", re.IGNORECASE)
+_TIME_NAMES = re.compile(r"^(t|time|times|sec|second|seconds|s|x|zeit|temps|tiempo)([\s_\-(\[/].*)?$", re.IGNORECASE)
 
 
 def _parse_number(text: str) -> float | None:
@@ -405,7 +405,8 @@ def _header(preamble: list[str], delim, ncols: int):
         return f
 
     last = fields(rows[-1])
-    if len(last) != ncols:
+    if len(last) != ncols or any(_is_number(f, False) for f in last if f):
+        # A metadata line ("Sample interval,4e-08") is no header of names.
         return None, None
     unitlike = all(re.fullmatch(r"[\(\[]?\s*(s|v|a|sec|volt|volts|ms|us|ns|mv|)\s*[\)\]]?", x, re.IGNORECASE) for x in last)
     if unitlike and len(rows) >= 2:
@@ -619,6 +620,13 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
             names[j] = f"{nm}_{j + 1}"
         seen[nm] = j
 
+    if tcol is None and time_column is None and ncols >= 2 and (dt_given or meta_dt):
+        # An interval in the header and, besides, a first column that steps by
+        # it: that column is the time, not a channel.
+        step_ = dt_given or meta_dt[1]
+        d0 = np.diff(cols[0][:1024])
+        if d0.size and np.all(np.abs(d0 - step_) < 0.01 * step_):
+            tcol = 0
     t0 = 0.0
     if tcol is not None:
         if guessed and not np.all(np.diff(cols[tcol][: 1 << 12]) >= 0):
