@@ -83,3 +83,40 @@ def test_rational_netlist_of_a_noisy_two_resonance_part():
     text = identification_netlist(result, "rational")
     fs, zs = _ngspice(text, f[0], f[-1])
     np.testing.assert_allclose(zs, result.rational.impedance(fs), rtol=1e-3)  # issue 5: 0.1 %
+
+
+DEMO = __import__("pathlib").Path(__file__).resolve().parent.parent / "demo_sweeps"
+DEMO_FILES = [
+    ("ind_10u_series_thru.s2p", "series-thru"), ("cap_100n_shunt_thru.s2p", "shunt-thru"),
+    ("choke_470u_winding_resonance.ts", "series-thru"), ("ind_2u2_reflection.s1p", None),
+    ("ind_100u_analyser_zphase.csv", None), ("cap_4u7_lcr_cp_d.csv", None), ("ind_47u_lcr_ls_rs.txt", None),
+]
+
+
+@pytest.mark.ngspice
+@pytest.mark.parametrize("name,connection", DEMO_FILES)
+def test_every_netlist_of_the_demo_sweeps_in_ngspice(name, connection):
+    import warnings
+
+    import zfit
+    from zfit._errors import MeasurementWarning
+    from zfit._netlist import SynthesisError
+
+    if not (DEMO / name).is_file():
+        pytest.skip("demo_sweeps/ not present")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", MeasurementWarning)  # the choke's "no circuit describes it" is expected
+        result = zfit.identify(zfit.read_sweep(DEMO / name, connection=connection))
+    checked = 0
+    for kind in ("auto", "rational"):
+        try:
+            text = identification_netlist(result, kind)
+        except SynthesisError:
+            continue  # a refusal is allowed; a wrong netlist is not
+        circuit = kind == "auto" and result.model != "rational"
+        lo, hi = result.fit.valid_band_hz if circuit else result.sweep.band_hz
+        f, z = _ngspice(text, lo, hi)
+        ref = result.impedance(f) if circuit else result.rational.impedance(f)
+        np.testing.assert_allclose(z, ref, rtol=1e-3)  # issue 5: 0.1 % over the band of validity
+        checked += 1
+    assert checked >= 1
