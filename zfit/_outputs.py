@@ -383,8 +383,7 @@ def _figure_rows(result) -> list:
             if x is None or x.value is None:
                 continue
             where = f" at {pretty(x.f_hz, 'Hz')}" if x.f_hz else ""
-            val = pretty_std(x.value, x.std, x.unit) if x.unit else (
-                f"{x.value:.4g} ± {x.std:.2g}" if x.std else f"{x.value:.4g}")
+            val = pretty_std(x.value, x.std, x.unit) if x.unit else _dimensionless(x)
             rows.append((x.definition, val + where))
     return rows
 
@@ -422,13 +421,16 @@ def _network_table(result):
 
 
 def _dimensionless(e) -> str:
+    """Q or D with its uncertainty, without SI prefixes (a D of 0.0176, not 17.6m)."""
     if e is None or e.value is None:
         return "n/a"
-    if e.std and 0.01 <= abs(e.value) < 1000:
-        return format_value_std(e.value, e.std, "")
-    if e.std:
-        return f"{e.value:.4g} ± {e.std:.2g}"
-    return f"{e.value:.4g}"
+    v, u = float(e.value), e.std
+    if not u or not math.isfinite(u) or u <= 0:
+        return f"{v:.4g}"
+    if 1.0 <= abs(v) < 1e4 or (1e-3 <= abs(v) < 1.0 and u >= 1e-7):
+        decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
+        return f"{v:.{decimals}f} ± {u:.{decimals}f}"
+    return f"{v:.4g} ± {u:.2g}"
 
 
 def _spot_table(result):
