@@ -41,6 +41,8 @@ __all__ = [
 STEP_SCHEMA = "zfit.step/1"
 LN2 = math.log(2.0)
 LN9 = math.log(9.0)
+# State levels and noise are judged on at most this many samples.
+_LEVEL_SAMPLES = 1 << 21
 # Rows are gathered into blocks of at most this many samples.
 _BLOCK_SAMPLES = 1 << 21
 # The first-order fit uses at most this many samples (rows x length): a few
@@ -120,12 +122,16 @@ def state_levels(x, *, bins: int | None = None) -> Levels:
     lo, hi = float(x.min()), float(x.max())
     if hi <= lo:
         return Levels(lo, hi, 0.0, 0.0)
-    nb = bins or int(np.clip(x.size // 40, 32, 1024))
+    # The histogram of a long record from every k-th sample (at most 2
+    # million): the modes and the means around them are then known to far
+    # better than the noise, and the pass costs a fraction.
+    k = max(1, int(math.ceil(x.size / _LEVEL_SAMPLES)))
+    xs = x[::k]
+    nb = bins or int(np.clip(xs.size // 40, 32, 1024))
     scale = nb / (hi - lo)
-    idx = np.minimum(((x - lo) * scale).astype(np.intp), nb - 1)
+    idx = np.minimum(((xs - lo) * scale).astype(np.intp), nb - 1)
     counts = np.bincount(idx, minlength=nb)
-    sums = np.bincount(idx, weights=x, minlength=nb)
-    sq = np.bincount(idx, weights=x * x, minlength=nb)
+    sums = np.bincount(idx, weights=xs, minlength=nb)
     half = nb // 2
     w = max(1, int(round(0.02 * nb)))
 
@@ -140,10 +146,11 @@ def state_levels(x, *, bins: int | None = None) -> Levels:
     # The noise from differences of consecutive settled samples: a slow
     # approach to the level (an R-C tail) inflates the spread of the samples
     # around the level, but not their differences.
-    d = np.diff(x)
+    xn = x[:_LEVEL_SAMPLES]  # consecutive samples for the differences
+    d = np.diff(xn)
 
     def noise(a, b):
-        inside = (x >= a) & (x <= b)
+        inside = (xn >= a) & (xn <= b)
         pair = inside[:-1] & inside[1:]
         k = int(np.count_nonzero(pair))
         return math.sqrt(float(np.dot(d[pair], d[pair])) / (2.0 * k)) if k else 0.0
@@ -177,15 +184,19 @@ def find_edges(x, levels: Levels, *, low_ref: float = 0.1, high_ref: float = 0.9
     """
     x = np.asarray(x, dtype=float)
     lref, href, mid = levels.reference(low_ref), levels.reference(high_ref), levels.reference(0.5)
-    state = np.zeros(x.size, dtype=np.int8)
-    state[x >= href] = 1
-    state[x <= lref] = -1
-    nz = np.flatnonzero(state)
-    vals = state[nz]
-    change = np.flatnonzero(vals[1:] != vals[:-1])
-    d = nz[change]          # last sample in the old state
-    a = nz[change + 1]      # first sample in the new state
-    pol = vals[change + 1].astype(int)
+    state = (x >= href).view(np.int8) - (x <= lref).view(np.int8)
+    # Run-length form: the state changes only a few times per edge, so the
+    # runs are few even in a record of ten million samples.
+    c = np.flatnonzero(state[1:] != state[:-1]) + 1
+    run_start = np.concatenate([[0], c])
+    run_end = np.concatenate([c, [x.size]]) - 1
+    run_val = state[run_start]
+    kept = run_val != 0
+    run_start, run_end, run_val = run_start[kept], run_end[kept], run_val[kept]
+    change = np.flatnonzero(run_val[1:] != run_val[:-1])
+    d = run_end[change]          # last sample in the old state
+    a = run_start[change + 1]    # first sample in the new state
+    pol = run_val[change + 1].astype(int)
     if d.size == 0:
         empty = np.zeros(0)
         return np.zeros(0, dtype=int), empty, empty, empty
@@ -764,6 +775,28 @@ def _exp_fit(rows, dt, tau0, fit_from, fit_to):
     return tau, std, np.sqrt(s2), at_edge, coef
 
 
+def _first_order_response(x, tau, dt):
+    """Response of 1/(1 + s tau) to `x` (linear between samples), settled at x[0] before.
+
+    The first-order-hold recursion ``y[n+1] = a y[n] + b0 x[n+1] + b1 x[n]``
+    as a convolution with its impulse response, by FFT.
+    """
+    a = math.exp(-dt / tau)
+    k = tau / dt * (1.0 - a)
+    b0, b1 = 1.0 - k, k - a
+    n = x.size
+    # Settled before the start: the input's first value held long enough that
+    # its response has decayed (40 time constants, or the segment's length).
+    pad = int(min(40.0 * tau / dt, 4 * n)) + 1
+    xp = np.concatenate([np.full(pad, x[0]), x])
+    h = np.empty(xp.size)
+    h[0] = b0
+    h[1:] = (b1 + a * b0) * a ** np.arange(xp.size - 1)
+    m = 1 << int(math.ceil(math.log2(2 * xp.size)))
+    y = np.fft.irfft(np.fft.rfft(xp, m) * np.fft.rfft(h, m), m)[: xp.size]
+    return y[pad:]
+
+
 def _deconvolved_steps(x, y, starts, seg_len, dt, noise_x, f_cut):
     """Rows of the response of H = V_out/V_in to an ideal step at sample 0.
 
@@ -1236,13 +1269,10 @@ def _time_constant(x, y, starts, pol, seg_len, edge_frac, t10, good, tau0, dt, i
     col = np.arange(span)
     a = math.exp(-dt / tau)
     if two:
-        from scipy.signal import lfilter
-
         # The first-order response to the averaged input, scaled to the output.
         mx = _aligned(x, starts[idx], span, pol[idx], in_lv).mean(axis=0)
         my = _aligned(y, starts[idx], span, pol[idx], out_lv).mean(axis=0)
-        k = tau / dt * (1.0 - a)
-        fx, _ = lfilter([1.0 - k, k - a], [1.0, -a], mx, zi=[mx[0] * k])
+        fx = _first_order_response(mx, tau, dt)
         lo_fit = int(math.ceil(np.mean(edge_frac[idx]) + fit_from[0]))
         if lo_fit < span - 2:
             sel = slice(lo_fit, span)
