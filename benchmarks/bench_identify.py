@@ -116,6 +116,13 @@ def run(repeat: int, seed: int = 20261201):
             z_s = skrf_fit(sweep.f_hz, sweep.s_param)
             ts.append(time.perf_counter() - t)
         t_z, t_s = statistics.median(tz), statistics.median(ts)
+        # The same part on an 801-point sweep, zfit alone (the speed target of a batch).
+        sweep801, _ = sweep_of(kind, p, rng, 801)
+        t801 = []
+        for _ in range(repeat):
+            t = time.perf_counter()
+            identify(sweep801)
+            t801.append(time.perf_counter() - t)
         z_z = res.impedance(sweep.f_hz)
         err_z = float(np.max(np.abs(z_z - z_true) / np.abs(z_true)))
         err_s = float(np.max(np.abs(z_s - z_true) / np.abs(z_true)))
@@ -124,6 +131,7 @@ def run(repeat: int, seed: int = 20261201):
         srf_err = (res.srf.value_hz / srf_of(kind, p) - 1) if res.srf.value_hz else float("nan")
         rows.append(dict(
             name=name, kind=kind, model=res.model, topology=res.topology, t_zfit=t_z, t_skrf=t_s, ratio=t_s / t_z,
+            t801=statistics.median(t801),
             err_zfit=err_z, err_skrf=err_s, par=par, pulls=pulls, srf_err=srf_err,
             rms=res.fit.rms_normalized_residual, expected_keys=set(p), got_keys=set(res.parameters),
         ))
@@ -164,6 +172,13 @@ def markdown(rows, repeat):
         "",
         f"**Median speed ratio (scikit-rf fit time / zfit identification time): {statistics.median(ratios):.0f}x** "
         f"(range {min(ratios):.0f}x-{max(ratios):.0f}x).",
+        "",
+        f"zfit on 801-point sweeps of the same parts: median {1e3 * statistics.median(r['t801'] for r in rows):.1f} ms, "
+        f"slowest {1e3 * max(r['t801'] for r in rows):.1f} ms per identification.",
+        "",
+        "scikit-rf's time varies much more from run to run than zfit's on this shared machine (from about",
+        "60 ms to over a second per fit, probably with the load and its relocation count), so the ratio",
+        "does too; runs while this was built gave medians of 10x to 26x.",
         "",
         f"Worst-point relative |Z| error: zfit {100 * min(ez):.3g}-{100 * max(ez):.3g} %, "
         f"scikit-rf {100 * min(es):.3g}-{100 * max(es):.3g} %.",
