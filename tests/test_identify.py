@@ -108,7 +108,14 @@ def test_figures_follow_their_definitions():
     assert sp.L_eff.value == pytest.approx(sp.X.value / (TWO_PI * 1e5), rel=1e-12)
     assert sp.Q.value == pytest.approx(abs(sp.X.value) / sp.R.value, rel=1e-12)
     assert sp.D.value == pytest.approx(1 / sp.Q.value, rel=1e-12)
+    cv = ind.curves
+    assert cv.f_hz[0] == pytest.approx(1e4) and cv.f_hz[-1] == pytest.approx(3e8) and cv.d_model is None
+    assert np.allclose(cv.q_model, TWO_PI * cv.f_hz * L / R, rtol=1e-12)
+    below = cv.f_hz < 0.1 * ind.srf.value_hz  # far below the SRF the two Q definitions agree
+    assert np.allclose(cv.q_measured[below], cv.q_model[below], rtol=0.05)
+    assert np.allclose(cv.d_measured, cv.esr_ohm / np.abs(cv.x_ohm), rtol=1e-12)
     cap = identify(_synthetic(CapacitorCircuit(), [100e-9, 0.02, 1e-9], f, "shunt-thru", 3))
+    assert np.allclose(cap.curves.d_model, TWO_PI * cap.curves.f_hz * 100e-9 * 0.02, rtol=0.05)
     C, ESR = cap.parameters["C"].value, cap.parameters["ESR"].value
     dm = cap.figures.d_model_at_f_min
     assert dm.value == pytest.approx(TWO_PI * 1e4 * C * ESR, rel=1e-9)

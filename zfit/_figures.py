@@ -50,6 +50,8 @@ __all__ = [
     "spot_readout",
     "MeasuredReader",
     "figures_of",
+    "Curves",
+    "curves_of",
     "Q_MEASURED",
     "Q_MODEL",
     "D_MEASURED",
@@ -571,3 +573,71 @@ def figures_of(family: str, srf: SRF, reader: MeasuredReader) -> Figures:
             fn = lambda p: float(circuit.model_d(p, np.array([lo]))[0])  # noqa: E731
             out["d_model_at_f_min"] = Figure(fn(refinement.values), refinement.std_of(fn), "", lo, D_MODEL, "circuit")
     return Figures(**out)
+
+
+@dataclass(frozen=True)
+class Curves:
+    """Q(f), ESR(f) and D(f) on a log grid over the band, measured and model.
+
+    Attributes
+    ----------
+    f_hz : numpy.ndarray
+        The grid (41 points, log-spaced over the band, by default).
+    esr_ohm : numpy.ndarray
+        ``Re Z`` of the measured impedance (see `MeasuredReader`).
+    x_ohm : numpy.ndarray
+        ``Im Z`` of the measured impedance.
+    q_measured : numpy.ndarray
+        ``|X| / R`` of the measured impedance.
+    d_measured : numpy.ndarray
+        ``R / |X|`` of the measured impedance.
+    q_model : numpy.ndarray or None
+        ``omega L / R_s`` of the inductor circuit (None otherwise).
+    d_model : numpy.ndarray or None
+        ``omega C ESR (+ 1/(omega C R_leak))`` of the capacitor circuit (None otherwise).
+    """
+
+    f_hz: np.ndarray
+    esr_ohm: np.ndarray
+    x_ohm: np.ndarray
+    q_measured: np.ndarray
+    d_measured: np.ndarray
+    q_model: np.ndarray | None = None
+    d_model: np.ndarray | None = None
+
+    def to_dict(self) -> dict:
+        """Return the ``curves`` object of the JSON contract (lists; null where undefined)."""
+        def lst(a):
+            return None if a is None else [_num(v) for v in np.asarray(a, float)]
+
+        return {
+            "f_hz": lst(self.f_hz), "esr_ohm": lst(self.esr_ohm), "x_ohm": lst(self.x_ohm),
+            "q_measured": lst(self.q_measured), "d_measured": lst(self.d_measured),
+            "q_model": lst(self.q_model), "d_model": lst(self.d_model),
+        }
+
+
+def curves_of(reader: MeasuredReader, n: int = 41) -> Curves:
+    """Return Q(f), ESR(f), D(f) of the measured part and of the model.
+
+    Parameters
+    ----------
+    reader : MeasuredReader
+        Which model to read where (measured curves).
+    n : int
+        Number of log-spaced frequencies over the band.
+    """
+    lo, hi = reader.band
+    f = np.geomspace(lo, hi, n)
+    z = reader.impedance(f)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        q = np.where(z.real > 0, np.abs(z.imag) / z.real, np.nan)
+        d = np.where(z.imag != 0, z.real / np.abs(z.imag), np.nan)
+    q_model = d_model = None
+    ref = reader.refinement
+    if ref is not None:
+        if ref.circuit.family == "inductor":
+            q_model = ref.circuit.model_q(ref.values, f)
+        else:
+            d_model = ref.circuit.model_d(ref.values, f)
+    return Curves(f, z.real, z.imag, q, d, q_model, d_model)

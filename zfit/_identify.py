@@ -242,6 +242,8 @@ class Identification:
         What the user should know about this result.
     figures : Figures
         Q peak, ESR, D, |Z| at resonance.
+    curves : Curves or None
+        Q(f), ESR(f), D(f) on a log grid over the band, measured and model.
     candidates : tuple of Candidate
         The circuits compared while choosing the model.
     correlation : numpy.ndarray or None
@@ -262,6 +264,7 @@ class Identification:
     spot: tuple = ()
     warnings: tuple = ()
     figures: Figures = Figures()
+    curves: object = None
     candidates: tuple = ()
     correlation: np.ndarray | None = None
     rdc: Estimate | None = None
@@ -400,6 +403,7 @@ class Identification:
             "correlation": corr,
             "srf": self.srf.to_dict(),
             "figures": self.figures.to_dict(),
+            "curves": None if self.curves is None else self.curves.to_dict(),
             "fit": self.fit.to_dict(),
             "candidates": [c.to_dict() for c in self.candidates],
             "rational": _rational_dict(self.rational),
@@ -711,7 +715,7 @@ def identify(
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
     from ._circuits import FAMILIES
-    from ._figures import MeasuredReader, figures_of, spot_readout, srf_of_circuit, srf_of_rational
+    from ._figures import MeasuredReader, curves_of, figures_of, spot_readout, srf_of_circuit, srf_of_rational
     from ._refine import Observation, Prior, refine
 
     if model not in MODELS:
@@ -774,7 +778,7 @@ def identify(
         return _finish(Identification(
             sweep=sweep, model="rational", topology=f"rational model with {_n_poles(rational)} poles",
             parameters=ParameterMap(), rational=rational, srf=srf, fit=fit, spot=spots,
-            figures=figures_of("rational", srf, reader), rdc=None,
+            figures=figures_of("rational", srf, reader), curves=curves_of(reader), rdc=None,
         ), notes)
 
     # 2-3. Circuits of each family, the family and the optional element by BIC.
@@ -991,7 +995,7 @@ def identify(
     )
     return _finish(Identification(
         sweep=sweep, model=family, topology=chosen.circuit.topology, parameters=est, rational=rational,
-        srf=srf, fit=fit, spot=spots, figures=figures, candidates=candidates,
+        srf=srf, fit=fit, spot=spots, figures=figures, curves=curves_of(reader), candidates=candidates,
         correlation=_correlation(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
         refinement=chosen,
     ), notes)
