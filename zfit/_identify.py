@@ -961,7 +961,12 @@ def identify(
     est = _estimates(chosen)
     for key, e in est.items():
         if e.std is None or not (e.std <= UNRESOLVED_REL * abs(e.value)):
-            rel = "unknown" if e.std is None else f"{100 * e.std / abs(e.value):.0f} %"
+            if e.std is None:
+                rel = "unknown"
+            elif e.std > 10 * abs(e.value):
+                rel = "more than ten times the value"
+            else:
+                rel = f"{100 * e.std / abs(e.value):.0f} %"
             hint = " (a four-wire --rdc measurement can pin it)" if key in ("R_s", "ESR") and rdc is None else ""
             notes.append(f"{key} is not resolved by this sweep (relative uncertainty {rel}){hint}")
     if prior is not None and chosen.prior_pull is not None and abs(chosen.prior_pull) > 3.0:
