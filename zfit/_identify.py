@@ -868,7 +868,8 @@ def identify(
             return ref, e, _run_length_band(valid_mask(e, e_rat)), mask
 
         # Sub-bands to try: the valid run found, the band below each further
-        # resonance of the rational model, and the upper or lower part of the band.
+        # resonance of the rational model, the upper or lower part of the band,
+        # and the widest band from either end found by bisection.
         logf = np.log(sweep.f_hz)
         span = logf[-1] - logf[0]
         masks = []
@@ -885,12 +886,32 @@ def identify(
             masks.append(logf <= logf[0] + frac * span)
             masks.append(logf >= logf[-1] - frac * span)
         best = None
-        for m in masks:
-            if m.sum() < min_pts:
-                continue
-            got = sub_fit(base, m)
-            if got is not None and (best is None or (got[2][1] - got[2][0], m.sum()) > (best[2][1] - best[2][0], best[3].sum())):
+
+        def consider(got):
+            nonlocal best
+            if got is not None and (best is None or (got[2][1] - got[2][0], got[3].sum()) > (best[2][1] - best[2][0], best[3].sum())):
                 best = got
+
+        for m in masks:
+            if m.sum() >= min_pts:
+                consider(sub_fit(base, m))
+        # The widest band from either end over which the circuit, fitted
+        # there, stays within the noise: a bisection on the other end.
+        for from_bottom in (True, False):
+            good, lo_n, hi_n = None, min_pts, n - 1
+            while hi_n - lo_n > max(2, n // 64):
+                mid = (lo_n + hi_n) // 2
+                m = np.zeros(n, bool)
+                if from_bottom:
+                    m[:mid] = True
+                else:
+                    m[n - mid:] = True
+                got = sub_fit(chosen.circuit, m)
+                if got is not None and valid_mask(got[1], e_rat)[m].mean() >= 0.97:
+                    good, lo_n = got, mid
+                else:
+                    hi_n = mid
+            consider(good)
         if best is not None and (best[2][1] - best[2][0]) > (i1 - i0):
             # Refit over the valid run found, and decide the optional element there.
             j0, j1 = best[2]
