@@ -1096,6 +1096,7 @@ def analyse_capture(
                 follows = in_dur.size > 0 and transition < 1.5 * float(np.median(in_dur)) * dt
             if follows:
                 tc = (None, None, "", None, None)
+                tau_mid = tau_mid_std = None
                 notes.append("the output follows the input's edge (10-90 % within 1.5 times the input's): "
                              "no time constant longer than the input's transition to fit")
             else:
