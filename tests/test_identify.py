@@ -60,6 +60,25 @@ def test_second_resonance_limits_the_valid_band_and_keeps_the_rational_model():
 
 
 @pytest.mark.ngspice
+def test_dielectric_absorption_limits_the_valid_band_from_below():
+    # An electrolytic with dielectric absorption: two R-C branches across C (a common
+    # equivalent of the absorption, from memory) whose loss shows below a few hundred Hz.
+    net = "R1 n1 a 0.05\nL1 a b 5e-9\nC1 b 0 100e-6\nR2 b c 200\nC2 c 0 5e-6\nR3 b d 2000\nC3 d 0 5e-6\n"
+    f, z = run_ac(net, 10, 1e6, 100)
+    sweep = noisy_sweep(f, z, "shunt-thru", np.random.default_rng(5), "electrolytic")
+    with pytest.warns(MeasurementWarning, match="within the noise only from"):
+        r = identify(sweep)
+    assert r.model == "capacitor"
+    lo, hi = r.fit.valid_band_hz
+    # The branches' corners are 1/(2 pi 200 5u) = 159 Hz and 16 Hz.
+    assert 100 < lo < 3e3 and hi == pytest.approx(1e6, rel=1e-6)
+    assert r.parameters["C"].value == pytest.approx(100e-6, rel=0.01)
+    assert r.parameters["ESL"].value == pytest.approx(5e-9, rel=0.03)
+    assert r.parameters["ESR"].value == pytest.approx(0.05, rel=0.10)
+    assert r.fit.rational_rms_normalized_residual < 1.3
+
+
+@pytest.mark.ngspice
 def test_measured_dc_resistance_constrains_r_s():
     # 22 uH with 30 mohm measured in reflection between 10 kHz and 10 MHz: the sweep alone
     # resolves R_s poorly; a four-wire reading of 30.0 +- 0.3 mohm pins it.
