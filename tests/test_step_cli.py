@@ -22,6 +22,18 @@ RING = DEMO / "coil_4m7_ring_100k.csv"
 RING_ADDED = DEMO / "coil_4m7_ring_100k_plus_100p.csv"
 
 
+def _validate(d):
+    # The step schema, with its "impedance" resolved to the identify schema (jsonschema, a reference library).
+    jsonschema = pytest.importorskip("jsonschema")
+    referencing = pytest.importorskip("referencing")
+    from importlib.resources import files
+
+    step = json.loads(files("zfit").joinpath("schemas/step.schema.json").read_text())
+    ident = json.loads(files("zfit").joinpath("schemas/identify.schema.json").read_text())
+    registry = referencing.Registry().with_resource(ident["$id"], referencing.Resource.from_contents(ident))
+    jsonschema.Draft202012Validator(step, registry=registry).validate(d)
+
+
 def run(*args):
     return CliRunner().invoke(app, ["step", *map(str, args)])
 
@@ -34,6 +46,7 @@ def test_shunt_identifies_the_demo_coil(tmp_path):
     assert "time const.:" in res.output and "L " in res.output
     d = json.loads(out.read_text())
     assert d["schema"] == "zfit.step/1" and d["edges"] == 19
+    _validate(d)
     p = d["impedance"]["parameters"]
     # The invented coil's values from the demo script: within 3 % (L) and 8 % (C_p).
     assert p["L"]["value"] == pytest.approx(4.7e-3, rel=0.03)
