@@ -672,7 +672,7 @@ def identify(
         (R_p, R_leak) only when it lowers the BIC by more than `margin`;
         ``inductor`` / ``capacitor`` fix the family (the optional element is
         still chosen); ``rational`` reports the vector-fitting model alone.
-    at : sequence of float
+    at : float or sequence of float
         Frequencies (Hz) for spot readouts of R, X, L_eff, C_eff, Q and D.
     rdc : float, optional
         A measured DC resistance in ohm (four-wire ohmmeter): it constrains
@@ -720,7 +720,7 @@ def identify(
 
     if model not in MODELS:
         raise ZfitInputError(f"unknown model {model!r}; use one of {', '.join(MODELS)}", sweep.source)
-    at = tuple(float(x) for x in (at or ()))
+    at = tuple(float(x) for x in np.atleast_1d(np.asarray(() if at is None else at, dtype=float)))
     for x in at:
         if not (math.isfinite(x) and x > 0):
             raise ZfitInputError(f"spot frequency {x:g} Hz is not a positive number")
