@@ -1046,6 +1046,17 @@ def analyse_capture(
             over[b0:b1] = np.where(arr > 0, (peak - out_lv.high) / out_lv.amplitude * 100.0, np.nan)
     avg_y = sum_y / n_edges
     avg_x = None if sum_x is None else sum_x / n_edges
+    if avg_x is not None:
+        # The output's step against the input's on the averaged edge: a ratio
+        # above one or below zero means swapped or inverted channels.
+        k_end, k_pre = max(3, length // 20), max(1, pre // 2)
+        step_in = float(np.mean(avg_x[-k_end:]) - np.mean(avg_x[:k_pre]))
+        step_out = float(np.mean(avg_y[-k_end:]) - np.mean(avg_y[:k_pre]))
+        if step_in != 0 and step_out / step_in < -0.05:
+            warn(f"the output {out_name} steps the other way from the input {in_name}: an inverted channel or probe")
+        elif step_in != 0 and step_out / step_in > 1.05:
+            warn(f"the output {out_name} steps {step_out / step_in:.3g} times as far as the input {in_name}: "
+                 "a passive part cannot do that; are --input and --output swapped, or the probe factors unequal?")
     t_axis = (np.arange(length) - float(np.mean(edge_frac))) * dt
 
     transition = transition_std = overshoot = overshoot_std = None
