@@ -100,11 +100,13 @@ class Levels:
 def state_levels(x, *, bins: int | None = None) -> Levels:
     """Return the state levels of a bilevel waveform by the histogram method.
 
-    The histogram of the samples is split at the middle of the range; the
-    mode of each half is a state level (IEEE Std 181-2011, 5.2.1.1, the
-    histogram mode method), refined by the mean of the samples within 2 % of
-    the range around the mode, which keeps the resolution of the samples
-    rather than that of the bins.
+    The histogram of the samples (every k-th of a record longer than two
+    million) is split at the middle of the range; the mode of each half is a
+    state level (IEEE Std 181-2011, 5.2.1.1, the histogram mode method),
+    refined by the mean of the samples within 2 % of the range around the
+    mode, which keeps the resolution of the samples rather than that of the
+    bins.  The noise of each level is the RMS difference of consecutive
+    samples inside that window, over sqrt 2 (the first two million samples).
 
     Parameters
     ----------
