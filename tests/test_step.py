@@ -116,7 +116,7 @@ def test_single_step_from_scipy_step(rng):
     t0 = 100e-6
     v = np.where(t >= t0, 2.0 * np.interp(t - t0, t, s), 0.0)
     cap = make_capture({"out": adc8(v, -0.2, 2.2, rng, noise_lsb=0.5)}, 1 / fs)
-    with pytest.warns(MeasurementWarning, match="only 1 edge"):
+    with pytest.warns(MeasurementWarning, match="only 1 edge to average"):
         r = analyse_capture(cap)
     assert r.edges == 1 and r.input_name is None
     assert r.time_constant_s == pytest.approx(tau, rel=0.02)

@@ -60,7 +60,7 @@ class FrequencyResponse:
     band_hz : tuple of float
         Lowest and highest usable frequency.
     n_averages : int
-        Number of edges averaged.
+        Number of segments averaged (periods of a square wave, or edges).
     segment_s : float
         Length of the segment around each edge, the inverse of the bin spacing.
     method : str
@@ -341,7 +341,7 @@ def usable_band(f, h, h_std, coherence, input_level_db, n_averages, *, coherence
         Per-bin frequency (Hz), estimate, uncertainty, coherence and input
         level relative to its peak (dB).
     n_averages : int
-        Number of edges averaged (the coherence is not used for one).
+        Number of segments averaged (the coherence is not used for one).
     coherence_min : float
         Lowest coherence accepted.
     energy_min_db : float

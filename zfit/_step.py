@@ -980,9 +980,6 @@ def analyse_capture(
     n_edges = int(pol.size)
     if seg_len < 32:
         raise ZfitInputError(f"the edges are only {spacing} samples apart: sample faster or use a slower square wave", src)
-    if n_edges < 4:
-        warn(f"only {n_edges} edge(s): the per-bin uncertainties rest on the noise alone"
-             if n_edges == 1 else f"only {n_edges} edges: the coherence and the uncertainties are rough")
     length = seg_len + 1
     edge_frac = t_mid - starts  # the reference edge's 50 % instant within its row
 
@@ -1013,6 +1010,11 @@ def analyse_capture(
     else:
         r_len, r_starts, r_idx = seg_len, starts, np.arange(n_edges)
     per_period = r_len != seg_len
+    what = "periods" if per_period else "edges"
+    if r_idx.size == 1:
+        warn(f"only 1 {what[:-1]} to average ({n_edges} edge(s)): the per-bin uncertainties rest on the noise alone")
+    elif r_idx.size < 4:
+        warn(f"only {r_idx.size} {what} to average ({n_edges} edges): the coherence and the uncertainties are rough")
     dc_gain = out_lv.amplitude / in_lv.amplitude if (has_states and x is not None) else None
 
     def two_channel_response():
