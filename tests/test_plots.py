@@ -198,3 +198,18 @@ def test_svg_is_reproducible(inductor_sweep):
     a = figure_bytes(plot_sweep(f, z, sig, circuit_ohm=zc), "svg", salt="x")
     b = figure_bytes(plot_sweep(f, z, sig, circuit_ohm=zc), "svg", salt="x")
     assert a == b
+
+
+def test_schematic_draws_every_element():
+    from zfit._plots import plot_schematic
+
+    tree = ("parallel", [("series", [("R", "R_s = 66 mΩ"), ("L", "L = 10 µH")]), ("C", "C_p = 4.7 pF"),
+                         ("R", "R_p = 20 kΩ")])
+    fig = plot_schematic(tree)
+    texts = {t.get_gid(): t.get_text() for t in fig.axes[0].texts if t.get_gid()}
+    assert texts == {"element-R_s": "R_s = 66 mΩ", "element-L": "L = 10 µH", "element-C_p": "C_p = 4.7 pF",
+                     "element-R_p": "R_p = 20 kΩ"}
+    # Three parallel branches: the two rails carry a junction dot per branch.
+    dots = [ln for ln in fig.axes[0].lines if ln.get_marker() == "o" and len(ln.get_xdata()) == 3]
+    assert len(dots) == 2
+    _close(fig)

@@ -94,7 +94,7 @@ def test_report_is_self_contained(page):
     assert hrefs and all(h.startswith("#") for h in hrefs)
     ids = re.findall(r'\sid="([^"]+)"', page)
     assert len(ids) == len(set(ids)), "inline SVGs must not share element ids"
-    assert page.count("<svg") == 2  # impedance and Q
+    assert page.count("<svg") == 3  # schematic, impedance and Q
     assert "@page" in page and "@media print" in page
 
 
@@ -152,6 +152,12 @@ def test_report_renders_in_headless_chromium(page, tmp_path):
     # Content reaches well down the page (not a one-line error page).
     rows = np.flatnonzero((img.mean(axis=2) < 0.5).any(axis=1))
     assert rows.max() - rows.min() > 900
+    # Printed (Chromium's default paper, US Letter; A4 is taller), a sweep's report is one page.
+    pdf = tmp_path / "report.pdf"
+    subprocess.run(cmd[:-3] + [f"--print-to-pdf={pdf}", "--no-pdf-header-footer", path.as_uri()],
+                   capture_output=True, timeout=120, check=False)
+    pages = re.findall(rb"/Type\s*/Page(?!s)", pdf.read_bytes())
+    assert len(pages) == 1
 
 
 def test_write_outputs_writes_each_file(tmp_path, inductor):

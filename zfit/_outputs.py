@@ -27,6 +27,7 @@ __all__ = [
     "identification_netlist",
     "identification_report",
     "step_figures",
+    "schematic_tree",
     "step_report",
     "pretty",
     "pretty_std",
@@ -420,6 +421,53 @@ def _network_table(result):
     return Table(("branch", "C", "R_p", "L", "R_s"), tuple(rows), numeric=(1, 2, 3, 4), caption=caption)
 
 
+def schematic_tree(result):
+    """Return the drawing tree of a result's circuit for `plot_schematic`, or None.
+
+    Parameters
+    ----------
+    result : Identification
+        The result of `zfit.identify`.
+    """
+    def el(kind, key, value, unit):
+        return (kind, f"{key} = {pretty(value, unit, 3)}")
+
+    p = {k: e.value for k, e in result.parameters.items()}
+    if result.model == "inductor":
+        branches = [("series", [el("R", "R_s", p["R_s"], "ohm"), el("L", "L", p["L"], "H")]), el("C", "C_p", p["C_p"], "F")]
+        if "R_p" in p:
+            branches.append(el("R", "R_p", p["R_p"], "ohm"))
+        return ("parallel", branches)
+    if result.model == "capacitor":
+        c = el("C", "C", p["C"], "F")
+        if "R_leak" in p:
+            c = ("parallel", [c, el("R", "R_leak", p["R_leak"], "ohm")])
+        return ("series", [el("R", "ESR", p["ESR"], "ohm"), el("L", "ESL", p["ESL"], "H"), c])
+    try:
+        from ._netlist import foster_branches
+
+        model, _, _ = _synthesisable_rational(result)
+        clamped: list = []
+        branches = foster_branches(model.poles, model.residues, model.constant, model.proportional,
+                                   model.origin_residue, clamped=clamped)
+    except Exception:  # noqa: BLE001 - no drawing for a model that cannot be realised
+        return None
+    parts = []
+    for k, br in enumerate(branches, 1):
+        v = br.values
+        if br.kind == "complex":
+            inner = [("L", pretty(v["L"], "H", 3))] + ([("R", pretty(v["R_s"], "ohm", 3))] if v["R_s"] > 0 else [])
+            par = [("C", pretty(v["C"], "F", 3))] + ([("R", pretty(v["R_p"], "ohm", 3))] if np.isfinite(v["R_p"]) else [])
+            par.append(("series", inner) if len(inner) > 1 else inner[0])
+            parts.append(("parallel", par))
+        elif br.kind == "real":
+            parts.append(("parallel", [("C", pretty(v["C"], "F", 3)), ("R", pretty(v["R"], "ohm", 3))]))
+        else:
+            key = next(iter(v))
+            parts.append((key, pretty(v[key], {"R": "ohm", "L": "H", "C": "F"}[key], 3)))
+    return parts[0] if len(parts) == 1 else ("series", parts)
+
+
 def _dimensionless(e) -> str:
     """Q or D with its uncertainty, without SI prefixes (a D of 0.0176, not 17.6m)."""
     if e is None or e.value is None:
@@ -480,6 +528,14 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
     params = result.parameters
     spot, compact = _spot_table(result)
     extra = (spot,) if compact else ()
+    tree = schematic_tree(result)
+    schematic = ()
+    if tree is not None:
+        from ._plots import plot_schematic
+
+        # Drawn at the size it is shown (55 % of a column), so its labels print at the page's size.
+        schematic = (FigureBlock(_svg(plot_schematic(tree, width_in=1.95), "schematic", "the circuit"),
+                                 "", width_pct=55),)
     if params:
         rows = tuple(
             (k, _est(e), _rel(e), _ROLE.get(k, "")) for k, e in params.items()
@@ -503,12 +559,13 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
         sections.append(Section(
             "Rational model",
             tables=(net if net is not None else poles,),
+            figures=schematic,
             notes=("No simple circuit describes the whole band; the rational model (vector fitting) does"
                    + (", and so does the passive network above (the SPICE netlist's elements)." if net is not None else "."),),
         ))
 
     sections.append(Section("Self-resonance and figures", facts=tuple(_figure_rows(result)),
-                            tables=extra if not params else ()))
+                            tables=extra if not params else (), figures=schematic if params else ()))
     if result.warnings or fit.worse_than_rational:
         notes = list(result.warnings)
         if fit.worse_than_rational and not any("rational" in w for w in notes):

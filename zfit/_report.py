@@ -67,10 +67,13 @@ class FigureBlock:
         The SVG markup (see `inline_svg`).
     caption : str
         What the figure shows.
+    width_pct : int
+        Width on the page, per cent of the column.
     """
 
     svg: str
     caption: str = ""
+    width_pct: int = 100
 
 
 @dataclass(frozen=True)
@@ -134,13 +137,13 @@ class Report:
 
 
 _CSS = """
-@page { margin: 9mm 10mm; }
+@page { margin: 8mm 10mm; }
 * { box-sizing: border-box; }
 html { font-family: "DejaVu Sans", "Liberation Sans", Arial, Helvetica, sans-serif; font-size: 9pt;
   color: #111; background: #fff; }
 body { margin: 0 auto; max-width: 186mm; padding: 4mm 0; line-height: 1.25; }
 header { border-bottom: 1.5pt solid #111; padding-bottom: 1.5mm; margin-bottom: 2.5mm; }
-header h1 { font-size: 15pt; margin: 0; font-weight: 700; letter-spacing: 0.01em; }
+header h1 { font-size: 14pt; margin: 0; font-weight: 700; letter-spacing: 0.01em; }
 header .sub { color: #333; margin-top: 0.6mm; font-size: 9pt; }
 header .verdict { margin-top: 1.6mm; font-weight: 600; font-size: 9.5pt; }
 .stamp { float: right; text-align: right; font-size: 7.5pt; color: #444; }
@@ -171,7 +174,7 @@ footer p { margin: 0 0 0.4mm 0; line-height: 1.75; }
 footer code { font-family: "DejaVu Sans Mono", "Liberation Mono", Consolas, monospace; font-size: 7.5pt;
   background: #f3f3f3; padding: 0.4mm 1mm; word-break: break-all; }
 @media screen { body { padding: 8mm 6mm; } }
-@media print { html { font-size: 8pt; } body { padding: 0; zoom: 0.93; } }
+@media print { html { font-size: 8pt; } body { padding: 0; zoom: 0.9; } }
 """
 
 _XML_DECL = re.compile(r"<\?xml[^>]*\?>\s*")
@@ -245,7 +248,8 @@ def _section_html(s: Section) -> str:
         out.append(_table_html(t))
     for f in s.figures:
         cap = f"<figcaption>{_esc(f.caption)}</figcaption>" if f.caption else ""
-        out.append(f"<figure>{f.svg}{cap}</figure>")
+        style = f' style="max-width: {int(f.width_pct)}%"' if f.width_pct < 100 else ""
+        out.append(f"<figure{style}>{f.svg}{cap}</figure>")
     for n in s.notes:
         out.append(f"<p>{_esc(n)}</p>")
     for c in s.code:
