@@ -697,6 +697,11 @@ def _uniform_time(t: np.ndarray, path, first_line: int):
     dt = (t[-1] - t[0]) / (n - 1)
     if not dt > 0:
         raise ZfitInputError("the time column does not increase", path, first_line)
+    # The span over the count carries float rounding (4.0000000000000001e-08):
+    # snap to the interval the instrument set when it is that within 1e-9.
+    snapped = float(f"{dt:.9g}")
+    if abs(snapped - dt) <= 1e-9 * dt:
+        dt = snapped
     notes = []
     step = 1 << 20
     max_res = 0.0
