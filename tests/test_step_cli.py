@@ -98,3 +98,12 @@ def test_help_carries_the_safety_caution():
     assert res.exit_code == 0
     text = " ".join(res.output.split())
     assert "ground clip is tied to mains earth" in text and "local codes" in text
+
+
+def test_json_to_standard_output():
+    res = CliRunner().invoke(app, ["step", str(RING), "-i", "CH1", "-o", "CH2", "--json", "-"])
+    assert res.exit_code == 0
+    d = json.loads(res.stdout)
+    f0 = 1 / (2 * math.pi * math.sqrt(4.7e-3 * 38e-12))
+    # Thomson's formula for the demo coil: the damped ringing within 1 % of it.
+    assert d["ringing_hz"] == pytest.approx(f0, rel=0.01)

@@ -42,7 +42,7 @@ def step_command(
     input: Optional[str] = typer.Option(None, "--input", "-i", help="Drive channel (name or 1-based column); omit for a single-channel capture."),
     output: Optional[str] = typer.Option(None, "--output", "-o", help="Response channel (name or 1-based column); may be omitted when there is one channel."),
     shunt: Optional[str] = typer.Option(None, "--shunt", help="Sense resistor in ohm at the part's return (e.g. 100, 2.2k): identify the part's impedance."),
-    json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.step/1 JSON result here."),
+    json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.step/1 JSON result here ('-' for standard output)."),
     response: Optional[Path] = typer.Option(None, "--response", help="Write the frequency response (CSV: f, |H| dB, phase, uncertainties, coherence, usable)."),
     plot: Optional[Path] = typer.Option(None, "--plot", help="Write the figures (.png or .svg): time record, Bode, and with --shunt the impedance."),
     netlist: Optional[Path] = typer.Option(None, "--netlist", help="With --shunt: write a SPICE subcircuit of the identified part (.cir, .sp or .lib)."),
@@ -73,7 +73,8 @@ def step_command(
     if netlist is not None and shunt_ohm is None:
         raise ZfitInputError("--netlist needs the part's impedance: give the sense resistor with --shunt")
     # Fail before the work, not after it, when an output exists.
-    for p in (json_path, response):
+    to_stdout = json_path is not None and str(json_path) == "-"
+    for p in (None if to_stdout else json_path, response):
         if p is not None:
             check_writable(p, force)
 
@@ -81,20 +82,29 @@ def step_command(
     added = read_capture(added_capture, dt=dt_s) if added_capture is not None else None
     result = analyse_capture(cap, input=input, output=output, shunt_ohm=shunt_ohm, inductance_h=inductance_h,
                              added_capture=added, added_capacitance_f=added_f, model=model)
-    for line in summary_lines(result):
-        echo(line)
+    # With --json - the standard output is the JSON alone; the rest goes to standard error.
+    def say(text):
+        typer.echo(text, err=to_stdout)
+
+    if not to_stdout:
+        for line in summary_lines(result):
+            echo(line)
     if json_path is not None:
-        write_atomic(json_path, json.dumps(result.to_dict(), indent=2) + "\n", force)
-        echo(f"wrote {json_path}")
+        text = json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n"
+        if to_stdout:
+            sys.stdout.write(text)
+        else:
+            write_atomic(json_path, text, force)
+            echo(f"wrote {json_path}")
     if response is not None:
         write_atomic(response, response_csv(result), force)
-        echo(f"wrote {response}")
+        say(f"wrote {response}")
     if plot is not None or netlist is not None or report is not None:
         from ._outputs import write_outputs
 
         for path in write_outputs(result, plot=plot, netlist=netlist, report=report, force=force,
                                   command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:])):
-            echo(f"wrote {path}")
+            say(f"wrote {path}")
 
 
 def response_csv(result) -> str:
