@@ -187,6 +187,9 @@ def test_clipped_fraction_sees_a_pile_up_at_the_rail(rng):
     lsb = 1.2 / 256
     q = np.round(x / lsb) * lsb
     assert clipped_fraction(q) == (0.0, 0.0)
+    # A nearly noiseless record (a twentieth of a code) sits on one code per level: not clipped.
+    quiet = np.round((np.where((t // 1000) % 2, 1.0, 0.0) + rng.normal(0, 0.05 * lsb, n)) / lsb) * lsb
+    assert clipped_fraction(quiet) == (0.0, 0.0)
     clipped = np.minimum(q, 1.0)  # the top rail cuts the upper half of the noise
     lo, hi = clipped_fraction(clipped)
     # About half of the high-state samples (a quarter of all) sit at the rail.

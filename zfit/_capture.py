@@ -240,7 +240,8 @@ def clipped_fraction(x: np.ndarray) -> tuple[float, float]:
     A channel clipped by the scope's vertical range piles its samples up at
     one code at the rail: the extreme value then holds far more samples than
     the next code inside, unlike a noisy plateau, whose extreme codes are its
-    rarest.
+    rarest.  When both extremes pile up alike, the record is taken as clean
+    and nearly noiseless (each level on one code), not as clipped.
 
     Parameters
     ----------
@@ -273,7 +274,15 @@ def clipped_fraction(x: np.ndarray) -> tuple[float, float]:
 
     inside_lo = int(counts[1:4].max()) if counts.size > 4 else 0
     inside_hi = int(counts[-4:-1].max()) if counts.size > 4 else 0
-    return (at_lo / n if pinned(at_lo, inside_lo) else 0.0, at_hi / n if pinned(at_hi, inside_hi) else 0.0)
+    f_lo = at_lo / n if pinned(at_lo, inside_lo) else 0.0
+    f_hi = at_hi / n if pinned(at_hi, inside_hi) else 0.0
+    if f_lo and f_hi and max(f_lo, f_hi) < 3.0 * min(f_lo, f_hi):
+        # Both extremes piled up alike: a clean, nearly noiseless record whose
+        # levels each sit on one code, not a clipped one.
+        return 0.0, 0.0
+    if f_lo and f_hi:
+        return (f_lo, 0.0) if f_lo > f_hi else (0.0, f_hi)
+    return f_lo, f_hi
 
 
 # --------------------------------------------------------------------------- text files
