@@ -42,9 +42,6 @@ def test_demo_part_end_to_end(tmp_path):
     p = data["parameters"]
     assert abs(p["C"]["value"] - 100e-9) < 4 * p["C"]["std"] + 1e-3 * 100e-9
     assert abs(p["ESR"]["value"] - 8e-3) < 0.05 * 8e-3
-    # A second run does not touch the first folder: it names a fresh one.
-    r2 = _run(["--part", "C-0342_100nF"], tmp_path)
-    assert r2.exit_code == 0 and "results in zfit-demo-output-2/" in r2.output
     # An explicit folder that holds files is refused without --force.
     r3 = _run(["--part", "C-0342_100nF", "--out", "zfit-demo-output"], tmp_path)
     assert r3.exit_code == 2 and "exists already; give --force" in r3.output
@@ -68,6 +65,23 @@ def test_demo_netlist_and_touchstone_agree_in_ngspice(tmp_path):
     y = 1 / net.z[:, 0, 0]
     y_ts = np.interp(np.log(f), np.log(net.f), y.real) + 1j * np.interp(np.log(f), np.log(net.f), y.imag)
     np.testing.assert_allclose(z, 1 / y_ts, rtol=1e-3)  # issue 5: 0.1 %
+
+
+def test_demo_never_reuses_a_folder_that_holds_files(tmp_path, monkeypatch):
+    from zfit._cli_demo import _fresh_folder
+    from zfit._errors import OutputExistsError
+
+    monkeypatch.chdir(tmp_path)
+    assert _fresh_folder(None, False) == Path("zfit-demo-output")
+    (tmp_path / "zfit-demo-output").mkdir()
+    assert _fresh_folder(None, False) == Path("zfit-demo-output")  # empty: used
+    (tmp_path / "zfit-demo-output" / "x").write_text("mine")
+    assert _fresh_folder(None, False) == Path("zfit-demo-output-2")
+    (tmp_path / "zfit-demo-output-2").mkdir()
+    assert _fresh_folder(None, False) == Path("zfit-demo-output-3")
+    assert _fresh_folder(None, True) == Path("zfit-demo-output")  # --force: the default folder
+    with pytest.raises(OutputExistsError):
+        _fresh_folder(tmp_path / "zfit-demo-output", False)
 
 
 def test_demo_rejects_unknown_part(tmp_path):
