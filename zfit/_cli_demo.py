@@ -62,7 +62,8 @@ PARTS = (
              "milliohm ESR resolved by a shunt-thru measurement"),
     DemoPart("CH-0021_470uH", "CH-0021: 470 µH choke with a winding resonance", "choke_470u_winding_resonance.ts", "sweep",
              ("--connection", "series-thru"),
-             "one circuit does not describe the whole band: the valid band is reported and the rational model kept"),
+             "one circuit does not describe the whole band: its valid band is reported, and the rational model, "
+             "synthesised as a passive network, covers the rest"),
     DemoPart("L-0233_4m7H_capture", "L-0233: 4.7 mH coil from an oscilloscope capture", "coil_4m7_square_1k.csv", "capture",
              ("--input", "CH1", "--output", "CH2", "--shunt", "1k"),
              "no analyser: a square wave through the coil and a 1 kohm sense resistor"),
@@ -194,6 +195,19 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
             touchstone=folder / out["--touchstone"] if "--touchstone" in out else None,
             force=force, command=_quoted(_command(part, sweeps, out)),
         )
+    if ident is not None and ident.model != "rational" and ident.rational is not None:
+        lo, hi = ident.fit.valid_band_hz
+        f0, f1 = ident.sweep.band_hz
+        if lo > f0 * (1 + 1e-9) or hi < f1 * (1 - 1e-9):
+            # The circuit holds over part of the band only: the full band's
+            # rational model as a passive network too.
+            from ._outputs import identification_netlist
+
+            try:
+                text = identification_netlist(ident, "rational", name=f"{Path(part.file).stem}_full_band")
+                written.append(write_atomic(folder / f"{part.stem}-full-band.cir", text, force))
+            except SynthesisError as exc:
+                notes.append(f"full-band netlist: {exc}")
     return result, ident, written, notes, _command(part, sweeps, out)
 
 
