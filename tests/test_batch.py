@@ -500,3 +500,16 @@ def test_output_names_mirror_the_inputs_and_never_collide(tmp_path):
     items = [(tmp_path / rel, rel) for rel in ("day1/L1.s1p", "day2/L1.s1p", "day2/L2.csv", "day2/L2.s1p")]
     assert _output_names(items) == ["day1/L1", "day2/L1", "day2/L2.csv", "day2/L2.s1p"]
     assert _output_names(items[2:3]) == ["L2"]
+
+
+def test_in_process_run_puts_the_blas_thread_count_back(tmp_path):
+    import scipy.linalg  # noqa: F401  (loads scipy's own OpenBLAS)
+
+    from zfit._batch import _blas_threads
+
+    write_simulated_lot(tmp_path / "in", [SimulatedPart("T.csv", "inductor", {"L": 1e-6, "R_s": 0.1, "C_p": 1e-12})],
+                        np.logspace(4, 9, 101), seed=1)
+    before = [n for _, n in _blas_threads(None)]
+    res = run_batch([tmp_path / "in"], tmp_path / "out", jobs=1, progress=False)
+    assert res.errors == 0
+    assert [n for _, n in _blas_threads(None)] == before
