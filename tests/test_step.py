@@ -89,9 +89,12 @@ def test_first_order_bode_against_freqs(rc_result):
     dp = np.degrees(np.angle(h[sel] / href))
     assert np.max(np.abs(dm)) < 0.2
     assert np.max(np.abs(dp)) < 2.0
-    # Per-bin uncertainty: the normalised errors have an RMS near 1 (0.5..2).
     m = r.response.usable & (r.response.f_hz <= 10 / (2 * np.pi * tau))
     _, hb = signal.freqs([1.0], [tau, 1.0], worN=2 * np.pi * r.response.f_hz[m])
+    # Every raw bin too, unsmoothed: 0.2 dB and 2 degrees.
+    assert np.max(np.abs(20 * np.log10(np.abs(r.response.h[m]) / np.abs(hb)))) < 0.2
+    assert np.max(np.abs(np.degrees(np.angle(r.response.h[m] / hb)))) < 2.0
+    # Per-bin uncertainty: the normalised errors have an RMS near 1 (0.5..2).
     z = np.abs(r.response.h[m] - hb) / r.response.h_std[m]
     assert 0.5 < np.sqrt(np.mean(z**2)) < 2.0
 
