@@ -737,7 +737,7 @@ def _step_facts(result) -> list:
     return rows
 
 
-def step_figures(result, titles: bool = True, impedance: bool = True) -> dict:
+def step_figures(result, titles: bool = True, impedance: bool = True, sizes: dict | None = None) -> dict:
     """Return the figures of a step (capture) analysis by name.
 
     Parameters
@@ -748,6 +748,9 @@ def step_figures(result, titles: bool = True, impedance: bool = True) -> dict:
         Whether the figures carry titles (a report has its own headings).
     impedance : bool
         Whether to add the impedance figures when a sense resistor gave one.
+    sizes : dict, optional
+        Figure sizes in inches by name (``{"time": (3.6, 2.5)}``); the plot
+        functions' defaults otherwise.
 
     Returns
     -------
@@ -759,14 +762,20 @@ def step_figures(result, titles: bool = True, impedance: bool = True) -> dict:
     from ._plots import plot_bode, plot_time_record
 
     d = _step_plot_data(result)
+    sizes = sizes or {}
+
+    def size(name):
+        return {"width_in": sizes[name][0], "height_in": sizes[name][1]} if name in sizes else {}
+
     figs = {
         "time": plot_time_record(d["t_s"], d["channels"], levels_v=d["levels"], edges_s=d["edges_s"],
-                                 fitted=d["fitted"], window_s=d["window_s"], title=d["title"] if titles else ""),
+                                 fitted=d["fitted"], window_s=d["window_s"], title=d["title"] if titles else "",
+                                 **size("time")),
     }
     if d.get("f_hz") is not None:
         figs["bode"] = plot_bode(d["f_hz"], d["h"], d["coherence"], usable_band_hz=d["usable_band_hz"],
                                  h_std=d.get("h_std"),
-                                 title="Response H = V_out / V_in (H1 estimate)" if titles else "")
+                                 title="Response H = V_out / V_in (H1 estimate)" if titles else "", **size("bode"))
     ident = d.get("identification")
     if ident is not None and impedance:
         figs.update(identification_figures(ident, titles=titles))
@@ -790,10 +799,10 @@ def step_report(result, command=None, *, netlist_text: str | None = None):
     d = _step_plot_data(result)
     ident = d.get("identification")
     facts_section = Section("Time-domain figures (IEEE Std 181)", facts=tuple(_step_facts(result)))
-    figs = step_figures(result, titles=False, impedance=False)
+    figs = step_figures(result, titles=False, impedance=False, sizes={"time": (3.6, 2.9), "bode": (3.6, 3.0)})
     capture_sections = []
     for key, title, cap, h in (
-        ("time", "Time record", "The record: state levels (dashed), edge times (ticks), fitted response (dash-dot).", 2.5),
+        ("time", "Time record", "The record: state levels (dashed), edge times (ticks), fitted response (dash-dot).", 2.9),
         ("bode", "Frequency response", "H = V_out/V_in from all edges (H1) with ±2σ band; shaded: usable band; "
                                        "coherence below.", 3.0),
     ):

@@ -175,18 +175,57 @@ def _styled(fn):
     return wrapper
 
 
+# Fixed margins in inches (left, right, top, bottom), applied for the
+# figure's size when it is saved.  A layout engine would find them by
+# measuring every tick label, which costs two thirds of the rendering time.
+_MARGINS_IN = (0.78, 0.3, 0.12, 0.42)
+_TITLE_IN = 0.24
+_LEGEND_ROW_IN = 0.17
+
+
 def _figure(width_in: float, height_in: float, rows: Sequence[float], cols: int = 1, sharex: bool = True):
     import matplotlib
 
     plt = _pyplot()
     with matplotlib.rc_context(_RC):
-        fig = plt.figure(figsize=(width_in, height_in), layout="constrained")
-        gs = fig.add_gridspec(len(rows), cols, height_ratios=list(rows))
+        fig = plt.figure(figsize=(width_in, height_in))
+        gs = fig.add_gridspec(len(rows), cols, height_ratios=list(rows), hspace=0.1)
         axes = []
         for i in range(len(rows)):
             ax = fig.add_subplot(gs[i, 0], sharex=axes[0] if (axes and sharex) else None)
             axes.append(ax)
+    fig._zfit_layout = {"gs": gs, "title": False, "legend_rows": 0}
+    _apply_layout(fig)
     return fig, axes
+
+
+def _apply_layout(fig) -> None:
+    """Set the subplot margins for the figure's current size (see `_MARGINS_IN`)."""
+    lay = getattr(fig, "_zfit_layout", None)
+    if lay is None:
+        return
+    w, h = fig.get_size_inches()
+    left, right, top, bottom = _MARGINS_IN
+    top += _TITLE_IN if lay["title"] else 0.0
+    bottom += _LEGEND_ROW_IN * lay["legend_rows"] + (0.06 if lay["legend_rows"] else 0.0)
+    lay["gs"].update(left=left / w, right=1 - right / w, top=1 - top / h, bottom=min(bottom / h, 0.6))
+
+
+def _title(fig, text: str) -> None:
+    """A one-line title at the top left of the figure."""
+    fig.suptitle(text, x=0.01, y=0.995, ha="left", va="top", fontsize=9.5)
+    fig._zfit_layout["title"] = True
+    _apply_layout(fig)
+
+
+def _legend_below(fig, handles, labels, ncols: int) -> None:
+    """The legend under the axes, where it never hides the data."""
+    import math as _m
+
+    fig.legend(handles, labels, loc="lower center", bbox_to_anchor=(0.5, 0.0), ncols=ncols, handlelength=2.6,
+               frameon=False)
+    fig._zfit_layout["legend_rows"] = _m.ceil(len(labels) / ncols)
+    _apply_layout(fig)
 
 
 def _style_axis(ax, xunit: str | None = None, yunit: str | None = None, xlog=True, ylog=False, grid=True):
@@ -340,9 +379,9 @@ def plot_sweep(
     ax_m.set_xlim(f[0], f[-1])
     # Below the panels, so that it never hides the data.
     handles, labels = ax_m.get_legend_handles_labels()
-    fig.legend(handles, labels, loc="outside lower center", ncols=3, handlelength=2.6, frameon=False)
+    _legend_below(fig, handles, labels, 3 if width_in >= 5.0 else 2)
     if title:
-        fig.suptitle(title, x=0.01, ha="left", fontsize=9.5)
+        _title(fig, title)
     return fig
 
 
@@ -452,7 +491,7 @@ def plot_q(
     ax.set_xlabel("frequency")
     ax.legend(loc="best", handlelength=2.6)
     if title:
-        ax.set_title(title, loc="left")
+        _title(fig, title)
     return fig
 
 
@@ -557,7 +596,7 @@ def plot_esr_d(
     ax_e.set_xlim(f[0], f[-1])
     ax_e.legend(loc="best", handlelength=2.6)
     if title:
-        ax_e.set_title(title, loc="left")
+        _title(fig, title)
     return fig
 
 
@@ -647,7 +686,7 @@ def plot_bode(
     ax_m.set_xlim(f[0], f[-1])
     ax_m.legend(loc="best", handlelength=2.6)
     if title:
-        fig.suptitle(title, x=0.01, ha="left", fontsize=9.5)
+        _title(fig, title)
     return fig
 
 
@@ -725,10 +764,13 @@ def plot_time_record(
     if sel.any():
         ax.set_xlim(t[sel][0], t[sel][-1])
     # Below the axes, so that it never hides the record.
+    from matplotlib.ticker import MaxNLocator
+
+    ax.xaxis.set_major_locator(MaxNLocator(nbins=max(3, int(width_in * 1.2)), steps=[1, 2, 2.5, 5, 10]))
     handles, labels = ax.get_legend_handles_labels()
-    fig.legend(handles, labels, loc="outside lower center", ncols=2, handlelength=2.6, frameon=False)
+    _legend_below(fig, handles, labels, 2 if width_in >= 5.0 else 1)
     if title:
-        ax.set_title(title, loc="left")
+        _title(fig, title)
     return fig
 
 
@@ -750,6 +792,7 @@ def figure_bytes(fig, fmt: str, *, salt: str = "zfit") -> bytes:
     import matplotlib
 
     buf = io.BytesIO()
+    _apply_layout(fig)  # the figure may have been resized since it was drawn
     with matplotlib.rc_context({"svg.hashsalt": salt, "svg.fonttype": "none"}):
         fig.savefig(buf, format=fmt, metadata={"Date": None} if fmt == "svg" else {"Software": None})
     return buf.getvalue()
