@@ -1076,12 +1076,22 @@ def analyse_capture(
         else:
             dur = (t90[good] - t10[good]) * dt
             transition = float(np.mean(dur))
-            transition_std = float(np.std(dur, ddof=1) / math.sqrt(dur.size)) if dur.size > 1 else None
             ov = over[good]
+            if dur.size > 1:
+                transition_std = float(np.std(dur, ddof=1) / math.sqrt(dur.size))
+                overshoot_std = float(np.std(ov, ddof=1) / math.sqrt(ov.size))
+            else:
+                # One edge: each crossing time is off by the noise over the slope there.
+                slope = np.diff(avg_y)
+                k = np.flatnonzero(good)[0]
+                s10 = abs(float(np.interp(t10[k] - 0.5, np.arange(slope.size), slope)))
+                s90 = abs(float(np.interp(t90[k] - 0.5, np.arange(slope.size), slope)))
+                if s10 > 0 and s90 > 0:
+                    transition_std = dt * math.hypot(out_lv.low_noise / s10, out_lv.high_noise / s90)
+                overshoot_std = 100.0 * out_lv.high_noise / out_lv.amplitude
             ov_i = _output_edges(avg_y[None, :], out_lv, 0)[3][0]
             if ov_i > 0:
                 overshoot = float((avg_y[ov_i:].max() - out_lv.high) / out_lv.amplitude * 100.0)
-            overshoot_std = float(np.std(ov, ddof=1) / math.sqrt(ov.size)) if ov.size > 1 else None
             settle = avg_y[-max(3, length // 20):]
             if abs(float(np.mean(settle)) - out_lv.high) > 0.01 * out_lv.amplitude + 3 * out_lv.high_noise / math.sqrt(n_edges * settle.size):
                 warn("the output has not settled before the next edge: the state levels, the transition "
