@@ -560,8 +560,8 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
             "Rational model",
             tables=(net if net is not None else poles,),
             figures=schematic,
-            notes=("No simple circuit describes the whole band; the rational model (vector fitting) does"
-                   + (", and so does the passive network above (the SPICE netlist's elements)." if net is not None else "."),),
+            notes=("The rational model (vector fitting) describes the measured band"
+                   + ("; the passive network above realises it (the SPICE netlist's elements)." if net is not None else "."),),
         ))
 
     sections.append(Section("Self-resonance and figures", facts=tuple(_figure_rows(result)),
@@ -574,8 +574,10 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
     sections.append(Section(
         "Impedance",
         figures=(FigureBlock(_svg(_resize(figs.pop("sweep"), 7.3, 3.2), "sweep", "impedance against frequency"),
-                 "Measurement with ±2σ band, equivalent circuit (solid), rational model (dashed); below: normalised "
-                 "residual against the 1σ and 3σ noise levels; shaded: outside the circuit's band of validity."),),
+                 ("Measurement with ±2σ band, equivalent circuit (solid), rational model (dashed); below: normalised "
+                  "residual against the 1σ and 3σ noise levels; shaded: outside the circuit's band of validity."
+                  if params else "Measurement with ±2σ band and the rational model (dashed); below: normalised "
+                  "residual against the 1σ and 3σ noise levels.")),),
         css_class="full",
     ))
     for key, fig in figs.items():
