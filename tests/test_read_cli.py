@@ -66,7 +66,7 @@ BAD = [
     (TAB / "bad_text_in_data.csv", (), 7, "'overload' is not a number"),
     (TAB / "bad_ragged.csv", (), 5, "2 columns where the first data row has 3"),
     (TAB / "bad_phase_no_unit.csv", (), 1, "could be degrees or radians"),
-    (TAB / "bad_unknown_columns.csv", (), 1, "no frequency column; columns seen: 'time \\(s\\)'"),
+    (TAB / "bad_unknown_columns.csv", (), 1, "no frequency column but a time column \\('time \\(s\\)'.*zfit step"),
     (TAB / "bad_unit.csv", (), 1, "unknown unit 'furlong'"),
     (TAB / "bad_duplicate_frequency_column.csv", (), 1, "both look like frequency"),
     (TAB / "no_header.csv", ("--columns", "f,L,R"), None, "say Ls or Lp"),
@@ -107,7 +107,15 @@ def test_repeated_frequencies_are_a_warning_on_stderr(tmp_path):
 
 def demo_files():
     return sorted(p for p in DEMO.iterdir() if p.suffix in (".s1p", ".s2p", ".ts", ".csv", ".txt")
-                  and not p.name.startswith("capture"))
+                  and not p.name.startswith(("capture", "coil_4m7_")))
+
+
+def test_info_on_a_scope_capture_points_to_step():
+    # The demo captures are time records, not sweeps: info says which command reads them.
+    r = run("info", DEMO / "coil_4m7_square_1k.csv")
+    assert r.exit_code == 2
+    assert re.search(r"coil_4m7_square_1k\.csv:\d+: no frequency column but a time column .*zfit step", r.stderr)
+    assert "Traceback" not in r.stderr
 
 
 def demo_connection(path):

@@ -425,6 +425,13 @@ def read_table(path, columns: str | None = None) -> TableData:
     line_for_units = header_line
     seen = ", ".join(repr(h) for h in header) if header else f"{n_cols} unnamed columns"
     if "f" not in mapping:
+        if header and any(h.strip().lower().split("(")[0].split("[")[0].strip() in ("time", "t", "time_s", "seconds") for h in header):
+            raise ZfitInputError(
+                f"no frequency column but a time column ({seen}): this looks like an oscilloscope "
+                "capture; analyse it with 'zfit step'",
+                path,
+                line_for_units,
+            )
         raise ZfitInputError(f"no frequency column; columns seen: {seen}; give --columns", path, line_for_units)
     pair = None
     usable = [p for p in PAIRS if p[0] in mapping and p[1] in mapping]
