@@ -13,7 +13,6 @@ from __future__ import annotations
 import math
 import re
 from pathlib import Path
-from typing import Sequence
 
 import numpy as np
 
@@ -814,13 +813,11 @@ def step_report(result, command=None, *, netlist_text: str | None = None):
     sections = []
     if ident is not None:
         sub = [s for s in identification_report(ident, None, netlist_text=netlist_text).sections]
-        by = {s.title: s for s in sub}
         head = [s for s in sub if s.title in ("Equivalent circuit", "Rational model", "Self-resonance and figures",
                                                "Warnings", "Impedance")]
         rest = [s for s in sub if s not in head]
         sections = head + capture_sections + [s for s in rest if s.title in ("Quality factor", "Losses")] + \
             [facts_section] + [s for s in rest if s.title not in ("Quality factor", "Losses")]
-        del by
     else:
         sections = [facts_section] + capture_sections
     src = Path(str(d["source"])).name
