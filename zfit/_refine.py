@@ -20,11 +20,10 @@ References
    section 15.5 (nonlinear models, covariance from the Jacobian).
 .. [2] JCGM 100:2008, *Evaluation of measurement data -- Guide to the
    expression of uncertainty in measurement*, section 5.1 (propagation).
-.. [3] M. A. Branch, T. F. Coleman and Y. Li, "A subspace, interior, and
-   conjugate gradient method for large-scale bound-constrained minimization
-   problems", SIAM J. Sci. Comput. 21(1), 1-23, 1999,
-   doi:10.1137/S1064827595289108 (the trust-region method of
-   ``scipy.optimize.least_squares``).
+.. [3] C. Voglis and I. E. Lagaris, "A rectangular trust region dogleg
+   approach for unconstrained and bound constrained nonlinear optimization",
+   WSEAS International Conference on Applied Mathematics, 2004 (the
+   ``dogbox`` method of ``scipy.optimize.least_squares``).
 """
 
 from __future__ import annotations
@@ -44,9 +43,11 @@ _SQRT2 = math.sqrt(2.0)
 # wide enough for any guess, narrow enough that an unresolved element
 # cannot run off to 1e-300.
 _LOG_SPAN = 25.0
-# Trust-region reflective with the Jacobian's own scaling.  Tolerances of
+# The dogleg method in a rectangular trust region (bounds kept, a few
+# parameters: cheaper per step than trust-region reflective), with the
+# Jacobian's own scaling.  Tolerances of
 # 1e-8 on the cost are far below any change of statistical meaning.
-_METHOD = dict(method="trf", x_scale="jac", xtol=1e-8, ftol=1e-8, gtol=1e-8)
+_METHOD = dict(method="dogbox", x_scale="jac", xtol=1e-8, ftol=1e-8, gtol=1e-8)
 
 
 @dataclass(frozen=True)
@@ -355,8 +356,8 @@ def refine(
 
     The starting points are ranked by their cost; the `n_best` lowest are
     refined (stopping as soon as one reaches the noise), then, if none did,
-    the same with `extra_starts`; refinement is by ``scipy.optimize.least_squares`` (trust-region reflective,
-    analytic Jacobian) in log-parameters, and the refined one with the
+    the same with `extra_starts`; refinement is by ``scipy.optimize.least_squares`` (dogleg in a
+    rectangular trust region, analytic Jacobian) in log-parameters, and the refined one with the
     lowest cost is kept.
 
     Parameters
