@@ -44,10 +44,10 @@ _SQRT2 = math.sqrt(2.0)
 # cannot run off to 1e-300.
 _LOG_SPAN = 25.0
 # The dogleg method in a rectangular trust region (bounds kept, a few
-# parameters: cheaper per step than trust-region reflective), with the
-# Jacobian's own scaling.  Tolerances of
+# parameters: cheaper per step than trust-region reflective); log-parameters
+# are dimensionless, so they need no further scaling.  Tolerances of
 # 1e-8 on the cost are far below any change of statistical meaning.
-_METHOD = dict(method="dogbox", x_scale="jac", xtol=1e-8, ftol=1e-8, gtol=1e-8)
+_METHOD = dict(method="dogbox", x_scale=1.0, xtol=1e-8, ftol=1e-8, gtol=1e-8)
 
 
 @dataclass(frozen=True)
