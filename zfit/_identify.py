@@ -63,10 +63,15 @@ DEFAULT_RDC_REL = 0.01
 UNRESOLVED_REL = 0.5
 
 # Screening of the second family: refined only if its best starting point
-# comes within _SCREEN_START of the first family's fitted chi-square, and
-# given its optional element only within _SCREEN_RATIO after refinement.
+# comes within _SCREEN_START of the first family's fitted chi-square, first
+# from one start and at most _SCREEN_NFEV evaluations, fully and with its
+# optional element only if it then comes within _SCREEN_RATIO.
 _SCREEN_START = 100.0
 _SCREEN_RATIO = 10.0
+_SCREEN_NFEV = 30
+
+# Pole count of the simplest rational model of each family's form.
+_SIMPLE_POLES = {"inductor": 2, "capacitor": 0}
 
 _PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
 
@@ -747,19 +752,36 @@ def identify(
     kind = {"inductor": "inductor", "capacitor": "capacitor", "rational": "general"}.get(model)
     if kind is None:
         kind = "capacitor" if _looks_capacitive(sweep) else "inductor"
-    rational = None
-    try:
-        rational = _rational_fit(_second_order_sigma(sweep) if obs.on_s else sweep, kind, n_poles)
-    except FitError as exc:
-        if model == "rational":
-            raise
-        notes.append(f"no rational model of the sweep ({exc}); figures are read from the circuit")
     def rational_scores(rm):
         if rm is None:
             return None, None, None
         e = np.abs(obs.normalized(rm.impedance(sweep.f_hz))) ** 2
         return e, float(math.sqrt(np.mean(e))), _bic(float(2 * e.sum()), rows_full, _rational_k(rm))
 
+    # The simplest rational model of the family's form first (one pole pair for
+    # an inductor, only the origin pole and the constant and s terms for a
+    # capacitor); the automatic pole count only when that one does not describe
+    # the measurement within the noise, judged in the fit's own domain (on S for
+    # analyser data, where the Z-domain residual of vector fitting overstates
+    # the misfit of points in the analyser's noise).
+    rational = None
+    rm_sweep = _second_order_sigma(sweep) if obs.on_s else sweep
+    simple = _SIMPLE_POLES.get(kind) if n_poles is None else None
+    tol = 1.0 + max(0.1, 3.0 / math.sqrt(4.0 * sweep.n_points))
+    try:
+        if simple is not None:
+            try:
+                rational = _rational_fit(rm_sweep, kind, simple)
+            except FitError:
+                rational = None
+            if rational is not None and rational_scores(rational)[1] > tol:
+                rational = None
+        if rational is None:
+            rational = _rational_fit(rm_sweep, kind, n_poles)
+    except FitError as exc:
+        if model == "rational":
+            raise
+        notes.append(f"no rational model of the sweep ({exc}); figures are read from the circuit")
     e_rat, rat_rms, bic_rat = rational_scores(rational)
 
     if model == "rational":
@@ -808,7 +830,7 @@ def identify(
                 rb = _fit_base(fam, obs, rational, prior)
             else:
                 # One start only, unless it turns out to compete.
-                rb = _fit_base(fam, obs, rational, prior, spread=False)
+                rb = _fit_base(fam, obs, rational, prior, spread=False, max_nfev=_SCREEN_NFEV)
                 if rb.chi2 <= _SCREEN_RATIO * best_chi2:
                     rb = _fit_base(fam, obs, rational, prior, seed=rb.values)
         except FitError as exc:
