@@ -20,6 +20,7 @@ import argparse
 import os
 import platform
 import resource
+import shutil
 import subprocess
 import sys
 import tempfile
@@ -99,6 +100,7 @@ def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--parts", type=int, default=2000)
     ap.add_argument("--points", type=int, default=801)
+    ap.add_argument("--repeat", type=int, default=2, help="Runs of each --jobs value; the fastest is reported.")
     ap.add_argument("--doc", type=Path, default=ROOT / "docs" / "perf_batch.md")
     ap.add_argument("--workdir", type=Path, default=None, help="Keep the lot here (default: a temporary folder).")
     a = ap.parse_args(argv)
@@ -120,15 +122,28 @@ def main(argv=None):
     load_before = os.getloadavg()
     imports = _worker_imports(work / "lot" / "L00000.s1p")
 
-    results = {}
-    for jobs in (1, 2):
-        wall, cpu, stdout = _run(["batch", "lot", "--out", f"out{jobs}", "--limits", "limits.toml",
-                                  "--jobs", str(jobs), "--quiet"], work)
-        results[jobs] = (wall, cpu, stdout)
-        print(f"--jobs {jobs}: {wall:.1f} s, {a.parts / wall:.1f} parts/s, CPU {cpu:.1f} s", flush=True)
+    # The runs alternate and the fastest of each is kept: on a shared machine
+    # the other work only ever slows a run down.
+    results, walls = {}, {1: [], 2: []}
+    for rep in range(a.repeat):
+        for jobs in (1, 2):
+            out = work / f"out{jobs}"
+            if out.exists():
+                shutil.rmtree(out)
+            wall, cpu, stdout = _run(["batch", "lot", "--out", f"out{jobs}", "--limits", "limits.toml",
+                                      "--jobs", str(jobs), "--quiet"], work)
+            walls[jobs].append(wall)
+            if jobs not in results or wall < results[jobs][0]:
+                results[jobs] = (wall, cpu, stdout)
+            print(f"--jobs {jobs}: {wall:.1f} s, {a.parts / wall:.1f} parts/s, CPU {cpu:.1f} s", flush=True)
     load_after = os.getloadavg()
     same = all((work / "out1" / n).read_bytes() == (work / "out2" / n).read_bytes()
                for n in ("summary.csv", "lot.csv", "lot.json"))
+    import csv
+
+    with open(work / "out1" / "summary.csv", newline="") as fh:
+        errors = [r["error"] for r in csv.DictReader(fh) if r["verdict"] == "error"]
+    passivity = sum("not a passive one-port" in e for e in errors)
     lot_line = next((ln for ln in results[1][2].splitlines() if ln.startswith("lot: ")), "")
     w1, c1, _ = results[1]
     w2, c2, _ = results[2]
@@ -143,14 +158,15 @@ half invented 1 uF capacitors; noise 1e-3 |S| + 1e-5 on S), through the real com
 `zfit batch lot --out DIR --limits limits.toml --jobs N` (model `auto`: both families and the optional
 element are tried for every part), each run into a fresh output folder.
 
-| run | wall time | parts per second | CPU time (all processes) | CPU per part |
-|---|---:|---:|---:|---:|
-| `--jobs 1` | {w1:.1f} s | {a.parts / w1:.1f} | {c1:.1f} s | {1e3 * c1 / a.parts:.1f} ms |
-| `--jobs 2` | {w2:.1f} s | {a.parts / w2:.1f} | {c2:.1f} s | {1e3 * c2 / a.parts:.1f} ms |
+| run | wall time (fastest of {a.repeat}) | parts per second | CPU time (all processes) | CPU per part | all wall times |
+|---|---:|---:|---:|---:|---|
+| `--jobs 1` | {w1:.1f} s | {a.parts / w1:.1f} | {c1:.1f} s | {1e3 * c1 / a.parts:.1f} ms | {', '.join(f'{w:.1f} s' for w in walls[1])} |
+| `--jobs 2` | {w2:.1f} s | {a.parts / w2:.1f} | {c2:.1f} s | {1e3 * c2 / a.parts:.1f} ms | {', '.join(f'{w:.1f} s' for w in walls[2])} |
 
 **Ratio `--jobs 2` / `--jobs 1`: {ratio:.2f}x** (aim: at least 1.8x on two otherwise idle cores).
 The two runs wrote byte-identical `summary.csv`, `lot.csv` and `lot.json`: {'yes' if same else 'NO'}.
 Lot: {lot_line[5:] if lot_line else '(see the run)'}.
+{f"Of the {len(errors)} parts without a result, {passivity} are honest simulated sweeps that the readers refuse as not passive: one point near the resonance has Re Z below zero by more than 3 standard uncertainties, which noise alone does to some of 801 points (a per-point 3-sigma test over many points; reported to the lead)." if errors else "Every part was identified."}
 
 Machine: {platform.machine()}, {os.cpu_count()} logical cores, Python {platform.python_version()}.
 Load average (1, 5, 15 min) before the runs {load_before[0]:.2f}, {load_before[1]:.2f}, {load_before[2]:.2f};
