@@ -166,7 +166,7 @@ element are tried for every part), each run into a fresh output folder.
 **Ratio `--jobs 2` / `--jobs 1`: {ratio:.2f}x** (aim: at least 1.8x on two otherwise idle cores).
 The two runs wrote byte-identical `summary.csv`, `lot.csv` and `lot.json`: {'yes' if same else 'NO'}.
 Lot: {lot_line[5:] if lot_line else '(see the run)'}.
-{f"Of the {len(errors)} parts without a result, {passivity} are honest simulated sweeps that the readers refuse as not passive: one point near the resonance has Re Z below zero by more than 3 standard uncertainties, which noise alone does to some of 801 points (a per-point 3-sigma test over many points; reported to the lead)." if errors else "Every part was identified."}
+{f"Of the {len(errors)} parts without a result, {passivity} are honest simulated sweeps that the readers refuse as not passive: one point near the resonance has Re Z below zero by more than 3 standard uncertainties, which noise alone does to some of 801 points." if errors else "Every part was identified."}
 
 Machine: {platform.machine()}, {os.cpu_count()} logical cores, Python {platform.python_version()}.
 Load average (1, 5, 15 min) before the runs {load_before[0]:.2f}, {load_before[1]:.2f}, {load_before[2]:.2f};

