@@ -27,7 +27,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._errors import FitError, MeasurementWarning, ZfitInputError
-from ._figures import SRF, Estimate, Figures, SpotReadout
+from ._figures import SRF, Estimate, Figures
 
 __all__ = [
     "identify",
@@ -723,7 +723,6 @@ def identify(
     .. [3] R. E. Kass and A. E. Raftery, "Bayes factors", J. Amer. Statist.
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
-    from ._circuits import FAMILIES
     from ._figures import MeasuredReader, curves_of, figures_of, spot_readout, srf_of_circuit, srf_of_rational
     from ._refine import Observation, Prior, refine
 
