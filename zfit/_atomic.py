@@ -11,6 +11,12 @@ from ._errors import OutputExistsError
 __all__ = ["write_atomic", "check_writable"]
 
 
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 def check_writable(path, force: bool = False) -> Path:
     """Return `path` as a Path, raising if it exists and `force` is false.
 
@@ -52,6 +58,9 @@ def write_atomic(path, data, force: bool = False) -> Path:
     raw = data.encode("utf-8") if isinstance(data, str) else bytes(data)
     fd, tmp = tempfile.mkstemp(prefix="." + path.name + ".", suffix=".part", dir=path.parent)
     try:
+        # mkstemp makes the file private (0600); a result file should be as
+        # readable as any other file the user writes, so follow the umask.
+        os.chmod(tmp, 0o666 & ~_umask())
         with os.fdopen(fd, "wb") as fh:
             fh.write(raw)
             fh.flush()

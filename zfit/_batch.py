@@ -108,6 +108,8 @@ class ReadOptions:
         Impedance of the load standard.
     port_delay : str or None
         Port extension delay.
+    port_loss : float or None
+        Loss of the port-extension line, dB at 1 GHz.
     """
 
     connection: str | None = None
@@ -119,6 +121,7 @@ class ReadOptions:
     load: str | None = None
     load_value: str | None = None
     port_delay: str | None = None
+    port_loss: float | None = None
 
 
 @dataclass(frozen=True)
@@ -227,14 +230,14 @@ def _one_line(exc: BaseException, task: PartTask) -> str:
 
 
 def _read_sweep(task: PartTask):
-    from ._cli_common import sweep_from_options
+    from ._prepare import prepared_sweep
 
     r = task.read
     opt = lambda p: None if p is None else Path(p)  # noqa: E731
-    return sweep_from_options(
+    return prepared_sweep(
         Path(task.path), connection=r.connection, noise_rel=r.noise_rel, noise_floor=r.noise_floor,
         columns=r.columns, open_=opt(r.open_), short=opt(r.short), load=opt(r.load),
-        load_value=r.load_value, port_delay=r.port_delay,
+        load_value=r.load_value, port_delay=r.port_delay, port_loss=r.port_loss,
     )
 
 

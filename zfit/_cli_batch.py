@@ -10,13 +10,13 @@ import typer
 from ._cli_common import (
     ColumnsOpt,
     ConnectionOpt,
-    ForceOpt,
     LoadOpt,
     LoadValueOpt,
     NoiseFloorOpt,
     NoiseRelOpt,
     OpenOpt,
     PortDelayOpt,
+    PortLossOpt,
     ShortOpt,
     app,
     echo,
@@ -47,7 +47,8 @@ def batch_command(
     load: LoadOpt = None,
     load_value: LoadValueOpt = None,
     port_delay: PortDelayOpt = None,
-    force: ForceOpt = False,
+    port_loss: PortLossOpt = None,
+    force: bool = typer.Option(False, "--force", help="Identify every part again, even where its result is newer than its sweep."),
     quiet: bool = typer.Option(False, "--quiet", "-q", help="No progress display."),
 ):
     """Identify every part in INPUTS, check each against --limits, and summarise the lot.
@@ -84,7 +85,7 @@ def batch_command(
         open_=None if open_ is None else str(Path(open_).resolve()),
         short=None if short is None else str(Path(short).resolve()),
         load=None if load is None else str(Path(load).resolve()),
-        load_value=load_value, port_delay=port_delay,
+        load_value=load_value, port_delay=port_delay, port_loss=port_loss,
     )
     result = run_batch(
         inputs, out, limits=lim, model=model, at=quantities(at, "--at"), read=read, jobs=jobs,

@@ -133,52 +133,17 @@ PortLossOpt = Annotated[
 ForceOpt = Annotated[bool, typer.Option("--force", help="Overwrite output files that exist.")]
 
 
-def sweep_from_options(
-    path: Path,
-    connection: str | None = None,
-    noise_rel: float | None = None,
-    noise_floor: float | None = None,
-    columns: str | None = None,
-    open_: Path | None = None,
-    short: Path | None = None,
-    load: Path | None = None,
-    load_value: str | None = None,
-    port_delay: str | None = None,
-    port_loss: float | None = None,
-):
+def sweep_from_options(*args, **kwargs):
     """Return the `Sweep` that the shared reading options describe.
 
-    Reads the file, applies the port extension, then fixture compensation:
-    the order a bench engineer applies them in.
+    The command-line spelling of `zfit._prepare.prepared_sweep`; see there
+    for the parameters.
+
+    Parameters
+    ----------
+    *args, **kwargs
+        As `zfit._prepare.prepared_sweep`.
     """
-    from ._connection import InstrumentNoise
-    from ._readers import read_sweep
+    from ._prepare import prepared_sweep
 
-    noise = None
-    if noise_rel is not None or noise_floor is not None:
-        from ._readers import default_noise
-
-        base = default_noise(path)
-        noise = InstrumentNoise(
-            base.rel if noise_rel is None else noise_rel,
-            base.floor if noise_floor is None else noise_floor,
-        )
-    sweep = read_sweep(path, connection=connection, noise=noise, columns=columns)
-    if port_delay is not None:
-        from ._fixture import port_extended
-
-        sweep = port_extended(sweep, parse_quantity(port_delay, "--port-delay"), loss=port_loss)
-    elif port_loss is not None:
-        raise ZfitInputError("--port-loss goes with --port-delay (the loss of the line being removed)", path)
-    if open_ is not None or short is not None or load is not None:
-        from ._fixture import compensate_from_files
-
-        sweep = compensate_from_files(
-            sweep,
-            open_path=open_,
-            short_path=short,
-            load_path=load,
-            load_ohm=None if load_value is None else parse_quantity(load_value, "--load-value"),
-            connection=connection,
-        )
-    return sweep
+    return prepared_sweep(*args, **kwargs)
