@@ -107,3 +107,34 @@ def test_json_to_standard_output():
     f0 = 1 / (2 * math.pi * math.sqrt(4.7e-3 * 38e-12))
     # Thomson's formula for the demo coil: the damped ringing within 1 % of it.
     assert d["ringing_hz"] == pytest.approx(f0, rel=0.01)
+
+
+def test_outputs_are_checked_before_anything_is_written(tmp_path):
+    # An existing plot refuses the run before the JSON is written (nothing half done).
+    (tmp_path / "x.png").write_bytes(b"mine")
+    res = run(RING, "-i", "CH1", "-o", "CH2", "--json", tmp_path / "a.json", "--plot", tmp_path / "x.png")
+    assert res.exit_code == 2
+    assert res.output.strip().splitlines()[-1] == f"zfit: error: {tmp_path / 'x.png'}: exists already; give --force to overwrite it"
+    assert not (tmp_path / "a.json").exists() and (tmp_path / "x.png").read_bytes() == b"mine"
+    # A folder given as the file, and a file given as a folder, even with --force.
+    (tmp_path / "d.png").mkdir()
+    res = run(RING, "-i", "CH1", "-o", "CH2", "--plot", tmp_path / "d.png", "--force")
+    assert res.exit_code == 2
+    assert res.output.strip() == f"zfit: error: {tmp_path / 'd.png'}: is a folder; give the name of a file to write"
+    res = run(RING, "-i", "CH1", "-o", "CH2", "--json", tmp_path / "x.png" / "a.json")
+    assert res.exit_code == 2
+    assert res.output.strip() == (f"zfit: error: {tmp_path / 'x.png' / 'a.json'}: cannot write here: "
+                                  f"{tmp_path / 'x.png'} is a file, not a folder")
+
+
+def test_summary_says_why_a_figure_is_missing_and_rounds_percent_as_gum():
+    from zfit._cli_step import _percent
+
+    # GUM (JCGM 100:2008, 7.2.6): two digits of the uncertainty, the value to the same place.
+    assert _percent(8.198770868, 0.0826699) == "8.199 ± 0.083 %"
+    assert _percent(0.48612, 0.0431) == "0.486 ± 0.043 %"
+    assert _percent(12.345, 1.7) == "12.3 ± 1.7 %"
+    res = CliRunner().invoke(app, ["step", str(RING), "-i", "CH1", "-o", "CH2"])
+    assert res.exit_code == 0
+    assert "time const.:  n/a" in res.output
+    assert "note:         the output follows the input's edge" in res.output

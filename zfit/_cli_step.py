@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import math
 import shlex
 import sys
 from pathlib import Path
@@ -54,7 +55,7 @@ def step_command(
     dt: Optional[str] = typer.Option(None, "--dt", help="Sample interval (e.g. 40n) when the file has neither a time column nor the interval in its header."),
     force: ForceOpt = False,
 ):
-    from ._atomic import check_writable, write_atomic
+    from ._atomic import write_atomic
     from ._capture import read_capture
     from ._errors import ZfitInputError
     from ._step import analyse_capture
@@ -72,11 +73,16 @@ def step_command(
         raise ZfitInputError("the response file is written as CSV: give a .csv path", response)
     if netlist is not None and shunt_ohm is None:
         raise ZfitInputError("--netlist needs the part's impedance: give the sense resistor with --shunt")
-    # Fail before the work, not after it, when an output exists.
+    # Fail before the work, not after it, when an output exists or cannot be written.
+    from ._outputs import check_output_path, check_output_suffix
+
     to_stdout = json_path is not None and str(json_path) == "-"
     for p in (None if to_stdout else json_path, response):
         if p is not None:
-            check_writable(p, force)
+            check_output_path(p, force)
+    for p, kind in ((plot, "plot"), (netlist, "netlist"), (report, "report")):
+        if p is not None:
+            check_output_path(check_output_suffix(p, kind), force)
 
     cap = read_capture(capture, dt=dt_s)
     added = read_capture(added_capture, dt=dt_s) if added_capture is not None else None
@@ -89,16 +95,6 @@ def step_command(
     if not to_stdout:
         for line in summary_lines(result):
             echo(line)
-    if json_path is not None:
-        text = json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n"
-        if to_stdout:
-            sys.stdout.write(text)
-        else:
-            write_atomic(json_path, text, force)
-            echo(f"wrote {json_path}")
-    if response is not None:
-        write_atomic(response, response_csv(result), force)
-        say(f"wrote {response}")
     if plot is not None or netlist is not None or report is not None:
         from ._outputs import write_outputs
 
@@ -106,6 +102,16 @@ def step_command(
                                   command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:])):
             say(f"wrote {path}")
 
+    if json_path is not None:
+        text = json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n"
+        if to_stdout:
+            sys.stdout.write(text)
+        else:
+            write_atomic(json_path, text, force)
+            say(f"wrote {json_path}")
+    if response is not None:
+        write_atomic(response, response_csv(result), force)
+        say(f"wrote {response}")
 
 def response_csv(result) -> str:
     """Return the frequency response of a step result as CSV text.
@@ -182,10 +188,16 @@ def summary_lines(result) -> list[str]:
 
         out.append(f"impedance with the {format_eng(result.shunt_ohm, 'ohm')} sense resistor:")
         out.extend("  " + line for line in identify_lines(result.impedance))
+    # The notes say why a figure is n/a (no settled states, no slow edge to fit).
+    out.extend(f"note:         {n}" for n in result.notes)
     return out
 
 
 def _percent(v, s) -> str:
     if v is None:
         return "n/a"
-    return f"{v:.3g} %" if s is None else f"{v:.3g} ± {s:.2g} %"
+    if s is None or not math.isfinite(s) or s <= 0:
+        return f"{v:.3g} %"
+    # Two significant digits of the uncertainty, the value to the same place (GUM 7.2.6).
+    decimals = min(max(0, 1 - int(math.floor(math.log10(s)))), 9)
+    return f"{v:.{decimals}f} ± {s:.{decimals}f} %"

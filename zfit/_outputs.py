@@ -22,6 +22,8 @@ from ._version import __version__
 
 __all__ = [
     "write_outputs",
+    "check_output_path",
+    "check_output_suffix",
     "identification_figures",
     "identification_netlist",
     "identification_report",
@@ -834,6 +836,58 @@ def _is_step(result) -> bool:
     return not hasattr(result, "parameters") or not hasattr(result, "sweep")
 
 
+def check_output_path(path, force: bool = False) -> Path:
+    """Return `path` as a Path if an output may be written there, else raise.
+
+    Says in one line what is wrong before any work is done: the path is a
+    folder, a parent in it is a file, or the file exists and `force` is
+    false.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The output file.
+    force : bool
+        Whether an existing file may be replaced.
+
+    Raises
+    ------
+    ZfitInputError
+        For a folder given as the file, or a file given as a folder.
+    OutputExistsError
+        When the file exists and `force` is false.
+    """
+    from ._atomic import check_writable
+
+    path = Path(path)
+    if path.is_dir():
+        raise ZfitInputError("is a folder; give the name of a file to write", path=path)
+    for parent in path.parents:
+        if parent.exists():
+            if not parent.is_dir():
+                raise ZfitInputError(f"cannot write here: {parent} is a file, not a folder", path=path)
+            break
+    return check_writable(path, force)
+
+
+def check_output_suffix(path, kind: str) -> Path:
+    """Return `path` as a Path if its extension suits `kind`, else raise.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The output file.
+    kind : {'plot', 'netlist', 'touchstone', 'report'}
+        What is to be written there.
+    """
+    suffixes = {"plot": PLOT_SUFFIXES, "netlist": NETLIST_SUFFIXES, "touchstone": TOUCHSTONE_SUFFIXES,
+                "report": REPORT_SUFFIXES}[kind]
+    path = Path(path)
+    if path.suffix.lower() not in suffixes:
+        raise ZfitInputError(f"{kind} file must end in {' or '.join(suffixes)}", path=path)
+    return path
+
+
 def write_outputs(
     result,
     *,
@@ -889,20 +943,16 @@ def write_outputs(
     ZfitInputError
         On an extension that does not say what to write.
     """
-    from ._atomic import check_writable, write_atomic
+    from ._atomic import write_atomic
 
     step = _is_step(result)
     ident = result if not step else _step_identification(result)
     jobs = []  # (path, kind)
-    for path, suffixes, kind in (
-        (plot, PLOT_SUFFIXES, "plot"), (netlist, NETLIST_SUFFIXES, "netlist"),
-        (touchstone, TOUCHSTONE_SUFFIXES, "touchstone"), (report, REPORT_SUFFIXES, "report"),
-    ):
+    for path, kind in ((plot, "plot"), (netlist, "netlist"), (touchstone, "touchstone"), (report, "report")):
         if path is None:
             continue
-        path = Path(path)
-        if path.suffix.lower() not in suffixes:
-            raise ZfitInputError(f"{kind} file must end in {' or '.join(suffixes)}", path=path)
+        path = check_output_suffix(path, kind)
+        check_output_path(path, force)
         jobs.append((path, kind))
     if ident is None and any(k in ("netlist", "touchstone") for _, k in jobs):
         raise ZfitInputError("a netlist or Touchstone file needs an impedance: give the capture's sense resistor (--shunt)")
@@ -931,7 +981,7 @@ def write_outputs(
         elif kind == "report":
             out.append((path, None))  # filled below, once the netlist is known
     for path, _ in out:
-        check_writable(path, force)
+        check_output_path(path, force)
     written = []
     for path, data in out:
         if data is None:
