@@ -139,6 +139,9 @@ def read_sweep(path, connection: str | None = None, *, noise: InstrumentNoise | 
 def _head(path: Path) -> str:
     with open(path, "rb") as fh:
         raw = fh.read(16384)
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        # UTF-16 text (Windows bench software): decode it, a cut last character aside.
+        return raw[: len(raw) // 2 * 2].decode("utf-16", errors="replace")
     return raw.decode("latin-1")
 
 
@@ -151,11 +154,26 @@ def _check_is_touchstone(path: Path) -> None:
     if looks_like_touchstone(head):
         return
     lines = head.splitlines()
+    bad_option = False
     for i, raw in enumerate(lines):
         s = raw.partition("!")[0].strip()
         if not s:
             continue
-        if s[0] in "#[":
+        if s[0] == "#" and not bad_option and not looks_like_touchstone(s):
+            # Not an option line: maybe a table whose comments start with '#'.
+            # Look on; the parser names this line if nothing else is wrong.
+            bad_option = True
+            continue
+        if bad_option and s[0] == "#":
+            continue
+        if bad_option and ("," in s or ";" in s):
+            raise ZfitInputError(
+                "is not a Touchstone file although its extension says so: it reads as a delimited table "
+                "with '#' comments (rename the file .csv)",
+                path,
+                i + 1,
+            )
+        if bad_option or s[0] in "#[":
             return  # an option line or a keyword: the parser says what is wrong with it
         if s[0] in "0123456789+-.":
             if "," in s or ";" in s:

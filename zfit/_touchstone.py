@@ -70,6 +70,12 @@ class TouchstoneData:
 
 def _text(path: Path) -> str:
     raw = path.read_bytes()
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        # Bench software on Windows may save UTF-16 text (with its byte-order mark).
+        try:
+            return raw.decode("utf-16")
+        except UnicodeDecodeError:
+            raise ZfitInputError("starts as UTF-16 text but cannot be decoded as such", path) from None
     if b"\x00" in raw[:4096]:
         raise ZfitInputError("is a binary file, not a Touchstone text file", path)
     try:
@@ -207,12 +213,35 @@ def read_touchstone(path, n_ports: int | None = None) -> TouchstoneData:
     text = _text(path)
     lines = text.splitlines()
     body = [ln.partition("!")[0].strip() for ln in lines]
+    if text and text[-1] not in "\r\n":
+        _check_last_line(path, body)
     version2 = "[version]" in text[:65536].lower() and any(b[:9].lower() == "[version]" for b in body[:400] if b)
     if version2:
         return _read_v2(path, body)
     if n_ports is None:
         raise ZfitInputError("a .ts file must be Touchstone 2.0 (a '[Version] 2.0' line); for 1.x use .s1p or .s2p", path)
     return _read_v1(path, body, n_ports)
+
+
+def _check_last_line(path: Path, body: list[str]) -> None:
+    """Refuse a file cut off in the middle of its last data line.
+
+    A file that stops without a line break may have been cut by a full disk
+    or an interrupted copy.  Instruments print every row alike, so a last row
+    with fewer numbers, or a last number with fewer characters than the same
+    column of the row before, is taken as cut off.
+    """
+    rows = [i for i, b in enumerate(body) if b and b[0] not in "#["]
+    if len(rows) < 2:
+        return
+    last, prev = body[rows[-1]].split(), body[rows[-2]].split()
+    if len(last) < len(prev) or (len(last) == len(prev) and len(last[-1]) < len(prev[-1])):
+        raise ZfitInputError(
+            "the file ends in the middle of this line (no line break after it, and it is shorter than the "
+            "line before): the file looks truncated; copy it again from the instrument",
+            path,
+            rows[-1] + 1,
+        )
 
 
 def _first_data_line(body) -> int | None:
@@ -348,8 +377,13 @@ def _numbers_wrapped(path, data, idx, counts, per_row, n_ports):
         # (row 0 always does): that row, begun on that line, has the wrong length.
         r = int(np.flatnonzero(misaligned)[0]) - 1 if misaligned.any() else row_starts.size - 1
         k = int(pos[max(r, 0)])
+        hint = ""
+        if n_ports == 1 and np.all(counts == 9):
+            hint, k = "; every line has 9, as a two-port file: rename it .s2p", 0
+        elif n_ports == 2 and np.all(counts == 3):
+            hint, k = "; every line has 3, as a one-port file: rename it .s1p", 0
         raise ZfitInputError(
-            f"expected {per_row} numbers per frequency ({what}), found {int(counts[k])} on this line",
+            f"expected {per_row} numbers per frequency ({what}), found {int(counts[k])} on this line{hint}",
             path,
             int(idx[k]) + 1,
         )
@@ -509,8 +543,17 @@ def _triangle_matrix(values, opt, matrix, n_ports, r0) -> np.ndarray:
 def _skrf_touchstone(path: Path):
     import skrf.io.touchstone as ts_module
 
+    source = str(path)
+    with open(path, "rb") as fh:
+        utf16 = fh.read(2) in (b"\xff\xfe", b"\xfe\xff")
+    if utf16:
+        # scikit-rf guesses among 8-bit encodings only: hand it the decoded text.
+        import io
+
+        source = io.StringIO(_text(path))
+        source.name = path.name
     try:
-        return ts_module.Touchstone(str(path))
+        return ts_module.Touchstone(source)
     except ZfitInputError:
         raise
     except Exception as exc:  # scikit-rf raises bare ValueError/IndexError/KeyError
