@@ -165,3 +165,14 @@ def test_plan_json_validates_against_its_schema(plans):
     bad["connections"]["shunt-thru"]["parameters"]["ESR"]["resolved"] = "yes"
     with pytest.raises(jsonschema.ValidationError):
         jsonschema.Draft202012Validator(schema).validate(bad)
+
+
+@pytest.mark.parametrize("args, message", [
+    (["--band", "1G:1k"], "band must be two frequencies low:high with 0 < low < high, got 1G Hz:1k Hz"),
+    (["--points", "100000000"], "a plan takes at most 100001 points (more than any analyser sweeps), got 100000000"),
+    (["--reference", "0"], "the reference impedance must be a positive number of ohm, got 0"),
+])
+def test_bad_plan_options_are_refused_before_any_work(args, message):
+    r = CliRunner().invoke(app, ["plan", "inductor", "--L", "10u", "--C_p", "5p", "--R_s", "50m", *args])
+    assert r.exit_code == 2 and "Traceback" not in r.output
+    assert r.stderr == f"zfit: error: {message}\n"

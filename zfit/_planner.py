@@ -349,6 +349,11 @@ def _check_params(model, params):
     return out
 
 
+#: Upper limit of `plan_measurement`'s points: analysers sweep at most some
+#: ten to twenty thousand points (from memory); more only costs time.
+MAX_POINTS = 100_001
+
+
 def plan_measurement(
     model: str,
     params,
@@ -402,9 +407,16 @@ def plan_measurement(
     params = _check_params(model, dict(params))
     lo, hi = (float(band[0]), float(band[1]))
     if not (0 < lo < hi and math.isfinite(hi)):
-        raise ZfitInputError(f"band must be two frequencies low:high with 0 < low < high, got {lo:g}:{hi:g}")
+        from ._units import format_eng
+
+        raise ZfitInputError(f"band must be two frequencies low:high with 0 < low < high, got "
+                             f"{format_eng(lo, 'Hz')}:{format_eng(hi, 'Hz')}")
     if int(points) < 10:
         raise ZfitInputError(f"a plan needs at least 10 points, got {points}")
+    if int(points) > MAX_POINTS:
+        raise ZfitInputError(f"a plan takes at most {MAX_POINTS} points (more than any analyser sweeps), got {points}")
+    if not (math.isfinite(float(reference_ohm)) and float(reference_ohm) > 0):
+        raise ZfitInputError(f"the reference impedance must be a positive number of ohm, got {float(reference_ohm):g}")
     for c in connections:
         if c not in PLAN_CONNECTIONS:
             raise ZfitInputError(f"unknown connection {c!r}; use one of {', '.join(PLAN_CONNECTIONS)}")
