@@ -28,6 +28,14 @@ def test_parse_grid_rejects(bad):
         parse_grid(bad)
 
 
+@pytest.mark.parametrize("text, n", [("40:30M:100000000", 100000000), ("1k:1G:200000/dec", 1200001)])
+def test_parse_grid_refuses_a_grid_too_large_to_write(text, n):
+    # 1e8 points used to run for minutes and fill the memory before any message.
+    with pytest.raises(ZfitInputError) as info:
+        parse_grid(text)
+    assert str(info.value) == f"--touchstone-grid: {text!r} asks for {n} points; at most 1000001 are written"
+
+
 @pytest.mark.parametrize("r0", [50.0, 75.0])
 def test_touchstone_round_trip_through_skrf(tmp_path, r0):
     import skrf

@@ -23,6 +23,11 @@ __all__ = ["parse_grid", "touchstone_text", "write_touchstone"]
 _GRID = re.compile(r"^\s*([^:]+):([^:]+)(?::\s*(\d+)\s*(/dec|lin)?)?\s*$")
 
 
+#: Most points a Touchstone grid may have: a million rows is some 50 MB of
+#: text, far beyond any use; larger requests are typing slips.
+MAX_GRID_POINTS = 1_000_001
+
+
 def parse_grid(text: str, what: str = "--touchstone-grid") -> np.ndarray:
     """Return a frequency grid in Hz from its text.
 
@@ -49,6 +54,10 @@ def parse_grid(text: str, what: str = "--touchstone-grid") -> np.ndarray:
     hi = parse_quantity(m.group(2), what)
     n = int(m.group(3)) if m.group(3) else 801
     mode = m.group(4) or "log"
+    if mode == "/dec" and 0 < lo < hi:
+        n = max(2, int(math.ceil(n * math.log10(hi / lo))) + 1)
+    if n > MAX_GRID_POINTS:
+        raise ZfitInputError(f"{what}: {text!r} asks for {n} points; at most {MAX_GRID_POINTS} are written")
     if mode == "lin":
         if not (0 <= lo < hi) or n < 2:
             raise ZfitInputError(f"{what}: a linear grid needs 0 <= START < STOP and at least 2 points")
@@ -56,8 +65,6 @@ def parse_grid(text: str, what: str = "--touchstone-grid") -> np.ndarray:
         return f[f > 0] if f[0] == 0 else f
     if not (0 < lo < hi):
         raise ZfitInputError(f"{what}: a logarithmic grid needs 0 < START < STOP (got {text!r})")
-    if mode == "/dec":
-        n = max(2, int(math.ceil(n * math.log10(hi / lo))) + 1)
     if n < 2:
         raise ZfitInputError(f"{what}: at least 2 points are needed")
     return np.geomspace(lo, hi, n)
