@@ -213,3 +213,20 @@ def test_schematic_draws_every_element():
     dots = [ln for ln in fig.axes[0].lines if ln.get_marker() == "o" and len(ln.get_xdata()) == 3]
     assert len(dots) == 2
     _close(fig)
+
+
+def test_schematic_labels_of_a_series_chain_do_not_overlap():
+    # At the report's width (1.95 in) the three labels of a capacitor's series
+    # chain used to run into each other ("ESL = 900 pHC = 100 nF").
+    from zfit._plots import plot_schematic
+
+    tree = ("series", [("R", "ESR = 8.02 mΩ"), ("L", "ESL = 900 pH"), ("C", "C = 100 nF")])
+    fig = plot_schematic(tree, width_in=1.95)
+    renderer = fig.canvas.get_renderer()
+    boxes = sorted((t.get_window_extent(renderer) for t in fig.axes[0].texts if (t.get_gid() or "").startswith("element-")),
+                   key=lambda b: b.x0)
+    assert len(boxes) == 3
+    gaps = [b.x0 - a.x1 for a, b in zip(boxes, boxes[1:])]
+    assert min(gaps) > 0.0  # pixels between neighbouring labels
+    sizes = {t.get_fontsize() for t in fig.axes[0].texts if (t.get_gid() or "").startswith("element-")}
+    assert len(sizes) == 1 and 3.5 <= sizes.pop() <= 6.0

@@ -870,6 +870,7 @@ def _draw_element(ax, kind, label, x0, y, w):
             ax.plot([xp, xp], [y - 0.12, y + 0.12], color=INK, lw=1.4)
     t = ax.text(x0 + w / 2, y + 0.13, label, ha="center", va="bottom", fontsize=6.0, color=INK)
     t.set_gid(f"element-{label.split('=')[0].strip()}")
+    t.zfit_room = w  # the width the label may take, for _fit_labels
 
 
 def _draw(ax, node, x0, y, width):
@@ -904,6 +905,22 @@ def _draw(ax, node, x0, y, width):
 
 
 @_styled
+def _fit_labels(fig, ax) -> None:
+    """Shrink element labels wider than their element, so that neighbours never overlap."""
+    renderer = fig.canvas.get_renderer()
+    x_lo, x_hi = ax.get_xlim()
+    per_pixel = (x_hi - x_lo) / max(ax.bbox.width, 1e-9)
+    labels = [t for t in ax.texts if getattr(t, "zfit_room", None) is not None]
+    if not labels:
+        return
+    # One size for every label (the one the widest needs), for an even drawing.
+    scale = min(1.0, *(0.94 * t.zfit_room / max(t.get_window_extent(renderer).width * per_pixel, 1e-12)
+                       for t in labels))
+    if scale < 1.0:
+        for t in labels:
+            t.set_fontsize(max(3.5, t.get_fontsize() * scale))
+
+
 def plot_schematic(tree, *, title: str = "", width_in: float = 3.4, height_in: float | None = None):
     """Return a drawing of a series-parallel R-L-C network with its element values.
 
@@ -945,6 +962,7 @@ def plot_schematic(tree, *, title: str = "", width_in: float = 3.4, height_in: f
     # Limits in the figure's own aspect, so that symbols keep their shape.
     ax.set_xlim(-0.35, w + 0.35)
     ax.set_ylim(y0 + top - (w + 0.7) * height_in / width_in, y0 + top)
+    _fit_labels(fig, ax)
     if title:
         ax.set_title(title, loc="left")
     return fig
