@@ -197,3 +197,16 @@ def test_capacitor_report_has_losses_plot(capacitor, tmp_path):
     assert "Losses" in page and "C_eff" in page
     C = capacitor.parameters["C"]
     assert abs(C.value - 47e-9) < 3 * C.std
+
+
+def test_small_dimensionless_values_share_one_power_of_ten():
+    # A D of 5e-5 printed "5.037e-05 ± 1.5e-07"; GUM (JCGM 100:2008, 7.2.6) style
+    # gives the uncertainty two digits and the value the same decimal place.
+    from types import SimpleNamespace
+
+    from zfit._outputs import _dimensionless, _percent_std
+
+    assert _dimensionless(SimpleNamespace(value=5.037e-05, std=1.5e-07)) == "(50.37 ± 0.15)e-6"
+    assert _dimensionless(SimpleNamespace(value=123456.0, std=789.0)) == "(123.46 ± 0.79)e3"
+    assert _dimensionless(SimpleNamespace(value=0.0176, std=0.0003)) == "0.01760 ± 0.00030"
+    assert _percent_std(8.198770868, 0.0826699) == "8.199 ± 0.083 %"

@@ -479,7 +479,20 @@ def _dimensionless(e) -> str:
     if 1.0 <= abs(v) < 1e4 or (1e-3 <= abs(v) < 1.0 and u >= 1e-7):
         decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
         return f"{v:.{decimals}f} ± {u:.{decimals}f}"
-    return f"{v:.4g} ± {u:.2g}"
+    # A common power of ten (a multiple of 3) for both, the uncertainty to two
+    # digits and the value to the same place (GUM, JCGM 100:2008, 7.2.6).
+    e = int(math.floor(math.log10(abs(v) if v else u) / 3.0)) * 3
+    m, mu = v / 10.0**e, u / 10.0**e
+    decimals = min(max(0, 1 - int(math.floor(math.log10(mu)))), 9)
+    return f"({m:.{decimals}f} ± {mu:.{decimals}f})e{e}"
+
+
+def _percent_std(v, u) -> str:
+    """A percentage with its uncertainty, both to the uncertainty's second digit (GUM 7.2.6)."""
+    if not u or not math.isfinite(u) or u <= 0:
+        return f"{v:.3g} %"
+    decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
+    return f"{v:.{decimals}f} ± {u:.{decimals}f} %"
 
 
 def _spot_table(result):
@@ -719,7 +732,7 @@ def _step_facts(result) -> list:
         rows.append(("10-90 % transition", pretty_std(result.transition_10_90_s, result.transition_10_90_std_s, "s")))
     if result.overshoot_pct is not None:
         std = result.overshoot_std_pct
-        rows.append(("overshoot", f"{result.overshoot_pct:.3g} %" + (f" ± {std:.2g} %" if std else "")))
+        rows.append(("overshoot", _percent_std(result.overshoot_pct, std)))
     if result.time_constant_s is not None:
         rows.append(("time constant", pretty_std(result.time_constant_s, result.time_constant_std_s, "s")
                      + f" ({result.time_constant_method})"))
