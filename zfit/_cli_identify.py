@@ -43,6 +43,11 @@ def identify_command(
     json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.identify/1 JSON result here ('-' for standard output)."),
     plot: Optional[Path] = typer.Option(None, "--plot", help="Write a plot of data, models and residuals (.png or .svg)."),
     netlist: Optional[Path] = typer.Option(None, "--netlist", help="Write a SPICE subcircuit of the model (.cir, .sp or .lib)."),
+    netlist_kind: str = typer.Option(
+        "auto", "--netlist-kind",
+        help="What --netlist holds: circuit (the equivalent circuit's elements), rational (the full-band rational "
+             "model as a passive R-L-C network) or auto (the reported model).",
+    ),
     touchstone: Optional[Path] = typer.Option(None, "--touchstone", help="Write the model's impedance as a one-port Touchstone file (.s1p)."),
     touchstone_grid: Optional[str] = typer.Option(None, "--touchstone-grid", help="Grid of the Touchstone file START:STOP[:N] (log) or START:STOP:Nlin, e.g. 1k:1G:801 (default: the sweep's)."),
     report: Optional[Path] = typer.Option(None, "--report", help="Write a self-contained HTML report (.html)."),
@@ -71,13 +76,17 @@ def identify_command(
     """
     from ._atomic import check_writable, write_atomic
     from ._cli_common import sweep_from_options
-    from ._errors import MeasurementWarning
+    from ._errors import MeasurementWarning, ZfitInputError
     from ._identify import identify
 
     # Refuse before any work if an output exists (nothing is overwritten without --force).
     for out in (json_path, plot, netlist, touchstone, report):
         if out is not None and str(out) != "-":
             check_writable(out, force)
+    if netlist_kind not in ("auto", "circuit", "rational"):
+        raise ZfitInputError(f"--netlist-kind {netlist_kind!r}: use circuit, rational or auto")
+    if netlist_kind != "auto" and netlist is None:
+        raise ZfitInputError("--netlist-kind needs --netlist PATH")
     freqs = quantities(at, "--at")
     r_dc = quantity(rdc, "--rdc")
     r_dc_std = quantity(rdc_std, "--rdc-std")
@@ -115,6 +124,7 @@ def identify_command(
         written = write_outputs(
             result, plot=plot, netlist=netlist, touchstone=touchstone, touchstone_grid=touchstone_grid,
             report=report, force=force, command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:]),
+            netlist_kind=netlist_kind,
         )
         for path in written:
             typer.echo(f"wrote {path}", err=to_stdout)
@@ -139,6 +149,11 @@ def summary_lines(result) -> list[str]:
     if len(result.parameters):
         out.append("parameters (value ± standard uncertainty):")
         for key, est in result.parameters.items():
+            text = est.unresolved_text() if hasattr(est, "unresolved_text") else None
+            if text is not None:
+                # A number that is only noise is not printed.
+                out.append(f"  {key:<7}{text}")
+                continue
             rel = ""
             if est.std is not None and est.value:
                 rel = f"  ({100 * est.std / abs(est.value):.2g} %)"

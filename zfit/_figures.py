@@ -40,6 +40,7 @@ import numpy as np
 
 __all__ = [
     "Estimate",
+    "ParameterEstimate",
     "Figure",
     "SRF",
     "SpotReadout",
@@ -97,6 +98,48 @@ class Estimate:
     def to_dict(self) -> dict:
         """Return ``{"value": float, "std": float|null, "unit": str}``."""
         return {"value": _num(self.value), "std": _num(self.std), "unit": self.unit}
+
+
+@dataclass(frozen=True)
+class ParameterEstimate(Estimate):
+    """A circuit parameter: an `Estimate` and whether the sweep resolves it.
+
+    Attributes
+    ----------
+    value, std, unit
+        As for `Estimate`.
+    resolved : bool
+        Whether the value lies on the resolved side of `resolution_limit`.
+    resolution_limit : float or None
+        The value at which the parameter's relative uncertainty, predicted
+        from the noise model, is 1/3 (`zfit._resolution`): the smallest
+        resolvable value, or for ``R_p`` and ``R_leak`` the largest; None
+        where no such value exists.
+    limit_kind : {'lower', 'upper'}
+        ``"lower"``: values below the limit are not resolved; ``"upper"``
+        (parallel losses): values above it.
+    """
+
+    resolved: bool = True
+    resolution_limit: float | None = None
+    limit_kind: str = "lower"
+
+    def to_dict(self) -> dict:
+        """Return ``{"value", "std", "unit", "resolved", "resolution_limit"}``."""
+        out = Estimate.to_dict(self)
+        out["resolved"] = bool(self.resolved)
+        out["resolution_limit"] = _num(self.resolution_limit)
+        return out
+
+    def unresolved_text(self) -> str | None:
+        """Return ``"below resolution, < X"`` (``"not resolved, > X"`` for an upper limit), or None when resolved."""
+        if self.resolved or self.resolution_limit is None:
+            return None
+        from ._units import format_eng
+
+        if self.limit_kind == "upper":
+            return f"not resolved, > {format_eng(self.resolution_limit, self.unit)}"
+        return f"below resolution, < {format_eng(self.resolution_limit, self.unit)}"
 
 
 @dataclass(frozen=True)

@@ -74,6 +74,10 @@ _SCREEN_NFEV = 30
 # this fraction of the BIC gain it must reach (see _optional_may_help).
 _OPTIONAL_SCREEN = 0.25
 
+# Resolution limits are solved in full only for parameters whose relative
+# uncertainty from the noise model exceeds this (half the 1/3 threshold).
+_RESOLUTION_SOLVE = 1.0 / 6.0
+
 # Pole count of the simplest rational model of each family's form.
 _SIMPLE_POLES = {"inductor": 2, "capacitor": 0}
 
@@ -699,12 +703,108 @@ def _summary(ref, rows):
     return _bic(ref.chi2, rows, ref.circuit.n_params)
 
 
-def _estimates(ref):
+def _estimates(ref, sweep=None, mask=None):
+    """The parameters of a fit with their uncertainties and, given the sweep, their resolution."""
+    from ._figures import ParameterEstimate
+    from ._resolution import RESOLUTION_KIND
+
     stds = ref.stds
+    limits = {} if sweep is None else resolution_limits_of(ref, sweep, mask)
     return ParameterMap(
-        (k, Estimate(float(v), float(s) if math.isfinite(s) else None, ref.circuit.units[k]))
+        (k, ParameterEstimate(
+            float(v), float(s) if math.isfinite(s) else None, ref.circuit.units[k],
+            resolved=limits.get(k, (True, None))[0], resolution_limit=limits.get(k, (True, None))[1],
+            limit_kind=RESOLUTION_KIND.get(k, "lower"),
+        ))
         for k, v, s in zip(ref.circuit.keys, ref.values, stds)
     )
+
+
+def resolution_limits_of(ref, sweep, mask=None) -> dict:
+    """Return ``{key: (resolved, limit)}`` for each parameter of a circuit fit.
+
+    The resolution limit is that of `zfit._resolution` (the value at which
+    the parameter's relative uncertainty, predicted from the Fisher
+    information of the sweep's noise model with the noise following the
+    value, is 1/3; an upper limit for R_p and R_leak).  Solving for it costs
+    several Fisher evaluations per parameter, so it is solved only where it
+    matters: for a parameter whose relative uncertainty from the noise model
+    (the fit's covariance without the reduced chi-square factor) exceeds
+    `_RESOLUTION_SOLVE` (half the threshold).  A parameter below that is
+    resolved by a wide margin and gets no limit (None): a first-order guess
+    such as ``3 std`` would be wrong by decades for L or C, whose noise
+    follows the value through the connection (measured: 1e-12 H against
+    2e-11 H for a 100 nH coil in reflection), and solving costs more than
+    the whole identification.
+
+    Parameters
+    ----------
+    ref : Refinement
+        The reported circuit fit.
+    sweep : Sweep
+        The measurement (frequencies, sigma, connection, noise model).
+    mask : array_like of bool, optional
+        The points the circuit was fitted to (all by default).
+    """
+    from ._resolution import is_resolved
+
+    circuit = ref.circuit
+    values = np.asarray(ref.values, float)
+    red = ref.reduced_chi2 if math.isfinite(ref.reduced_chi2) and ref.reduced_chi2 > 0 else 1.0
+    with np.errstate(all="ignore"):
+        rel = np.sqrt(np.clip(np.diag(ref.log_cov), 0.0, None) / red)
+    solver = None
+    out = {}
+    for i, key in enumerate(circuit.keys):
+        v, r = float(values[i]), float(rel[i])
+        if math.isfinite(r) and r < _RESOLUTION_SOLVE:
+            limit = None
+        else:
+            if solver is None:
+                solver = _limit_solver(circuit, values, sweep, mask)
+            try:
+                limit = solver(key)
+            except (ValueError, ArithmeticError, np.linalg.LinAlgError):
+                limit = None
+        if limit is not None and not (math.isfinite(limit) and limit > 0):
+            limit = None
+        out[key] = (bool(is_resolved(key, v, limit)), None if limit is None else float(limit))
+    return out
+
+
+def _limit_solver(circuit, values, sweep, mask):
+    """A function key -> resolution limit, the computation of `zfit._resolution.limits_for` for one key."""
+    from ._connection import NA_CONNECTIONS, InstrumentNoise
+    from ._resolution import RESOLUTION_KIND, _limit, _sigma_shape, fisher_uncertainties
+
+    sel = slice(None) if mask is None else np.asarray(mask, bool)
+    f = np.asarray(sweep.f_hz, float)[sel]
+    sigma = np.asarray(sweep.sigma_ohm, float)[sel]
+    model = circuit.family
+    params = circuit.mapping(values)
+    connection = sweep.connection
+    z0 = 50.0 if sweep.reference_ohm is None else float(sweep.reference_ohm)
+    noise = sweep.noise
+    if noise is None and connection in NA_CONNECTIONS:
+        noise = InstrumentNoise()
+    base = _sigma_shape(circuit.impedance(values, f), connection, z0, noise)
+
+    def rel_std(key, x):
+        p = dict(params)
+        p[key] = x
+        sig = sigma
+        if base is not None:
+            with np.errstate(all="ignore"):
+                sig = sigma * _sigma_shape(circuit.impedance(circuit.vector(p), f), connection, z0, noise) / base
+        if not np.all(np.isfinite(sig) & (sig > 0)):
+            return math.inf
+        return fisher_uncertainties(model, p, f, sig)[key] / x
+
+    def solve(key):
+        v = abs(float(params[key]))
+        return _limit(lambda x: rel_std(key, x), v if v != 0 else 1e-3, RESOLUTION_KIND.get(key, "lower"))
+
+    return solve
 
 
 def _correlation(ref):
@@ -1062,16 +1162,20 @@ def identify(
             )
 
     # 5. Figures.
-    est = _estimates(chosen)
+    est = _estimates(chosen, sweep, fitted_mask)
     for key, e in est.items():
-        if e.std is None or not (e.std <= UNRESOLVED_REL * abs(e.value)):
+        hint = " (a four-wire --rdc measurement can pin it)" if key in ("R_s", "ESR") and rdc is None else ""
+        text = e.unresolved_text()
+        if text is not None:
+            notes.append(f"{key}: {text} (where its relative uncertainty from the noise model reaches 1/3); "
+                         f"the fitted value is only noise{hint}")
+        elif e.std is None or not (e.std <= UNRESOLVED_REL * abs(e.value)):
             if e.std is None:
                 rel = "unknown"
             elif e.std > 10 * abs(e.value):
                 rel = "more than ten times the value"
             else:
                 rel = f"{100 * e.std / abs(e.value):.0f} %"
-            hint = " (a four-wire --rdc measurement can pin it)" if key in ("R_s", "ESR") and rdc is None else ""
             notes.append(f"{key} is not resolved by this sweep (relative uncertainty {rel}){hint}")
     if prior is not None and chosen.prior_pull is not None and abs(chosen.prior_pull) > 3.0:
         notes.append(
@@ -1102,12 +1206,19 @@ def identify(
                   chosen=(ref.circuit == chosen.circuit))
         for b, ref in cands
     )
-    return _finish(Identification(
+    result = Identification(
         sweep=sweep, model=family, topology=chosen.circuit.topology, parameters=est, rational=rational,
         srf=srf, fit=fit, spot=spots, figures=figures, curves=curves_of(reader), candidates=candidates,
         correlation=_correlation(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
         refinement=chosen,
-    ), notes)
+    )
+    # A flat resistive floor of a shunt-thru capacitor is the cable-shield ground loop, not ESR.
+    from ._resolution import ground_loop_warning
+
+    loop = ground_loop_warning(sweep, result)
+    if loop is not None:
+        notes.append(loop)
+    return _finish(result, notes)
 
 
 def _finish(result: Identification, notes) -> Identification:
