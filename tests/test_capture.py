@@ -213,3 +213,21 @@ def test_interval_in_header_and_an_unnamed_time_column(tmp_path, two_channel):
     # The first column steps by the interval: it is the time, not a channel.
     assert cap.names == ("col2",) and cap.file_columns == (2,)
     assert cap.t0 == pytest.approx(t[0]) and cap.dt == pytest.approx(dt, rel=1e-9)
+
+
+def test_absurd_magnitudes_and_utf16_are_one_line_errors(tmp_path, two_channel):
+    t, dt, a, b = two_channel
+    b = b.copy()
+    b[7] = 1e300  # a wrong column or unit: its square overflows the spectra
+    p = tmp_path / "huge.csv"
+    p.write_text(_scope_text(t, [a, b]))
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(p)
+    # Header on line 1, sample 7 on line 9.
+    assert str(info.value) == (f"{p}:9: channel CH2: sample 1e+300 is beyond 1e+12 in magnitude, not a voltage "
+                               "(a wrong column or unit?)")
+    w = tmp_path / "wide.csv"
+    w.write_bytes(_scope_text(t, [a, a]).encode("utf-16"))
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(w)
+    assert str(info.value) == f"{w}: is UTF-16 text; save it as ASCII or UTF-8 (for example: iconv -f UTF-16 -t UTF-8 IN > OUT.csv)"

@@ -217,11 +217,18 @@ def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "",
                    file_columns=tuple(file_columns))
 
 
+#: Largest magnitude taken as a sample (V, or A through a current probe): a
+#: value beyond it is a unit or column mistake, and would overflow the
+#: spectra (squares of 1e300 are infinite).
+MAX_SAMPLE = 1e12
+
+
 def _check_finite(a: np.ndarray, name: str, source, first_line: int | None = None):
     # The sum is finite exactly when every sample is (barring overflow, which
     # the exact scan below then sorts out): one fast pass for the usual case.
     if a.size and math.isfinite(float(np.sum(a))):
-        return
+        if max(float(a.max()), -float(a.min())) <= MAX_SAMPLE:
+            return
     # Block-wise, so that a 10-million-sample channel needs no 10-million bool temporary.
     step = 1 << 20
     for i in range(0, a.size, step):
@@ -232,6 +239,14 @@ def _check_finite(a: np.ndarray, name: str, source, first_line: int | None = Non
             where = "" if line is not None else f" (sample {k})"
             raise ZfitInputError(f"channel {name}: sample is not a finite number (NaN, inf or an overrange mark){where}",
                                  source, line)
+    for i in range(0, a.size, step):
+        big = np.abs(a[i:i + step]) > MAX_SAMPLE
+        if big.any():
+            k = i + int(np.flatnonzero(big)[0])
+            line = None if first_line is None else first_line + k
+            where = "" if line is not None else f" (sample {k})"
+            raise ZfitInputError(f"channel {name}: sample {a[k]:.3g} is beyond {MAX_SAMPLE:.0e} in magnitude, not a "
+                                 f"voltage (a wrong column or unit?){where}", source, line)
 
 
 def clipped_fraction(x: np.ndarray) -> tuple[float, float]:
@@ -550,6 +565,10 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
         head = fh.read(_HEAD_BYTES)
     if not head.strip():
         raise ZfitInputError("the file is empty", path)
+    if head[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        # The fast C parser reads 8-bit text; a 10-million-sample UTF-16 file is better converted once.
+        raise ZfitInputError("is UTF-16 text; save it as ASCII or UTF-8 (for example: iconv -f UTF-16 -t UTF-8 "
+                             "IN > OUT.csv)", path)
     if b"\x00" in head[:4096]:
         raise ZfitInputError("binary file; expected delimited text, .npy or .npz", path)
     text = head.decode("utf-8", errors="replace")
