@@ -14,6 +14,7 @@ References used below, named at each check:
 
 import json
 import math
+import re
 import warnings
 
 import numpy as np
@@ -411,3 +412,26 @@ def test_sweep_and_capture_paths_agree(coil_capture, rng):
         e1, e2 = a.parameters[key], r.impedance.parameters[key]
         # Agreement within the combined standard uncertainties (k = 3).
         assert abs(e1.value - e2.value) < 3 * math.hypot(e1.std, e2.std), key
+
+
+def test_disagreeing_time_constants_are_warned_in_engineering_notation():
+    # A first-order response (tau = 2 us, scipy.signal.lfilter as the reference
+    # filter) driven 1.5x past a 1 V rail: clipping flattens the edge, so the fit
+    # and the low-to-midpoint time / ln 2 disagree; the warning names them as 1.536u s, not 1.536e-06 s.
+    from scipy.signal import lfilter
+
+    from zfit import MeasurementWarning
+    from zfit._capture import make_capture
+    from zfit._step import analyse_capture
+
+    dt, n, tau = 1e-8, 20000, 2e-6
+    t = np.arange(n) * dt
+    sq = ((t // 20e-6) % 2).astype(float)
+    a = np.exp(-dt / tau)
+    y = np.clip(lfilter([1 - a], [1, -a], sq) * 1.5, 0.0, 1.0)
+    with pytest.warns(MeasurementWarning) as record:
+        analyse_capture(make_capture({"CH1": sq, "CH2": y}, dt), input="CH1", output="CH2")
+    texts = [str(w.message) for w in record if "differ by more than 10 %" in str(w.message)]
+    assert len(texts) == 1
+    assert re.search(r"the time constant of the fit \(\d+(\.\d+)?u s\) and the low-to-midpoint time / ln 2 "
+                     r"\(\d+(\.\d+)?u s\)", texts[0]), texts[0]

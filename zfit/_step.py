@@ -31,6 +31,7 @@ from ._errors import FitError, MeasurementWarning, ZfitInputError
 from ._response import (
     DEFAULT_COHERENCE_MIN, DEFAULT_ENERGY_MIN_DB, FrequencyResponse, edge_response, impedance_sweep, prev_fast_len,
 )
+from ._units import format_eng
 
 __all__ = [
     "Levels", "state_levels", "find_edges", "matrix_pencil", "Ringing", "StrayCapacitance",
@@ -1133,8 +1134,8 @@ def analyse_capture(
                 if mid1 is not None:
                     tau_mid, tau_mid_std = mid1
             if tau is not None and tau_mid is not None and abs(tau_mid - tau) > 0.1 * tau:
-                warn(f"the time constant of the fit ({tau:.4g} s) and the low-to-midpoint time / ln 2 "
-                     f"({tau_mid:.4g} s) differ by more than 10 %: the response is not a single time constant")
+                warn(f"the time constant of the fit ({format_eng(tau, 's')}) and the low-to-midpoint time / ln 2 "
+                     f"({format_eng(tau_mid, 's')}) differ by more than 10 %: the response is not a single time constant")
 
         # ---- ringing on the averaged output after the edge arrives
         arr_avg = _output_edges(avg_y[None, :], out_lv, 0)[3][0]
