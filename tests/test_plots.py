@@ -230,3 +230,23 @@ def test_schematic_labels_of_a_series_chain_do_not_overlap():
     assert min(gaps) > 0.0  # pixels between neighbouring labels
     sizes = {t.get_fontsize() for t in fig.axes[0].texts if (t.get_gid() or "").startswith("element-")}
     assert len(sizes) == 1 and 3.5 <= sizes.pop() <= 6.0
+
+
+def test_bode_joins_only_the_usable_bins():
+    # A square wave has no energy at its even harmonics: those bins of H1 are
+    # noise (coherence near 0) and must not be joined into the measured curve.
+    import scipy.signal
+
+    f = 1e4 * np.arange(1, 101)
+    _, h = scipy.signal.freqs([1.0], [1e-5, 1.0], worN=2 * np.pi * f)  # reference: first-order low-pass
+    usable = (np.arange(f.size) % 2) == 0  # the odd harmonics 10k, 30k, ...
+    noisy = np.where(usable, h, 1e-3 * np.exp(1j * np.arange(f.size)))
+    coh = np.where(usable, 0.99, 0.02)
+    fig = plot_bode(f, noisy, coh, usable=usable, h_std=0.01 * np.abs(h), usable_band_hz=(1e4, 1e6))
+    x, y = _xy(fig, "h-mag-db")
+    np.testing.assert_array_equal(x, f[usable])
+    np.testing.assert_allclose(y, 20 * np.log10(np.abs(h[usable])), rtol=1e-13)
+    x, y = _xy(fig, "h-mag-db-unused")
+    np.testing.assert_array_equal(x, f[~usable])
+    assert _xy(fig, "coherence")[1].size == f.size  # every bin's coherence is still shown
+    _close(fig)

@@ -704,7 +704,8 @@ def _step_plot_data(result) -> dict:
     if resp is not None and resp.f_hz.size:
         pos = resp.f_hz > 0
         d.update({"f_hz": resp.f_hz[pos], "h": resp.h[pos], "coherence": resp.coherence[pos],
-                  "h_std": resp.h_std[pos], "usable_band_hz": tuple(result.usable_band_hz)})
+                  "h_std": resp.h_std[pos], "usable": resp.usable[pos],
+                  "usable_band_hz": tuple(result.usable_band_hz)})
     d["subtitle"] = (f"{Path(str(result.source)).name} · input {in_name or 'none (single channel)'} · output {out_name} · "
                      f"{result.n_samples} samples at {pretty(result.sample_rate_hz, 'Hz')}"
                      + (f" · sense resistor {pretty(result.shunt_ohm, 'ohm')}" if result.shunt_ohm else ""))
@@ -790,7 +791,7 @@ def step_figures(result, titles: bool = True, impedance: bool = True, sizes: dic
     }
     if d.get("f_hz") is not None:
         figs["bode"] = plot_bode(d["f_hz"], d["h"], d["coherence"], usable_band_hz=d["usable_band_hz"],
-                                 h_std=d.get("h_std"),
+                                 h_std=d.get("h_std"), usable=d.get("usable"),
                                  title="Response H = V_out / V_in (H1 estimate)" if titles else "", **size("bode"))
     ident = d.get("identification")
     if ident is not None and impedance:

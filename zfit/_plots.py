@@ -609,6 +609,7 @@ def plot_bode(
     usable_band_hz: tuple[float, float] | None = None,
     h_std=None,
     h_model=None,
+    usable=None,
     model_label: str = "fitted model",
     title: str = "",
     width_in: float = 7.2,
@@ -630,6 +631,12 @@ def plot_bode(
         Standard uncertainty of |H| (linear); a +-2 sigma band is drawn in dB.
     h_model : array_like, optional
         A model's response at `f_hz` to overlay.
+    usable : array_like of bool, optional
+        Which bins the estimate may be used at (input energy and coherence
+        high enough).  The measured curves and their band join only these;
+        the other bins are drawn as faint dots (a square wave has no energy
+        at its even harmonics, so every other bin is noise).  All bins are
+        joined when None.
     model_label : str
         Legend text of the model.
     title : str
@@ -648,23 +655,33 @@ def plot_bode(
     coh = np.asarray(coherence, dtype=float)
     fig, (ax_m, ax_p, ax_c) = _figure(width_in, height_in, [2.2, 1.4, 1.0])
     mag_db = 20 * np.log10(np.maximum(np.abs(h), 1e-300))
+    phase = np.degrees(np.angle(h))
+    use = np.ones(f.size, dtype=bool) if usable is None else np.asarray(usable, dtype=bool)
     if h_std is not None:
-        s = np.asarray(h_std, dtype=float)
-        a = np.abs(h)
+        s = np.asarray(h_std, dtype=float)[use]
+        a = np.abs(h)[use]
         lo = 20 * np.log10(np.maximum(a - 2 * s, a * 1e-3 + 1e-300))
         hi = 20 * np.log10(a + 2 * s)
-        b = ax_m.fill_between(f, lo, hi, color=BAND, lw=0, label="measured ±2σ", zorder=1)
+        b = ax_m.fill_between(f[use], lo, hi, color=BAND, lw=0, label="measured ±2σ", zorder=1)
         b.set_gid("h-band")
-    me = _markevery(f.size)
-    ax_m.plot(f, mag_db, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me, label="measured (H1)",
-              gid="h-mag-db", zorder=3)
-    ax_p.plot(f, np.degrees(np.angle(h)), color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me,
+    me = _markevery(int(np.count_nonzero(use)))
+    ax_m.plot(f[use], mag_db[use], color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me,
+              label="measured (H1)", gid="h-mag-db", zorder=3)
+    ax_p.plot(f[use], phase[use], color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me,
               gid="h-phase", zorder=3)
+    if not use.all():
+        faint = dict(ls="none", marker=".", ms=2.0, color="#9a9a9a", zorder=2)
+        ax_m.plot(f[~use], mag_db[~use], label="bins not used", gid="h-mag-db-unused", **faint)
+        ax_p.plot(f[~use], phase[~use], gid="h-phase-unused", **faint)
     if h_model is not None:
         hm = np.asarray(h_model, dtype=complex)
         ax_m.plot(f, 20 * np.log10(np.abs(hm)), color=CIRCUIT, lw=1.4, label=model_label, gid="h-model-mag-db", zorder=4)
         ax_p.plot(f, np.degrees(np.angle(hm)), color=CIRCUIT, lw=1.4, gid="h-model-phase", zorder=4)
-    ax_c.plot(f, coh, color=INK, lw=0.9, gid="coherence", zorder=3)
+    if use.all():
+        ax_c.plot(f, coh, color=INK, lw=0.9, gid="coherence", zorder=3)
+    else:
+        # Every bin's coherence (it is why a bin is not used), as points.
+        ax_c.plot(f, coh, ls="none", marker=".", ms=2.5, color=INK, gid="coherence", zorder=3)
     if usable_band_hz is not None:
         for ax in (ax_m, ax_p, ax_c):
             span = ax.axvspan(usable_band_hz[0], usable_band_hz[1], color="#e4ecf5", lw=0, zorder=0,
