@@ -905,11 +905,17 @@ def identify(
     kind = {"inductor": "inductor", "capacitor": "capacitor", "rational": "general"}.get(model)
     if kind is None:
         kind = "capacitor" if _looks_capacitive(sweep) else "inductor"
+    scored = {}
+
     def rational_scores(rm):
         if rm is None:
             return None, None, None
+        if id(rm) in scored and scored[id(rm)][0] is rm:
+            return scored[id(rm)][1]
         e = np.abs(obs.normalized(rm.impedance(sweep.f_hz))) ** 2
-        return e, float(math.sqrt(np.mean(e))), _bic(float(2 * e.sum()), rows_full, _rational_k(rm))
+        out = e, float(math.sqrt(np.mean(e))), _bic(float(2 * e.sum()), rows_full, _rational_k(rm))
+        scored[id(rm)] = (rm, out)
+        return out
 
     # The simplest rational model of the family's form first (one pole pair for
     # an inductor, only the origin pole and the constant and s terms for a

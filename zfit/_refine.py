@@ -372,14 +372,14 @@ class _Solution:
 def _levenberg_marquardt(problem, theta0, lower, upper, max_nfev, xtol=1e-8, ftol=1e-8, gtol=1e-8):
     """Minimise the problem's cost from `theta0` within box bounds.
 
-    Levenberg-Marquardt with Nielsen's update of the damping (gain ratio of
-    actual to predicted decrease), the damping a multiple of the identity
-    (log-parameters are dimensionless and need no scaling), inside a trust
-    region on the largest component of the step: 1 at first (a factor e on
-    an element value), doubled after a step the model predicted well, halved
-    after a rejected one.  A parameter the data barely see cannot then leap
-    decades on one Gauss-Newton step onto a plateau where its gradient
-    vanishes.  A step that leaves the box is clipped to it.  It stops as
+    Levenberg-Marquardt with Marquardt's scaling of the damping by the
+    diagonal of the normal matrix (the log-parameters' curvatures span
+    decades) and Nielsen's update of it (gain ratio of actual to predicted
+    decrease), inside a trust region on the largest component of the step:
+    1 at first (a factor e on an element value), doubled after a step the
+    model predicted well, halved after a rejected one.  A parameter the
+    data barely see cannot then leap decades on one step onto a plateau
+    where its gradient vanishes.  A step that leaves the box is clipped to it.  It stops as
     ``scipy.optimize.least_squares`` does: relative cost change below
     `ftol` on an accepted step, step below ``xtol * (xtol + |x|)``, or the
     gradient small against the residual (cosine below `gtol`).  For a
@@ -401,8 +401,7 @@ def _levenberg_marquardt(problem, theta0, lower, upper, max_nfev, xtol=1e-8, fto
     if not math.isfinite(cost):
         return _Solution(x, cost, nfev)
     a, g = problem.normal(x)
-    eye = np.eye(x.size)
-    mu = 1e-3 * float(np.max(np.diag(a))) if np.all(np.isfinite(a)) else 1.0
+    mu = 1e-3
     nu = 2.0
     radius = 1.0
     while nfev < max_nfev:
@@ -412,7 +411,7 @@ def _levenberg_marquardt(problem, theta0, lower, upper, max_nfev, xtol=1e-8, fto
         if np.max(np.abs(g) / d) <= gtol * math.sqrt(max(2.0 * cost, 1e-300)):
             break
         try:
-            step = np.linalg.solve(a + mu * eye, -g)
+            step = np.linalg.solve(a + mu * np.diag(d * d), -g)
         except np.linalg.LinAlgError:
             mu = max(mu, 1e-300) * nu
             nu *= 2.0
@@ -507,29 +506,34 @@ def optional_element_gain(ref: "Refinement", obs: "Observation", prior: "Prior |
     circuit = ref.circuit
     if circuit.optional is not None:
         raise FitError(f"{circuit.topology} already has its optional element")
-    p = np.asarray(ref.values, float)
+    theta = np.log(np.asarray(ref.values, float))
     prior_index = None if prior is None else circuit.keys.index(prior.key)
-    theta = np.log(p)
+    problem = _Problem(circuit, obs, prior_index, prior)
+    problem.cost(theta)
+    p, d, slope = problem._p, problem._d, problem._slope
     zm = circuit.impedance(p, obs.f_hz)
     if circuit.family == "inductor":
         dz = -zm * zm
     else:
         zc = 1.0 / (1j * 2.0 * math.pi * obs.f_hz * p[0])
         dz = -zc * zc
-    jg = _SQRT2 * obs.slope(zm) * dz
-    jg = np.concatenate([jg.real, jg.imag])
-    r = _rows(theta, circuit, obs, prior_index, prior)
-    jac = _jac(theta, circuit, obs, prior_index, prior)
-    if prior is not None:
-        jg = np.append(jg, 0.0)
+    # Inner products of the real rows from the complex ones: u.v = 2 Re(u_c^H v_c)
+    # (rows sqrt(2) Re, sqrt(2) Im); the prior row has no G component.
+    jg = slope * dz
+    jc = circuit.log_jacobian(p, obs.f_hz) * slope[:, None]
     with np.errstate(all="ignore"):
-        norms = np.sqrt(np.einsum("ij,ij->j", jac, jac))
-        q, _ = np.linalg.qr(jac / np.where(norms > 0, norms, 1.0))
-        jp = jg - q @ (q.T @ jg)
-        rp = r - q @ (q.T @ r)
-        num = float(jp @ rp)
-        den = float(jp @ jp)
-    if not (math.isfinite(num) and math.isfinite(den)) or den <= 0:
+        a, g = problem.normal(theta)
+        jg_j = 2.0 * (jc.conj().T @ jg).real
+        jg_r = 2.0 * float(np.vdot(jg, d).real)
+        jg_jg = 2.0 * float(np.vdot(jg, jg).real)
+        try:
+            sol = np.linalg.solve(a, np.column_stack([jg_j, g]))
+        except np.linalg.LinAlgError:
+            return math.inf
+        # Projections of j_G and r off the base columns: j_G'.r = j_G.r - j_G.J a^-1 J.r, |j_G'|^2 likewise.
+        num = jg_r - float(jg_j @ sol[:, 1])
+        den = jg_jg - float(jg_j @ sol[:, 0])
+    if not (math.isfinite(num) and math.isfinite(den)) or den <= 1e-12 * max(jg_jg, 1e-300):
         return math.inf
     # G >= 0: the step -num/den must be positive.
     return num * num / den if num < 0 else 0.0
@@ -634,16 +638,21 @@ def refine(
         raise FitError(f"{circuit.topology}: no usable starting point for the refinement")
 
     theta = best.x
-    r = _rows(theta, circuit, obs, prior_index, prior)
-    data_r = r[:rows]
-    chi2 = float(data_r @ data_r)
+    data_only = _Problem(circuit, obs, None, None)
+    data_only.cost(theta)
+    d = data_only._d
+    chi2 = 2.0 * float(np.vdot(d, d).real)
     red = chi2 / (rows - k)
-    jac = _jac(theta, circuit, obs, prior_index, prior)
+    a_data, _ = data_only.normal(theta)
     # Data rows scaled by the reduced chi-square, the prior row by the user's own uncertainty.
-    jd = jac[:rows] / math.sqrt(max(red, 1e-300))
-    info = jd.T @ jd
+    info = a_data / max(red, 1e-300)
+    pull = None
     if prior is not None:
-        info = info + np.outer(jac[rows], jac[rows])
+        pv = math.exp(theta[prior_index])
+        row = np.zeros(k)
+        row[prior_index] = pv / prior.std
+        info = info + np.outer(row, row)
+        pull = float((pv - prior.value) / prior.std)
     # Equilibrated before the inversion: an element the data cannot see (its
     # log-column nearly zero, e.g. an ESL driven towards zero) keeps its
     # first-order uncertainty instead of being cut off by the pseudo-inverse.
@@ -652,7 +661,6 @@ def refine(
         log_cov = np.linalg.pinv(info * np.outer(scale, scale), rcond=1e-13, hermitian=True) * np.outer(scale, scale)
     except np.linalg.LinAlgError:
         log_cov = np.full((k, k), np.inf)
-    pull = None if prior is None else float(r[rows])
     return Refinement(
         circuit=circuit,
         values=np.exp(theta),

@@ -924,7 +924,8 @@ def _model_from(s, h, w, preal, pcplx, flags, w0, absolute_sigma, extra):
 #: ever smaller steps instead of settling to round-off.  A fit counts as
 #: converged also when, twice in a row, no pole moved by more than
 #: _SETTLED_POLES (relative) and the relocation residual changed by less than
-#: _SETTLED_RESIDUAL (relative): far below any pole's statistical uncertainty.
+#: _SETTLED_RESIDUAL (relative): far below any pole's statistical uncertainty;
+#: once is enough when the poles moved by less than a tenth of _SETTLED_POLES.
 #: On exact data the residual keeps falling by orders of magnitude until
 #: round-off, so there `pole_tol` decides.
 _SETTLED_POLES = 1e-5
@@ -967,7 +968,7 @@ def _fit_count(s, h, w, flags, w0, fband, n_poles, n_real, init, n_iter, pole_to
             stalls = stalls + 1 if stall_tol and rel <= stall_tol else 0
             settles = settles + 1 if (rel <= _SETTLED_RESIDUAL and change <= _SETTLED_POLES) else 0
         history.append(VFIteration(it, new * w0, change, res, dt))
-        if change < pole_tol or settles >= 2:
+        if change < pole_tol or settles >= 2 or (settles and change <= _SETTLED_POLES / 10):
             converged = True
             break
         if stalls >= 2:
@@ -1038,7 +1039,8 @@ def vector_fit(
         The fit has converged when no pole moves by more than this fraction
         of its magnitude in one relocation (or, on noisy data, when twice in
         a row no pole moved by more than 1e-5 of its magnitude and the
-        relocation residual changed by less than 1e-5 of itself).
+        relocation residual changed by less than 1e-5 of itself; once, when
+        no pole moved by more than 1e-6).
     noise_tol : float
         Automatic count: stop growing once the RMS normalised residual is at
         most ``1 + max(noise_tol, 3 / sqrt(4 N))`` (the noise level, with room
