@@ -231,3 +231,13 @@ def test_absurd_magnitudes_and_utf16_are_one_line_errors(tmp_path, two_channel):
     with pytest.raises(ZfitInputError) as info:
         read_capture(w)
     assert str(info.value) == f"{w}: is UTF-16 text; save it as ASCII or UTF-8 (for example: iconv -f UTF-16 -t UTF-8 IN > OUT.csv)"
+
+
+def test_time_base_messages_use_engineering_notation(tmp_path, two_channel):
+    t, dt, a, b = two_channel
+    p = tmp_path / "c.csv"
+    p.write_text(_scope_text(t, [a, b]))
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(p, dt=1e-7)
+    # The file steps by 40 ns (two_channel); 100 ns was given.
+    assert "the time column steps by 40n s but a sample interval of 100n s was given" in str(info.value)

@@ -25,6 +25,7 @@ from typing import Mapping
 import numpy as np
 
 from ._errors import MeasurementWarning, ZfitInputError
+from ._units import format_eng
 
 __all__ = ["Capture", "make_capture", "read_capture", "clipped_fraction", "MIN_SAMPLES"]
 
@@ -672,15 +673,15 @@ def _read_text(path: Path, delimiter, dt_given, t0_given, time_column, accelerat
         if dt_given is not None:
             if abs(dt_given - tdt) > 1e-3 * tdt:
                 raise ZfitInputError(
-                    f"the time column steps by {tdt:.6g} s but a sample interval of {dt_given:.6g} s was given", path)
+                    f"the time column steps by {format_eng(tdt, 's', 6)} but a sample interval of {format_eng(dt_given, 's', 6)} was given", path)
         elif meta_dt is not None and abs(meta_dt[1] - tdt) > 1e-3 * tdt:
-            notes.append(f"header {meta_dt[0]!r} = {meta_dt[1]:.6g} s disagrees with the time column ({tdt:.6g} s); the time column is used")
+            notes.append(f"header {meta_dt[0]!r} = {format_eng(meta_dt[1], 's', 6)} disagrees with the time column ({format_eng(tdt, 's', 6)}); the time column is used")
     elif dt_given is not None:
         dt = float(dt_given)
-        notes.append(f"sample interval {dt:.6g} s given by the caller")
+        notes.append(f"sample interval {format_eng(dt, 's', 6)} given by the caller")
     elif meta_dt is not None:
         dt = meta_dt[1]
-        notes.append(f"sample interval {dt:.6g} s from the header line {meta_dt[0]!r}")
+        notes.append(f"sample interval {format_eng(dt, 's', 6)} from the header line {meta_dt[0]!r}")
         if meta_t0 is not None:
             t0 = meta_t0[1]
     else:
@@ -767,18 +768,18 @@ def _uniform_time(t: np.ndarray, path, first_line: int):
             bad = (d > too_long) | ((d <= 0.5 * dt) & (not coarse))
             k = i + int(np.flatnonzero(bad)[0]) + 1
             raise ZfitInputError(
-                f"non-uniform time steps: step of {d[k - i - 1]:.6g} s where the record averages {dt:.6g} s "
+                f"non-uniform time steps: step of {format_eng(d[k - i - 1], 's', 6)} where the record averages {format_eng(dt, 's', 6)} "
                 f"(missing or repeated samples, or a pieced-together record)", path, first_line + k)
     # A coarse printout rounds the two end points too, which anchor the grid.
     if max_res > (1.0 if coarse else 0.5) * resolution * 1.02 + 1e-12 * max(abs(t[0]), abs(t[-1])):
         raise ZfitInputError(
             f"non-uniform time steps: times drift up to {max_res / dt:.3g} sample intervals from a uniform grid "
-            f"(dt = {dt:.6g} s)", path, first_line)
+            f"(dt = {format_eng(dt, 's', 6)})", path, first_line)
     if coarse:
-        notes.append(f"time column printed with {resolution:.3g} s resolution, coarser than the {dt:.6g} s sample "
+        notes.append(f"time column printed with {format_eng(resolution, 's', 3)} resolution, coarser than the {format_eng(dt, 's', 6)} sample "
                      "interval; uniform sampling assumed, interval from the span")
     elif rms > _JITTER_WARN * dt:
-        msg = (f"{path}: time steps jitter by {100 * rms / dt:.3g} % rms of the {dt:.6g} s sample interval; "
+        msg = (f"{path}: time steps jitter by {100 * rms / dt:.3g} % rms of the {format_eng(dt, 's', 6)} sample interval; "
                "the analysis assumes uniform sampling")
         notes.append(msg)
         warnings.warn(msg, MeasurementWarning, stacklevel=4)

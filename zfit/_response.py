@@ -23,6 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._errors import FitError, MeasurementWarning
+from ._units import format_eng
 
 __all__ = [
     "FrequencyResponse", "edge_response", "usable_band", "impedance_sweep", "prev_fast_len",
@@ -421,7 +422,7 @@ def impedance_sweep(response: FrequencyResponse, shunt_ohm: float, *, source: st
     m = response.usable
     if int(m.sum()) < MIN_POINTS:
         raise FitError(
-            f"only {int(m.sum())} usable frequency bins (band {response.band_hz[0]:.4g}-{response.band_hz[1]:.4g} Hz); "
+            f"only {int(m.sum())} usable frequency bins (band {format_eng(response.band_hz[0], 'Hz')} to {format_eng(response.band_hz[1], 'Hz')}); "
             f"at least {MIN_POINTS} are needed for the impedance: capture more edges or a longer period")
     f, h, s = _log_merge(response.f_hz[m], response.h[m], response.h_std[m], max_points)
     z = shunt_ohm * (1.0 / h - 1.0)

@@ -456,7 +456,7 @@ def stray_capacitance_two_resonances(f1_hz: float, f1_std_hz: float, f2_hz: floa
         raise ZfitInputError(f"the added capacitance must be positive, not {added_f!r} F")
     if not f2_hz < f1_hz:
         raise FitError(
-            f"with the capacitor added the coil rings at {f2_hz:.6g} Hz, not below {f1_hz:.6g} Hz without it: "
+            f"with the capacitor added the coil rings at {format_eng(f2_hz, 'Hz', 6)}, not below {format_eng(f1_hz, 'Hz', 6)} without it: "
             "check the added capacitance and the captures")
     r2 = (f1_hz / f2_hz) ** 2
     c0 = added_f / (r2 - 1.0)
@@ -954,8 +954,8 @@ def analyse_capture(
     spread = float(ref.max() - ref.min())
     if not (ref_lv.amplitude > 0.5 * spread and ref_lv.amplitude > 6.0 * max(ref_lv.noise, 1e-300)):
         raise ZfitInputError(
-            f"channel {ref_name} has no two settled states (levels {ref_lv.low:.4g} V and {ref_lv.high:.4g} V "
-            f"over a range of {spread:.4g} V): it is not a square wave or a step", src)
+            f"channel {ref_name} has no two settled states (levels {format_eng(ref_lv.low, 'V')} and {format_eng(ref_lv.high, 'V')} "
+            f"over a range of {format_eng(spread, 'V')}): it is not a square wave or a step", src)
     pol, _t_first, t_mid, _t_last = find_edges(ref, ref_lv)
     if pol.size == 0:
         raise ZfitInputError(

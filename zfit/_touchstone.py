@@ -28,6 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from ._errors import ZfitInputError
+from ._units import format_eng
 
 __all__ = ["TouchstoneData", "read_touchstone", "looks_like_touchstone"]
 
@@ -402,7 +403,7 @@ def _check_increasing(path: Path, f: np.ndarray, row_lines: np.ndarray) -> None:
         i = int(bad[0]) + 1
         what = "repeats" if f[i] == f[i - 1] else "is below"
         raise ZfitInputError(
-            f"frequency {f[i]:.9g} Hz {what} the previous row's {f[i - 1]:.9g} Hz; Touchstone data must be in increasing frequency",
+            f"frequency {format_eng(f[i], 'Hz', 9)} {what} the previous row's {format_eng(f[i - 1], 'Hz', 9)}; Touchstone data must be in increasing frequency",
             path,
             int(row_lines[i]),
         )
