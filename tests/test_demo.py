@@ -44,7 +44,7 @@ def test_demo_part_end_to_end(tmp_path):
     assert abs(p["ESR"]["value"] - 8e-3) < 0.05 * 8e-3
     # An explicit folder that holds files is refused without --force.
     r3 = _run(["--part", "C-0342_100nF", "--out", "zfit-demo-output"], tmp_path)
-    assert r3.exit_code == 2 and "exists already; give --force" in r3.output
+    assert r3.exit_code == 2 and "zfit-demo-output: holds files already; give --force to write into it" in r3.output
 
 
 @pytest.mark.ngspice
@@ -69,7 +69,7 @@ def test_demo_netlist_and_touchstone_agree_in_ngspice(tmp_path):
 
 def test_demo_never_reuses_a_folder_that_holds_files(tmp_path, monkeypatch):
     from zfit._cli_demo import _fresh_folder
-    from zfit._errors import OutputExistsError
+    from zfit._errors import ZfitInputError
 
     monkeypatch.chdir(tmp_path)
     assert _fresh_folder(None, False) == Path("zfit-demo-output")
@@ -80,8 +80,16 @@ def test_demo_never_reuses_a_folder_that_holds_files(tmp_path, monkeypatch):
     (tmp_path / "zfit-demo-output-2").mkdir()
     assert _fresh_folder(None, False) == Path("zfit-demo-output-3")
     assert _fresh_folder(None, True) == Path("zfit-demo-output")  # --force: the default folder
-    with pytest.raises(OutputExistsError):
+    with pytest.raises(ZfitInputError, match="holds files already; give --force"):
         _fresh_folder(tmp_path / "zfit-demo-output", False)
+    # A file given as the folder, or inside the path, is one line, not 'Not a directory'.
+    with pytest.raises(ZfitInputError) as info:
+        _fresh_folder(tmp_path / "zfit-demo-output" / "x", False)
+    assert str(info.value) == f"{tmp_path / 'zfit-demo-output' / 'x'}: is a file; --out names the folder the results go into"
+    with pytest.raises(ZfitInputError) as info:
+        _fresh_folder(tmp_path / "zfit-demo-output" / "x" / "y", False)
+    assert str(info.value) == (f"{tmp_path / 'zfit-demo-output' / 'x' / 'y'}: cannot make this folder: "
+                               f"{tmp_path / 'zfit-demo-output' / 'x'} is a file")
 
 
 def test_demo_rejects_unknown_part(tmp_path):

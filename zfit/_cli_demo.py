@@ -93,11 +93,19 @@ def demo_sweeps_dir() -> Path:
 
 def _fresh_folder(out: Optional[Path], force: bool) -> Path:
     """Return the output folder: the one asked for, or a fresh default name."""
-    from ._errors import OutputExistsError
+    from ._errors import ZfitInputError
 
     if out is not None:
+        if out.exists() and not out.is_dir():
+            raise ZfitInputError("is a file; --out names the folder the results go into", out)
+        for parent in out.parents:
+            if parent.exists():
+                if not parent.is_dir():
+                    raise ZfitInputError(f"cannot make this folder: {parent} is a file", out)
+                break
         if out.exists() and any(out.iterdir()) and not force:
-            raise OutputExistsError(out)
+            raise ZfitInputError("holds files already; give --force to write into it (the demo's own files are "
+                                 "replaced, others left alone) or another --out", out)
         return out
     base = Path(DEFAULT_OUT)
     if force or not base.exists() or not any(base.iterdir()):
