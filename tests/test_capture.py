@@ -241,3 +241,17 @@ def test_time_base_messages_use_engineering_notation(tmp_path, two_channel):
         read_capture(p, dt=1e-7)
     # The file steps by 40 ns (two_channel); 100 ns was given.
     assert "the time column steps by 40n s but a sample interval of 100n s was given" in str(info.value)
+
+
+def test_npy_of_text_is_a_one_line_error(tmp_path):
+    # A text array used to end in a ValueError traceback from numpy.
+    p = tmp_path / "names.npy"
+    np.save(p, np.array(["CH1", "CH2"] * 20))
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(p, dt=1e-9)
+    assert str(info.value) == f"{p}: the array holds <U3 values, not real numbers (voltages or times)"
+    q = tmp_path / "dt_text.npz"
+    np.savez(q, CH1=np.zeros(100), dt=np.array(["1n"]))
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(q)
+    assert str(info.value) == f"{q}: array 'dt' holds <U2 values, not real numbers (voltages or times)"

@@ -793,7 +793,7 @@ def _read_npy(path: Path, dt_given, t0_given):
         a = np.load(path, allow_pickle=False)
     except ValueError as exc:
         raise ZfitInputError(f"cannot read as a numpy array: {exc}", path) from None
-    a = np.asarray(a, dtype=float)
+    a = _numeric(a, "the array", path)
     if a.ndim == 1:
         a = a[:, None]
     if a.ndim != 2:
@@ -818,6 +818,14 @@ def _read_npy(path: Path, dt_given, t0_given):
                         file_columns=list(range(first, first + len(cols))))
 
 
+def _numeric(a, what: str, path) -> np.ndarray:
+    """`a` as float, or a one-line error when it holds text or objects."""
+    a = np.asarray(a)
+    if not (np.issubdtype(a.dtype, np.number) or a.dtype == bool) or np.issubdtype(a.dtype, np.complexfloating):
+        raise ZfitInputError(f"{what} holds {a.dtype} values, not real numbers (voltages or times)", path)
+    return a.astype(float, copy=False)
+
+
 def _read_npz(path: Path, dt_given, t0_given):
     try:
         z = np.load(path, allow_pickle=False)
@@ -829,14 +837,14 @@ def _read_npz(path: Path, dt_given, t0_given):
     dkey = next((lower[k] for k in ("dt", "dt_s", "sample_interval", "sample_interval_s") if k in lower), None)
     okey = next((lower[k] for k in ("t0", "t0_s", "start", "start_s") if k in lower), None)
     notes = []
-    t0 = float(np.asarray(z[okey]).ravel()[0]) if okey else 0.0
+    t0 = float(_numeric(z[okey], f"array {okey!r}", path).ravel()[0]) if okey else 0.0
     if dt_given is not None:
         dt = float(dt_given)
     elif dkey is not None:
-        dt = float(np.asarray(z[dkey]).ravel()[0])
+        dt = float(_numeric(z[dkey], f"array {dkey!r}", path).ravel()[0])
         notes.append(f"sample interval from the array {dkey!r}")
     elif tkey is not None:
-        dt, t0, tn = _uniform_time(np.asarray(z[tkey], dtype=float).ravel(), path, None)
+        dt, t0, tn = _uniform_time(_numeric(z[tkey], f"array {tkey!r}", path).ravel(), path, None)
         notes.extend(tn)
     else:
         raise ZfitInputError("no time array ('t') and no sample interval ('dt') in the archive; give dt", path)
