@@ -828,10 +828,12 @@ def _numeric(a, what: str, path) -> np.ndarray:
 
 def _read_npz(path: Path, dt_given, t0_given):
     try:
-        z = np.load(path, allow_pickle=False)
+        # Read every array and close the archive at once (an open one leaks its file on an error).
+        with np.load(path, allow_pickle=False) as archive:
+            z = {k: archive[k] for k in archive.files}
     except ValueError as exc:
         raise ZfitInputError(f"cannot read as a numpy archive: {exc}", path) from None
-    keys = list(z.files)
+    keys = list(z)
     lower = {k.lower(): k for k in keys}
     tkey = next((lower[k] for k in ("t", "time", "time_s", "t_s") if k in lower), None)
     dkey = next((lower[k] for k in ("dt", "dt_s", "sample_interval", "sample_interval_s") if k in lower), None)
