@@ -255,3 +255,23 @@ def test_npy_of_text_is_a_one_line_error(tmp_path):
     with pytest.raises(ZfitInputError) as info:
         read_capture(q)
     assert str(info.value) == f"{q}: array 'dt' holds <U2 values, not real numbers (voltages or times)"
+
+
+def test_sweeps_given_to_the_capture_reader_say_which_command(tmp_path):
+    from pathlib import Path
+
+    demo = Path(__file__).resolve().parent.parent / "demo_sweeps"
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(demo / "ind_2u2_reflection.s1p")
+    assert str(info.value).endswith("ind_2u2_reflection.s1p: is a Touchstone sweep, not an oscilloscope capture: "
+                                    "analyse it with 'zfit identify' (or look at it with 'zfit info')")
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(demo / "cap_4u7_lcr_cp_d.csv")
+    assert str(info.value).endswith("cap_4u7_lcr_cp_d.csv:4: the header starts with a frequency column ('Freq (kHz)'): "
+                                    "this is an analyser sweep, not an oscilloscope capture; analyse it with 'zfit identify'")
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(tmp_path)
+    assert str(info.value) == f"{tmp_path}: is not a file"
+    with pytest.raises(ZfitInputError) as info:
+        read_capture(tmp_path / "none.csv")
+    assert str(info.value) == f"{tmp_path / 'none.csv'}: no such file"

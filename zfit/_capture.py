@@ -862,6 +862,26 @@ def _read_npz(path: Path, dt_given, t0_given):
     return make_capture(chans, dt, t0=t0, source=str(path), notes=notes)
 
 
+def _refuse_sweep_table(path: Path) -> None:
+    """Refuse an analyser table (a header starting with a frequency column over rows of numbers)."""
+    with open(path, "rb") as fh:
+        lines = fh.read(8192).decode("latin-1").splitlines()[:60]
+    for i in range(len(lines) - 1):
+        head = [c.strip().strip('"').lower() for c in re.split(r"[,;\t]", lines[i])]
+        if len(head) < 3 or not (head[0].startswith("freq") or re.fullmatch(r"f(\s*[\[(/_].*)?", head[0])):
+            continue
+        row = [c.strip() for c in re.split(r"[,;\t]", lines[i + 1])]
+        try:
+            [float(c.replace(",", ".")) for c in row if c]
+        except ValueError:
+            continue
+        if len(row) == len(head) and not any(c.startswith(("time", "t [", "t(", "t/", "t_")) or c == "t" for c in head):
+            first = re.split(r"[,;\t]", lines[i])[0].strip().strip('"')
+            raise ZfitInputError(f"the header starts with a frequency column ({first!r}): "
+                                 "this is an analyser sweep, not an oscilloscope capture; analyse it with "
+                                 "'zfit identify'", path, i + 1)
+
+
 def read_capture(path, *, dt: float | None = None, t0: float | None = None, time_column=None,
                  delimiter: str | None = None, accelerate: bool | None = None) -> Capture:
     """Return the capture stored in an oscilloscope export.
@@ -917,7 +937,14 @@ def read_capture(path, *, dt: float | None = None, t0: float | None = None, time
     path = Path(path)
     if dt is not None and not (math.isfinite(float(dt)) and float(dt) > 0):
         raise ZfitInputError(f"sample interval {dt!r} is not a positive number", path)
+    if not path.is_file():
+        raise ZfitInputError("no such file" if not path.exists() else "is not a file", path)
     suffix = path.suffix.lower()
+    if re.fullmatch(r"\.[syzgh]\d+p|\.ts", suffix):
+        raise ZfitInputError("is a Touchstone sweep, not an oscilloscope capture: analyse it with "
+                             "'zfit identify' (or look at it with 'zfit info')", path)
+    if suffix not in (".npy", ".npz"):
+        _refuse_sweep_table(path)
     if suffix == ".npy":
         return _read_npy(path, dt, t0)
     if suffix == ".npz":
