@@ -229,3 +229,11 @@ def test_refuses_negative_branch_and_names_it():
         foster_branches([-2 * np.pi * 1e6], [-3.0])
     with pytest.raises(SynthesisError, match="constant term"):
         foster_branches([], [], constant=-0.5)
+
+
+def test_refusal_names_the_negative_value_in_engineering_notation():
+    # Was "(-0.5 ohm)" and "(-1e-09 H)"; the house style is engineering notation.
+    with pytest.raises(SynthesisError, match=r"negative series resistance \(-500m ohm\)"):
+        foster_branches([], [], constant=-0.5)
+    with pytest.raises(SynthesisError, match=r"negative series inductance \(-1n H\)"):
+        foster_branches([], [], proportional=-1e-9)

@@ -63,6 +63,7 @@ from typing import Mapping, Sequence
 import numpy as np
 
 from ._errors import FitError, ZfitInputError
+from ._units import format_eng
 from ._version import __version__
 
 __all__ = [
@@ -346,15 +347,15 @@ def foster_branches(
     d, e, r0 = float(constant), float(proportional), float(origin_residue)
     zscale = max(abs(d), float(np.max(np.abs(r) / np.maximum(np.abs(p), 1e-300))) if p.size else 0.0, 1e-300)
     if d != 0 and (d > 0 or clamped is None):
-        out.append(FosterBranch("constant", "constant term", {"R": _check(d, zscale, f"series resistance ({d:.4g} ohm)", "constant term", clamped)}))
+        out.append(FosterBranch("constant", "constant term", {"R": _check(d, zscale, f"series resistance ({format_eng(d, 'ohm')})", "constant term", clamped)}))
     if d < 0 and clamped is not None:
-        _check(d, zscale, f"series resistance ({d:.4g} ohm)", "constant term", clamped)
+        _check(d, zscale, f"series resistance ({format_eng(d, 'ohm')})", "constant term", clamped)
     if e < 0 and clamped is not None:
-        _check(e, 0.0, f"series inductance ({e:.4g} H)", "proportional (s) term", clamped)
+        _check(e, 0.0, f"series inductance ({format_eng(e, 'H')})", "proportional (s) term", clamped)
     if e != 0 and (e > 0 or clamped is None):
-        out.append(FosterBranch("proportional", "proportional (s) term", {"L": _check(e, 0.0, f"series inductance ({e:.4g} H)", "proportional (s) term", clamped)}))
+        out.append(FosterBranch("proportional", "proportional (s) term", {"L": _check(e, 0.0, f"series inductance ({format_eng(e, 'H')})", "proportional (s) term", clamped)}))
     if r0 != 0:
-        _check(r0, 0.0, f"series capacitance (1/{r0:.4g} F)", "pole at the origin")
+        _check(r0, 0.0, f"series capacitance ({format_eng(1.0 / r0, 'F') if r0 else 'infinite'})", "pole at the origin")
         out.append(FosterBranch("origin", "pole at the origin", {"C": 1.0 / r0}))
 
     used = np.zeros(p.size, dtype=bool)
