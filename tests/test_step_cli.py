@@ -138,3 +138,11 @@ def test_summary_says_why_a_figure_is_missing_and_rounds_percent_as_gum():
     assert res.exit_code == 0
     assert "time const.:  n/a" in res.output
     assert "note:         the output follows the input's edge" in res.output
+
+
+def test_response_csv_header_in_engineering_notation(tmp_path):
+    res = run(RING, "-i", "CH1", "-o", "CH2", "--response", tmp_path / "r.csv")
+    assert res.exit_code == 0
+    head = (tmp_path / "r.csv").read_text().splitlines()[1]
+    # 25 MSa/s, 2000-sample segments: 12.5 kHz bins; the usable band starts at the first bin.
+    assert head.startswith("# usable band 12.5k Hz to ") and head.endswith("Hz; uncertainties are standard (k=1)")

@@ -127,12 +127,15 @@ def response_csv(result) -> str:
     """
     import numpy as np
 
+    from ._units import format_eng
+
     r = result.response
     cols = np.column_stack([r.f_hz, r.magnitude_db(), r.phase_deg(), r.magnitude_db_std(), r.phase_std_deg(),
                             r.coherence, r.usable.astype(float)])
     lines = [
         f"# zfit step response of {result.source}: H = V_out/V_in ({r.method})",
-        f"# usable band {r.band_hz[0]:.6g} Hz to {r.band_hz[1]:.6g} Hz; uncertainties are standard (k=1)",
+        f"# usable band {format_eng(r.band_hz[0], 'Hz', 6)} to {format_eng(r.band_hz[1], 'Hz', 6)}; "
+        "uncertainties are standard (k=1)",
         "f_hz,mag_db,phase_deg,mag_db_std,phase_std_deg,coherence,usable",
     ]
     for row in cols:
