@@ -176,3 +176,12 @@ def test_bad_plan_options_are_refused_before_any_work(args, message):
     r = CliRunner().invoke(app, ["plan", "inductor", "--L", "10u", "--C_p", "5p", "--R_s", "50m", *args])
     assert r.exit_code == 2 and "Traceback" not in r.output
     assert r.stderr == f"zfit: error: {message}\n"
+
+
+def test_plan_text_writes_values_as_the_other_commands_do():
+    # Issue 7 check part: C = 100n, ESL = 500p resonates at 1/(2 pi sqrt(L C)) = 22.51 MHz (Thomson's formula);
+    # "22.51M Hz" and "±" as in zfit identify, not "22.51MHz" and "+-".
+    r = CliRunner().invoke(app, ["plan", "capacitor", "--C", "100n", "--ESR", "5m", "--ESL", "500p", "--points", "41"])
+    assert r.exit_code == 0, r.output
+    assert "(SRF 22.51M Hz)" in r.output and "band 1k Hz to 1G Hz, 41 log-spaced points" in r.output
+    assert "+-" not in r.output and "±" in r.output

@@ -507,7 +507,7 @@ def _srf_std(circuit, params, keys, log_cov):
 def _rel_text(p: PlannedParameter) -> str:
     if not math.isfinite(p.relative_std):
         return f"{p.key} not determined"
-    return f"{p.key} to +-{_percent(p.relative_std)}"
+    return f"{p.key} to ±{_percent(p.relative_std)}"
 
 
 def _percent(x: float) -> str:
@@ -540,9 +540,9 @@ def format_plan(plan: Plan) -> str:
     from ._resolution import unresolved_text
 
     vals = ", ".join(f"{k} = {format_eng(v, _UNITS[k])}" for k, v in plan.params.items())
-    srf = f" (SRF {format_eng(plan.srf_hz)}Hz)" if plan.srf_hz else ""
+    srf = f" (SRF {format_eng(plan.srf_hz, 'Hz')})" if plan.srf_hz else ""
     lines = [f"plan: {plan.model}, {plan.topology}: {vals}{srf}",
-             f"band {format_eng(plan.band_hz[0])}Hz to {format_eng(plan.band_hz[1])}Hz, {plan.points} log-spaced points, "
+             f"band {format_eng(plan.band_hz[0], 'Hz')} to {format_eng(plan.band_hz[1], 'Hz')}, {plan.points} log-spaced points, "
              f"reference {plan.reference_ohm:g} ohm"]
     for c in plan.connections:
         on = "S" if c.connection in NA_CONNECTIONS else "Z"
@@ -554,7 +554,7 @@ def format_plan(plan: Plan) -> str:
     for k in plan.params:
         for c in plan.connections:
             p = c.parameters[k]
-            cell = f"+-{format_eng(p.std, p.unit)} ({_percent(p.relative_std)})" if math.isfinite(p.std) else "not determined"
+            cell = f"±{format_eng(p.std, p.unit)} ({_percent(p.relative_std)})" if math.isfinite(p.std) else "not determined"
             if not p.resolved and p.resolution_limit is not None:
                 cell = unresolved_text(k, p.resolution_limit, p.unit)
             elif not p.resolved:
@@ -566,7 +566,7 @@ def format_plan(plan: Plan) -> str:
         for c in plan.connections:
             ok = c.srf_std_hz is not None and math.isfinite(c.srf_std_hz)
             cells["SRF", c.connection] = (
-                f"+-{format_eng(c.srf_std_hz)}Hz ({_percent(c.srf_std_hz / plan.srf_hz)})" if ok else "not determined"
+                f"±{format_eng(c.srf_std_hz, 'Hz')} ({_percent(c.srf_std_hz / plan.srf_hz)})" if ok else "not determined"
             )
     widths = {c.connection: 2 + max([len(c.label)] + [len(cells[k, c.connection]) for k in rows])
               for c in plan.connections}
