@@ -8,6 +8,7 @@ and Thomson's formula f = 1/(2 pi sqrt(L C)) for its ringing.
 import csv
 import json
 import math
+import re
 from pathlib import Path
 
 import numpy as np
@@ -146,3 +147,13 @@ def test_response_csv_header_in_engineering_notation(tmp_path):
     head = (tmp_path / "r.csv").read_text().splitlines()[1]
     # 25 MSa/s, 2000-sample segments: 12.5 kHz bins; the usable band starts at the first bin.
     assert head.startswith("# usable band 12.5k Hz to ") and head.endswith("Hz; uncertainties are standard (k=1)")
+
+
+def test_levels_line_says_how_well_the_levels_are_known():
+    # The demo capture (make_demo_capture.py) is 256 codes over 6 V, lsb 23.4 mV, with half a code of
+    # noise before rounding: spread sqrt(0.5^2 + 1/12) lsb = 13.6 mV (uniform rounding noise, lsb^2/12).
+    res = CliRunner().invoke(app, ["step", str(SQUARE), "-i", "CH1", "-o", "CH2"])
+    assert res.exit_code == 0
+    line = next(ln for ln in res.output.splitlines() if ln.startswith("levels:"))
+    m = re.search(r"\[settled samples spread (\d+)m / (\d+)m V rms\]", line)
+    assert m and all(12 <= int(v) <= 15 for v in m.groups()), line

@@ -162,6 +162,9 @@ def summary_lines(result) -> list[str]:
         f"capture:      {result.source}  ({chans}; {result.n_samples} samples at {format_eng(result.sample_rate_hz, 'Sa/s')})",
         f"edges:        {result.edges} ({result.edges_rising} rising, {result.edges_falling} falling)",
         f"levels:       {format_eng(result.levels_v[0], 'V')} / {format_eng(result.levels_v[1], 'V')} (output)"
+        # A histogram mode has no simple standard uncertainty; the samples' spread says how well it is known.
+        + f" [settled samples spread {format_eng(result.levels_noise_v[0], digits=2)} / "
+          f"{format_eng(result.levels_noise_v[1], 'V rms', digits=2)}]"
         + ("" if result.input_levels_v is None else
            f";  {format_eng(result.input_levels_v[0], 'V')} / {format_eng(result.input_levels_v[1], 'V')} (input)"),
         f"10-90 %:      {vs(result.transition_10_90_s, result.transition_10_90_std_s, 's')}",
