@@ -100,3 +100,13 @@ def test_demo_rejects_unknown_part(tmp_path):
 def test_demo_without_files_says_so(tmp_path):
     r = _run(["--sweeps", str(tmp_path / "empty")], tmp_path)
     assert r.exit_code == 2 and "demo files missing" in r.output
+
+
+def test_demo_index_promises_only_the_files_written(tmp_path):
+    # The index said every identified part has a Touchstone file; the capture has none.
+    r = _run(["--part", "L-0233_4m7H_capture", "--out", "o"], tmp_path)
+    assert r.exit_code == 0, r.output
+    out = tmp_path / "o"
+    assert not list(out.glob("*.s1p")) and (out / "L-0233_4m7H_capture.cir").is_file()
+    index = (out / "index.html").read_text()
+    assert "the analyser sweeps also a one-port Touchstone file (.s1p) of the model" in index

@@ -237,7 +237,8 @@ def _index_html(rows, generated: str) -> str:
         "</header>\n<main>\n<section class=\"full\"><h2>Parts</h2><table><thead><tr><th>part</th><th>result</th>"
         "<th>what to look at</th></tr></thead><tbody>" + "".join(body) + "</tbody></table>"
         "<p>Each part has its one-page report (.html), its plots (.png), the zfit JSON result (.json) and, where an "
-        "impedance was identified, a SPICE subcircuit (.cir) and a one-port Touchstone file (.s1p).</p></section>\n"
+        "impedance was identified, a SPICE subcircuit (.cir); the analyser sweeps also a one-port Touchstone file "
+        "(.s1p) of the model.</p></section>\n"
         "</main>\n</body>\n</html>\n"
     )
 
