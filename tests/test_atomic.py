@@ -26,3 +26,14 @@ def test_write_atomic_follows_umask(tmp_path):
     finally:
         os.umask(old)
     assert stat.S_IMODE(path.stat().st_mode) == 0o644
+
+
+def test_write_atomic_names_a_folder_given_as_file(tmp_path):
+    from zfit._errors import ZfitInputError
+
+    (tmp_path / "plots").mkdir()
+    with pytest.raises(ZfitInputError, match=r"plots: is a folder; give the name of a file to write"):
+        write_atomic(tmp_path / "plots", "x")
+    (tmp_path / "notes.txt").write_text("mine")
+    with pytest.raises(ZfitInputError, match=r"notes\.txt is a file, not a folder"):
+        write_atomic(tmp_path / "notes.txt" / "out.json", "x")

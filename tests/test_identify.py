@@ -4,6 +4,7 @@ simulator) or, for the rules that do not need a simulator, by the handbook
 formulas checked in test_circuits.py."""
 
 import json
+import re
 import math
 import pickle
 import warnings
@@ -251,3 +252,22 @@ def test_cli_writes_outputs_and_json_to_stdout(tmp_path):
     out = CliRunner().invoke(app, ["identify", str(path), "--json", "-"])
     assert out.exit_code == 0
     assert json.loads(out.stdout)["model"] == "inductor"
+
+
+def test_cli_refuses_bad_outputs_before_the_work(tmp_path):
+    from zfit._cli import app
+
+    path = _s1p(tmp_path, seed=13)
+    (tmp_path / "plots.png").mkdir()
+    cases = [
+        (["--plot", str(tmp_path / "plots.png")], r"plots\.png: is a folder; give the name of a file to write"),
+        (["--plot", str(tmp_path / "plots")], r"plots: plot file must end in \.png or \.svg"),
+        (["--netlist", str(tmp_path / "coil.txt")], r"coil\.txt"),
+        (["--touchstone-grid", "1M:10M:5"], r"--touchstone-grid needs --touchstone PATH"),
+        (["--load-value", "50"], r"--load-value goes with --load"),
+    ]
+    for extra, message in cases:
+        res = CliRunner().invoke(app, ["identify", str(path), *extra])
+        assert res.exit_code == 2, (extra, res.output)
+        assert re.search(message, res.output), (extra, res.output)
+        assert "Traceback" not in res.output and "model:" not in res.output  # refused before fitting

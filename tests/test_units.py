@@ -50,3 +50,9 @@ def test_format_value_std_rounds_to_two_digits_of_uncertainty():
 def test_format_round_trip_within_four_digits():
     for x in (1.234e-15, 5.678e-7, 9.999e2, 1.2345e9):
         assert math.isclose(parse_quantity(format_eng(x)), x, rel_tol=1e-3)
+
+
+def test_format_eng_beyond_the_prefixes_uses_an_exponent():
+    # The SI prefixes end at peta/atto here; beyond, plain scientific notation.
+    assert format_eng(3.8e282, "V") == "3.8e+282 V"
+    assert format_eng(2e-21) == "2e-21"

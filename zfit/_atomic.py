@@ -6,7 +6,7 @@ import os
 import tempfile
 from pathlib import Path
 
-from ._errors import OutputExistsError
+from ._errors import OutputExistsError, ZfitInputError
 
 __all__ = ["write_atomic", "check_writable"]
 
@@ -28,6 +28,13 @@ def check_writable(path, force: bool = False) -> Path:
         Whether an existing file may be replaced.
     """
     path = Path(path)
+    if path.is_dir():
+        raise ZfitInputError("is a folder; give the name of a file to write", path)
+    for parent in path.parents:
+        if parent.exists():
+            if not parent.is_dir():
+                raise ZfitInputError(f"cannot write here: {parent} is a file, not a folder", path)
+            break
     if path.exists() and not force:
         raise OutputExistsError(path)
     return path

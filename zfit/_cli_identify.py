@@ -78,11 +78,17 @@ def identify_command(
     from ._cli_common import sweep_from_options
     from ._errors import MeasurementWarning, ZfitInputError
     from ._identify import identify
+    from ._outputs import check_output_suffix
 
-    # Refuse before any work if an output exists (nothing is overwritten without --force).
-    for out in (json_path, plot, netlist, touchstone, report):
-        if out is not None and str(out) != "-":
-            check_writable(out, force)
+    # Refuse before any work if an output exists or cannot be written there
+    # (nothing is overwritten without --force).
+    if json_path is not None and str(json_path) != "-":
+        check_writable(json_path, force)
+    for out, kind in ((plot, "plot"), (netlist, "netlist"), (touchstone, "touchstone"), (report, "report")):
+        if out is not None:
+            check_writable(check_output_suffix(out, kind), force)
+    if touchstone_grid is not None and touchstone is None:
+        raise ZfitInputError("--touchstone-grid needs --touchstone PATH (the file the grid is for)")
     if netlist_kind not in ("auto", "circuit", "rational"):
         raise ZfitInputError(f"--netlist-kind {netlist_kind!r}: use circuit, rational or auto")
     if netlist_kind != "auto" and netlist is None:

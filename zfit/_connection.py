@@ -70,7 +70,10 @@ class InstrumentNoise:
 
     def __post_init__(self):
         if not (self.rel >= 0 and self.floor >= 0 and (self.rel > 0 or self.floor > 0)):
-            raise ZfitInputError(f"noise model needs rel >= 0 and floor >= 0, not both zero (got {self.rel}, {self.floor})")
+            raise ZfitInputError(
+                f"noise model needs --noise-rel >= 0 and --noise-floor >= 0, not both zero "
+                f"(got {self.rel:g} and {self.floor:g})"
+            )
 
     def sigma(self, value) -> np.ndarray:
         """Return the standard deviation (complex-circular) of a measured quantity.

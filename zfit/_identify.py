@@ -28,6 +28,7 @@ import numpy as np
 
 from ._errors import FitError, MeasurementWarning, ZfitInputError
 from ._figures import SRF, Estimate, Figures
+from ._units import format_eng
 
 __all__ = [
     "identify",
@@ -885,14 +886,14 @@ def identify(
     at = tuple(float(x) for x in np.atleast_1d(np.asarray(() if at is None else at, dtype=float)))
     for x in at:
         if not (math.isfinite(x) and x > 0):
-            raise ZfitInputError(f"spot frequency {x:g} Hz is not a positive number")
+            raise ZfitInputError(f"spot frequency {format_eng(x, 'Hz')} is not a positive number")
     if rdc is not None:
         rdc = float(rdc)
         if not (math.isfinite(rdc) and rdc > 0):
-            raise ZfitInputError(f"--rdc must be a positive resistance in ohm, got {rdc:g}")
+            raise ZfitInputError(f"--rdc must be a positive resistance, got {format_eng(rdc, 'ohm')}")
         rdc_std = DEFAULT_RDC_REL * rdc if rdc_std is None else float(rdc_std)
         if not (math.isfinite(rdc_std) and rdc_std > 0):
-            raise ZfitInputError(f"--rdc-std must be a positive resistance in ohm, got {rdc_std:g}")
+            raise ZfitInputError(f"--rdc-std must be a positive resistance, got {format_eng(rdc_std, 'ohm')}")
     elif rdc_std is not None:
         raise ZfitInputError("--rdc-std needs --rdc")
 
@@ -955,7 +956,7 @@ def identify(
         spots = tuple(spot_readout(x, reader) for x in at)
         for s in spots:
             if not s.in_band:
-                notes.append(f"spot readout at {s.f_hz:.6g} Hz is outside the band: the rational model is extrapolated")
+                notes.append(f"spot readout at {format_eng(s.f_hz, 'Hz')} is outside the band: the rational model is extrapolated")
         k = _rational_k(rational)
         fit = FitQuality(
             rms_normalized_residual=rat_rms, points=sweep.n_points, f_min_hz=band[0], f_max_hz=band[1],
@@ -1153,18 +1154,18 @@ def identify(
         if i1 <= i0:
             notes.append(
                 f"the {chosen.circuit.topology} does not describe the data to within the noise anywhere in the band "
-                f"(normalised RMS residual {rms_full:.3g}, rational model {rat_rms:.3g}); its values are not reliable"
+                f"(normalised RMS residual {format_eng(rms_full, '', 3)}, rational model {format_eng(rat_rms, '', 3)}); its values are not reliable"
             )
         elif fitted_mask is not None or (i1 - i0) < sweep.n_points:
             notes.append(
                 f"the {chosen.circuit.topology} describes the data to within the noise only from "
-                f"{valid_band[0]:.4g} Hz to {valid_band[1]:.4g} Hz (normalised RMS residual {rms_full:.3g} over the "
-                f"full band, rational model {rat_rms:.3g}); the rational model describes the full band"
+                f"{format_eng(valid_band[0], 'Hz')} to {format_eng(valid_band[1], 'Hz')} (normalised RMS residual {format_eng(rms_full, '', 3)} over the "
+                f"full band, rational model {format_eng(rat_rms, '', 3)}); the rational model describes the full band"
             )
         else:
             notes.append(
                 f"the {chosen.circuit.topology} fits worse than the rational model (normalised RMS residual "
-                f"{rms_full:.3g} against {rat_rms:.3g}); its values carry a model error beyond the noise"
+                f"{format_eng(rms_full, '', 3)} against {format_eng(rat_rms, '', 3)}); its values carry a model error beyond the noise"
             )
 
     # 5. Figures.
@@ -1185,7 +1186,7 @@ def identify(
             notes.append(f"{key} is not resolved by this sweep (relative uncertainty {rel}){hint}")
     if prior is not None and chosen.prior_pull is not None and abs(chosen.prior_pull) > 3.0:
         notes.append(
-            f"the DC resistance given ({rdc:.4g} ohm) and the sweep disagree: the fitted {prior.key} is "
+            f"the DC resistance given ({format_eng(rdc, 'ohm')}) and the sweep disagree: the fitted {prior.key} is "
             f"{chosen.prior_pull:+.1f} standard uncertainties from it (skin effect or a different part?)"
         )
     srf = srf_of_circuit(chosen, band)
@@ -1196,7 +1197,7 @@ def identify(
     spots = tuple(spot_readout(x, reader) for x in at)
     for s in spots:
         if not s.in_band:
-            notes.append(f"spot readout at {s.f_hz:.6g} Hz is outside the band: extrapolated from the circuit")
+            notes.append(f"spot readout at {format_eng(s.f_hz, 'Hz')} is outside the band: extrapolated from the circuit")
     # Figures read from the circuit inside its valid band are the measured part to within the noise.
     figures = figures_of(family, srf, reader)
     n_fit = sweep.n_points if fitted_mask is None else int(fitted_mask.sum())

@@ -873,14 +873,6 @@ def check_output_path(path, force: bool = False) -> Path:
     """
     from ._atomic import check_writable
 
-    path = Path(path)
-    if path.is_dir():
-        raise ZfitInputError("is a folder; give the name of a file to write", path=path)
-    for parent in path.parents:
-        if parent.exists():
-            if not parent.is_dir():
-                raise ZfitInputError(f"cannot write here: {parent} is a file, not a folder", path=path)
-            break
     return check_writable(path, force)
 
 

@@ -69,6 +69,8 @@ def prepared_sweep(
         sweep = port_extended(sweep, parse_quantity(port_delay, "--port-delay"), loss=port_loss)
     elif port_loss is not None:
         raise ZfitInputError("--port-loss goes with --port-delay (the loss of the line being removed)", path)
+    if load_value is not None and load is None:
+        raise ZfitInputError("--load-value goes with --load (the measurement of that load standard)", path)
     if open_ is not None or short is not None or load is not None:
         from ._fixture import compensate_from_files
 

@@ -428,7 +428,7 @@ def impedance_sweep(response: FrequencyResponse, shunt_ohm: float, *, source: st
     z = shunt_ohm * (1.0 / h - 1.0)
     sz = shunt_ohm * s / np.abs(h) ** 2
     notes = list(notes) + [
-        f"impedance from a capture: Z = R (V_in - V_out)/V_out with R = {shunt_ohm:.6g} ohm, "
+        f"impedance from a capture: Z = R (V_in - V_out)/V_out with R = {format_eng(shunt_ohm, 'ohm', 6)}, "
         f"{response.n_averages} edge(s), {int(m.sum())} bins averaged into {f.size} points"
     ]
     with warnings.catch_warnings():

@@ -9,6 +9,7 @@ import numpy as np
 
 from ._connection import InstrumentNoise
 from ._errors import MeasurementWarning, ZfitInputError
+from ._units import format_eng
 
 __all__ = ["Sweep", "make_sweep", "MIN_POINTS", "CONNECTIONS"]
 
@@ -150,7 +151,7 @@ def make_sweep(
         fail("uncertainty is not a positive finite number", int(np.flatnonzero(~(np.isfinite(sig) & (sig > 0)))[0]))
     nonpos = f <= 0
     if nonpos.any():
-        fail(f"frequency {f[nonpos][0]:g} Hz is not positive", int(np.flatnonzero(nonpos)[0]))
+        fail(f"frequency {format_eng(f[nonpos][0], 'Hz')} is not positive", int(np.flatnonzero(nonpos)[0]))
 
     order = np.argsort(f, kind="stable")
     if np.any(np.diff(order) < 0):
@@ -177,7 +178,7 @@ def make_sweep(
     if active.any():
         i = int(np.flatnonzero(active)[0])
         fail(
-            f"not a passive one-port: Re Z = {z.real[i]:.4g} ohm at {f[i]:.6g} Hz is below zero "
+            f"not a passive one-port: Re Z = {format_eng(z.real[i], 'ohm')} at {format_eng(f[i], 'Hz', 6)} is below zero "
             f"by more than {k:.1f} standard uncertainties (check the connection and the calibration)",
             i,
         )

@@ -48,6 +48,9 @@ def format_eng(x: float | None, unit: str = "", digits: int = 4) -> str:
         text = "nan" if math.isnan(x) else ("-inf" if x < 0 else "inf")
         return f"{text} {unit}".rstrip()
     e = _exponent3(x)
+    if x != 0 and not (1e-18 <= abs(x) < 999.5e15):
+        # Beyond the prefixes: a plain exponent, never "1e+285P".
+        return f"{x:.{digits}g} {unit}".rstrip()
     m = x / 10.0**e
     # Rounding can carry the mantissa to 1000 (999.96 -> 1000): move up a prefix.
     if abs(float(f"{m:.{digits}g}")) >= 1000 and e < 15:
