@@ -27,7 +27,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ._errors import FitError, MeasurementWarning, ZfitInputError
-from ._figures import SRF, Estimate, Figures
+from ._figures import SRF, Estimate, Figures, _num
 from ._units import format_eng
 
 __all__ = [
@@ -221,13 +221,6 @@ class FitQuality:
             "worse_than_rational": bool(self.worse_than_rational),
             "starts": int(self.starts),
         }
-
-
-def _num(x):
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
 
 
 @dataclass(frozen=True)
