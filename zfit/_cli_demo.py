@@ -126,13 +126,13 @@ def _command(part: DemoPart, sweeps: Path, outputs: dict) -> list[str]:
 
 def _step_options() -> set:
     """The output options ``zfit step`` has (the demo writes the rest itself)."""
-    import click
     import typer.main
 
     from ._cli_common import app as _app
 
+    # Typer's own command group (newer typer vendors click: do not import it).
     command = typer.main.get_command(_app)
-    step = command.commands.get("step") if isinstance(command, click.Group) else None
+    step = getattr(command, "commands", {}).get("step")
     if step is None:
         return {"--json", "--plot"}
     return {o for p in step.params for o in getattr(p, "opts", ())}
