@@ -740,65 +740,34 @@ def resolution_limits_of(ref, sweep, mask=None) -> dict:
     mask : array_like of bool, optional
         The points the circuit was fitted to (all by default).
     """
-    from ._resolution import is_resolved
+    from ._resolution import is_resolved, limits_for
 
     circuit = ref.circuit
     values = np.asarray(ref.values, float)
     red = ref.reduced_chi2 if math.isfinite(ref.reduced_chi2) and ref.reduced_chi2 > 0 else 1.0
     with np.errstate(all="ignore"):
         rel = np.sqrt(np.clip(np.diag(ref.log_cov), 0.0, None) / red)
-    solver = None
+    # Solving for a limit costs more than the whole identification: only for
+    # the parameters whose uncertainty comes near it.
+    needed = [key for i, key in enumerate(circuit.keys) if not (math.isfinite(rel[i]) and rel[i] < _RESOLUTION_SOLVE)]
+    limits = {}
+    sel = slice(None) if mask is None else np.asarray(mask, bool)
+    for key in needed:
+        try:
+            limits.update(limits_for(
+                circuit.family, circuit.mapping(values), np.asarray(sweep.f_hz, float)[sel],
+                np.asarray(sweep.sigma_ohm, float)[sel], sweep.connection, sweep.reference_ohm, sweep.noise,
+                keys=(key,),
+            ))
+        except (ValueError, ArithmeticError, np.linalg.LinAlgError):
+            pass  # no limit for this parameter: reported as null
     out = {}
     for i, key in enumerate(circuit.keys):
-        v, r = float(values[i]), float(rel[i])
-        if math.isfinite(r) and r < _RESOLUTION_SOLVE:
-            limit = None
-        else:
-            if solver is None:
-                solver = _limit_solver(circuit, values, sweep, mask)
-            try:
-                limit = solver(key)
-            except (ValueError, ArithmeticError, np.linalg.LinAlgError):
-                limit = None
+        limit = limits.get(key)
         if limit is not None and not (math.isfinite(limit) and limit > 0):
             limit = None
-        out[key] = (bool(is_resolved(key, v, limit)), None if limit is None else float(limit))
+        out[key] = (bool(is_resolved(key, float(values[i]), limit)), None if limit is None else float(limit))
     return out
-
-
-def _limit_solver(circuit, values, sweep, mask):
-    """A function key -> resolution limit, the computation of `zfit._resolution.limits_for` for one key."""
-    from ._connection import NA_CONNECTIONS, InstrumentNoise
-    from ._resolution import RESOLUTION_KIND, _limit, _sigma_shape, fisher_uncertainties
-
-    sel = slice(None) if mask is None else np.asarray(mask, bool)
-    f = np.asarray(sweep.f_hz, float)[sel]
-    sigma = np.asarray(sweep.sigma_ohm, float)[sel]
-    model = circuit.family
-    params = circuit.mapping(values)
-    connection = sweep.connection
-    z0 = 50.0 if sweep.reference_ohm is None else float(sweep.reference_ohm)
-    noise = sweep.noise
-    if noise is None and connection in NA_CONNECTIONS:
-        noise = InstrumentNoise()
-    base = _sigma_shape(circuit.impedance(values, f), connection, z0, noise)
-
-    def rel_std(key, x):
-        p = dict(params)
-        p[key] = x
-        sig = sigma
-        if base is not None:
-            with np.errstate(all="ignore"):
-                sig = sigma * _sigma_shape(circuit.impedance(circuit.vector(p), f), connection, z0, noise) / base
-        if not np.all(np.isfinite(sig) & (sig > 0)):
-            return math.inf
-        return fisher_uncertainties(model, p, f, sig)[key] / x
-
-    def solve(key):
-        v = abs(float(params[key]))
-        return _limit(lambda x: rel_std(key, x), v if v != 0 else 1e-3, RESOLUTION_KIND.get(key, "lower"))
-
-    return solve
 
 
 def _correlation(ref):

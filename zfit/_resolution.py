@@ -245,7 +245,7 @@ def resolution_limits(sweep, identification) -> dict[str, float | None]:
     )
 
 
-def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference_ohm=None, noise=None):
+def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference_ohm=None, noise=None, keys=None):
     """Return the resolution limit of each parameter of a circuit measured as described.
 
     The pure computation behind `resolution_limits`, also used by the planner.
@@ -266,6 +266,9 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
     noise : InstrumentNoise, optional
         The instrument noise; None keeps sigma fixed while the value moves
         (the analyser default is assumed for S-parameter connections).
+    keys : iterable of str, optional
+        Solve only for these parameters (each solve costs a few Fisher
+        evaluations); all of them when None.
 
     Returns
     -------
@@ -293,6 +296,8 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
 
     out = {}
     for key, value in params.items():
+        if keys is not None and key not in keys:
+            continue
         out[key] = _limit(lambda x, key=key: rel_std(key, x), abs(value) if value != 0 else 1e-3, RESOLUTION_KIND[key])
     return out
 
