@@ -160,6 +160,19 @@ def _rows(x: np.ndarray, starts: np.ndarray, length: int) -> np.ndarray:
     return x[starts[:, None] + np.arange(length)[None, :]]
 
 
+def _settled_ends(rows: np.ndarray, k: int) -> np.ndarray:
+    """Return `rows` with the first and last sample replaced by the mean of the first and last `k`.
+
+    `rows` is a fresh gather (fancy indexing) and is changed in place when already float.
+    """
+    if k <= 1:
+        return rows
+    rows = rows.astype(float, copy=False)
+    rows[:, 0] = rows[:, :k].mean(axis=1)
+    rows[:, -1] = rows[:, -k:].mean(axis=1)
+    return rows
+
+
 def edge_response(
     y: np.ndarray,
     dt: float,
@@ -173,6 +186,7 @@ def edge_response(
     dc_gain: float | None = None,
     noise_x: float = 0.0,
     noise_y: float = 0.0,
+    end_average: int = 1,
     coherence_min: float = DEFAULT_COHERENCE_MIN,
     energy_min_db: float = DEFAULT_ENERGY_MIN_DB,
 ) -> FrequencyResponse:
@@ -214,6 +228,12 @@ def edge_response(
     noise_x, noise_y : float
         White-noise standard deviation per sample of each channel (V); sets
         the uncertainty floor from noise and quantisation.
+    end_average : int
+        Samples averaged at each end of a segment to set its first and last
+        value.  A segment that starts and ends on settled levels (one edge)
+        then carries the noise of its ends, which is common to every bin,
+        divided by this number instead of whole; leave 1 for segments of a
+        period, whose ends are not settled.
     coherence_min : float
         Lowest coherence inside the usable band.
     energy_min_db : float
@@ -253,12 +273,13 @@ def edge_response(
     per_block = max(1, _BLOCK_SAMPLES // (seg_len + 1))
     omega_dt = 2.0 * np.pi * f * dt
     ideal_shape = np.sinc(f * dt) * np.exp(0.5j * omega_dt) if x is None else None
+    k_end = int(min(max(1, end_average), (seg_len + 1) // 4))
     for b in range(0, n_d, per_block):
         st = starts[b:b + per_block]
-        ry = np.diff(_rows(y, st, seg_len + 1), axis=1)
+        ry = np.diff(_settled_ends(_rows(y, st, seg_len + 1), k_end), axis=1)
         Y = np.fft.rfft(ry, axis=1)
         if x is not None:
-            rx = np.diff(_rows(x, st, seg_len + 1), axis=1)
+            rx = np.diff(_settled_ends(_rows(x, st, seg_len + 1), k_end), axis=1)
             X = np.fft.rfft(rx, axis=1)
         else:
             # The sampled derivative of an ideal step of height A at s samples:
@@ -282,9 +303,15 @@ def edge_response(
     with np.errstate(divide="ignore", invalid="ignore"):
         h = sxy / sxx
         coh = np.clip(np.abs(sxy) ** 2 / (sxx * syy), 0.0, 1.0)
-        # Noise floor: white noise of variance s^2 differenced has variance
-        # 4 s^2 sin^2(w dt / 2) per sample, N times that per DFT bin.
-        dvar = seg_len * 4.0 * np.sin(0.5 * omega_dt) ** 2
+        # Noise floor: the DFT of the N differences of N + 1 samples of white
+        # noise of variance s^2 weights each inner sample by e^{j w dt} - 1
+        # (|.|^2 = 4 sin^2(w dt / 2)) and each end sample by 1, so its variance
+        # is s^2 (4 (N - 1) sin^2(w dt / 2) + 2).  The end term is the
+        # segment's truncation: it dominates the lowest bins, where the inner
+        # term vanishes, and dropping it made the uncertainty of a single
+        # step's lowest bins several times too small.
+        # Ends averaged over k samples carry s^2 / k each.
+        dvar = (seg_len - 1) * 4.0 * np.sin(0.5 * omega_dt) ** 2 + 2.0 / k_end
         gxx = sxx / n_d
         var_noise = dvar * (noise_y**2 + np.abs(h) ** 2 * noise_x**2) / (n_d * gxx)
         std_noise = np.sqrt(var_noise)
@@ -387,6 +414,26 @@ def _log_merge(f, h, h_std, max_points):
     return fm, hr + 1j * hi, 1.0 / np.sqrt(sw[keep])
 
 
+def _smoothed_magnitude(h: np.ndarray, h_std: np.ndarray, half_width: int = 4) -> np.ndarray:
+    """Return |h| averaged over up to ``2 half_width + 1`` neighbours where it is noisy, |h| itself where it is not.
+
+    Each point's neighbourhood shrinks to the points itself as its relative
+    uncertainty falls below 2 %, so that a sharp feature measured precisely
+    (a resonance of a square wave averaged over many periods) keeps its own
+    magnitude.
+    """
+    a = np.abs(h)
+    if a.size < 3:
+        return a
+    k = np.arange(-half_width, half_width + 1)
+    idx = np.clip(np.arange(a.size)[:, None] + k[None, :], 0, a.size - 1)
+    rel = np.clip(h_std / np.maximum(a, 1e-300), 0.0, 1.0)
+    # Neighbourhood half-width per point, from 0 (rel <= 2 %) to half_width (rel >= 20 %).
+    hw = np.clip(np.round(half_width * (rel - 0.02) / 0.18), 0, half_width)
+    inside = np.abs(k)[None, :] <= hw[:, None]
+    return np.sum(np.where(inside, a[idx], 0.0), axis=1) / np.sum(inside, axis=1)
+
+
 def impedance_sweep(response: FrequencyResponse, shunt_ohm: float, *, source: str = "", max_points: int = 300,
                     notes=()):
     """Return the part's impedance ``Z = R (V_in - V_out) / V_out`` as a `Sweep`.
@@ -426,7 +473,11 @@ def impedance_sweep(response: FrequencyResponse, shunt_ohm: float, *, source: st
             f"at least {MIN_POINTS} are needed for the impedance: capture more edges or a longer period")
     f, h, s = _log_merge(response.f_hz[m], response.h[m], response.h_std[m], max_points)
     z = shunt_ohm * (1.0 / h - 1.0)
-    sz = shunt_ohm * s / np.abs(h) ** 2
+    # The propagation takes |H| smoothed over neighbouring points, not each
+    # point's own: where |H| is known to tens of percent (a single step's
+    # upper band), a weight ~|H_measured|^2 favours the points whose noise
+    # made |H| large, hence |Z| small, and biases the fit (a stray C too large).
+    sz = shunt_ohm * s / _smoothed_magnitude(h, s) ** 2
     notes = list(notes) + [
         f"impedance from a capture: Z = R (V_in - V_out)/V_out with R = {format_eng(shunt_ohm, 'ohm', 6)}, "
         f"{response.n_averages} edge(s), {int(m.sum())} bins averaged into {f.size} points"

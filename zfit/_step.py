@@ -956,7 +956,7 @@ def analyse_capture(
         raise ZfitInputError(
             f"channel {ref_name} has no two settled states (levels {format_eng(ref_lv.low, 'V')} and {format_eng(ref_lv.high, 'V')} "
             f"over a range of {format_eng(spread, 'V')}): it is not a square wave or a step", src)
-    pol, _t_first, t_mid, _t_last = find_edges(ref, ref_lv)
+    pol, t_first, t_mid, _t_last = find_edges(ref, ref_lv)
     if pol.size == 0:
         raise ZfitInputError(
             f"no edge in channel {ref_name}: it never goes from below 10 % to above 90 % of its levels", src)
@@ -977,7 +977,7 @@ def analyse_capture(
         fits = (starts >= 0) & (starts + seg_len + 1 <= n)
     if not fits.any():
         raise ZfitInputError(f"no edge of channel {ref_name} has a whole segment inside the record", src)
-    pol, t_mid, starts = pol[fits], t_mid[fits], starts[fits]
+    pol, t_mid, starts, t_first = pol[fits], t_mid[fits], starts[fits], t_first[fits]
     n_edges = int(pol.size)
     if seg_len < 32:
         raise ZfitInputError(f"the edges are only {spacing} samples apart: sample faster or use a slower square wave", src)
@@ -1017,10 +1017,18 @@ def analyse_capture(
     elif r_idx.size < 4:
         warn(f"only {r_idx.size} {what} to average ({n_edges} edges): the coherence and the uncertainties are rough")
     dc_gain = out_lv.amplitude / in_lv.amplitude if (has_states and x is not None) else None
+    # One-edge segments start and end on settled levels: their end values are
+    # taken as the mean of the samples before the edge starts (and as many at
+    # the end), since the noise of a single end sample is common to every bin
+    # and, for one edge, dominates the lowest bins.  The edge is taken to start
+    # twice its 10-to-50 % time before its 50 % instant (a first-order edge
+    # starts 1.2 times that time before).
+    lead = float(np.max(t_mid - t_first)) if t_first.size else 0.0
+    end_average = 1 if per_period else int(max(1, min(pre - 2 * math.ceil(lead) - 1, length // 20)))
 
     def two_channel_response():
         return edge_response(y, dt, r_starts, r_len, x=x, noise_x=in_lv.noise, noise_y=noise_y, dc_gain=dc_gain,
-                             coherence_min=coherence_min, energy_min_db=energy_min_db)
+                             end_average=end_average, coherence_min=coherence_min, energy_min_db=energy_min_db)
 
     # ---- per-edge output figures and the averaged edge, block by block
     t10 = np.full(n_edges, np.nan)
@@ -1175,7 +1183,8 @@ def analyse_capture(
                                  energy_min_db=energy_min_db)
         else:
             resp = edge_response(y, dt, starts, seg_len, step_at=step_at, step_size=ref_lv.amplitude,
-                                 noise_y=noise_y, coherence_min=coherence_min, energy_min_db=energy_min_db)
+                                 noise_y=noise_y, end_average=end_average, coherence_min=coherence_min,
+                                 energy_min_db=energy_min_db)
     band = resp.band_hz
     if x is not None and resp.nyquist_level_db > -40.0:
         warn(f"the input still has energy near the Nyquist frequency ({-resp.nyquist_level_db:.0f} dB below its peak): "
