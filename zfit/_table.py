@@ -38,6 +38,7 @@ from pathlib import Path
 import numpy as np
 
 from ._errors import ZfitInputError
+from ._text import file_text
 
 __all__ = ["TableData", "read_table", "parse_columns", "QUANTITIES", "PAIRS"]
 
@@ -273,19 +274,6 @@ def _split_items(text: str):
 # ------------------------------------------------------------------ reading
 
 
-def _text(path: Path) -> str:
-    raw = path.read_bytes()
-    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
-        # Some bench software on Windows exports UTF-16 text.
-        return raw.decode("utf-16")
-    if b"\x00" in raw[:4096]:
-        raise ZfitInputError("is a binary file, not a text table", path)
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        return raw.decode("latin-1")
-
-
 def _is_number(tok: str) -> bool:
     try:
         float(tok)
@@ -343,7 +331,7 @@ def read_table(path, columns: str | None = None) -> TableData:
         give an impedance.
     """
     path = Path(path)
-    lines = _text(path).splitlines()
+    lines = file_text(path, "text table").splitlines()
     # Quotes around fields (spreadsheet exports) carry no meaning here.
     stripped = [ln.replace('"', "").strip() for ln in lines]
     content = [i for i, s in enumerate(stripped) if s and s[0] not in "#!"]

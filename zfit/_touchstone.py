@@ -28,6 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from ._errors import ZfitInputError
+from ._text import file_text
 from ._units import format_eng
 
 __all__ = ["TouchstoneData", "read_touchstone", "looks_like_touchstone"]
@@ -67,23 +68,6 @@ class TouchstoneData:
     lines: np.ndarray
     data_format: str
     notes: tuple[str, ...] = field(default=())
-
-
-def _text(path: Path) -> str:
-    raw = path.read_bytes()
-    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
-        # Bench software on Windows may save UTF-16 text (with its byte-order mark).
-        try:
-            return raw.decode("utf-16")
-        except UnicodeDecodeError:
-            raise ZfitInputError("starts as UTF-16 text but cannot be decoded as such", path) from None
-    if b"\x00" in raw[:4096]:
-        raise ZfitInputError("is a binary file, not a Touchstone text file", path)
-    try:
-        return raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        # Instruments often write Latin-1 (a degree sign or "Ohm" with an umlaut in comments).
-        return raw.decode("latin-1")
 
 
 def looks_like_touchstone(text: str) -> bool:
@@ -211,7 +195,7 @@ def read_touchstone(path, n_ports: int | None = None) -> TouchstoneData:
        version 2.0, 2009, sections "Option line", "Network data".
     """
     path = Path(path)
-    text = _text(path)
+    text = file_text(path, "Touchstone text file")
     lines = text.splitlines()
     body = [ln.partition("!")[0].strip() for ln in lines]
     if text and text[-1] not in "\r\n":
@@ -551,7 +535,7 @@ def _skrf_touchstone(path: Path):
         # scikit-rf guesses among 8-bit encodings only: hand it the decoded text.
         import io
 
-        source = io.StringIO(_text(path))
+        source = io.StringIO(file_text(path, "Touchstone text file"))
         source.name = path.name
     try:
         return ts_module.Touchstone(source)
