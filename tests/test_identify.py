@@ -206,7 +206,6 @@ def test_result_is_frozen_and_picklable():
 
 
 def _s1p(tmp_path, seed=11):
-    from zfit._connection import impedance_from_s
     from zfit._export import touchstone_text
 
     f = np.geomspace(1e4, 3e8, 401)

@@ -10,7 +10,6 @@ the binomial standard deviation of a 95.4 % coverage is 1.5 %, so the band
 is more than three of those wide on each side.
 """
 
-import math
 import warnings
 
 import numpy as np

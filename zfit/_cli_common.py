@@ -20,7 +20,7 @@ from ._errors import MeasurementWarning, ZfitError, ZfitInputError
 from ._units import parse_quantity
 
 __all__ = [
-    "app", "guarded", "quantity", "quantities", "echo", "warn_line", "sweep_from_options",
+    "app", "guarded", "command_line", "emit_json", "quantity", "quantities", "echo", "warn_line", "sweep_from_options",
     "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
     "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
 ]
@@ -85,6 +85,33 @@ def guarded(fn):
                 raise typer.Exit(2) from None
 
     return wrapper
+
+
+def command_line() -> str:
+    """Return the command line that is running, quoted so that it can be rerun."""
+    import shlex
+    import sys
+
+    return "zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:])
+
+
+def emit_json(data: dict, json_path, force: bool, say=None) -> None:
+    """Write a result's JSON to `json_path`, or to standard output for ``-``.
+
+    With ``-`` the standard output holds the JSON alone, so that it can be
+    piped; otherwise the file is written atomically and `say` reports it.
+    """
+    import json
+    import sys
+
+    from ._atomic import write_atomic
+
+    text = json.dumps(data, indent=2, allow_nan=False) + "\n"
+    if str(json_path) == "-":
+        sys.stdout.write(text)
+        return
+    write_atomic(json_path, text, force)
+    (say or echo)(f"wrote {json_path}")
 
 
 def quantity(text: str | None, what: str) -> float | None:

@@ -281,8 +281,6 @@ def demo_command(
     ground clip is tied to mains earth; follow local codes and licensed
     practice for mains or high-voltage work.
     """
-    from ._cli_identify import summary_lines as identify_lines
-    from ._cli_step import summary_lines as step_lines
     from ._errors import ZfitInputError
 
     t0 = time.perf_counter()

@@ -2,9 +2,6 @@
 
 from __future__ import annotations
 
-import json
-import shlex
-import sys
 import warnings
 from pathlib import Path
 from typing import List, Optional
@@ -24,7 +21,9 @@ from ._cli_common import (
     PortLossOpt,
     ShortOpt,
     app,
+    command_line,
     echo,
+    emit_json,
     guarded,
     quantities,
     quantity,
@@ -74,7 +73,7 @@ def identify_command(
     local codes and licensed practice for parts taken from mains-powered
     equipment.
     """
-    from ._atomic import check_writable, write_atomic
+    from ._atomic import check_writable
     from ._cli_common import sweep_from_options
     from ._errors import MeasurementWarning, ZfitInputError
     from ._identify import identify
@@ -118,18 +117,13 @@ def identify_command(
         warn_line(text)
 
     if json_path is not None:
-        text = json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n"
-        if to_stdout:
-            sys.stdout.write(text)
-        else:
-            write_atomic(json_path, text, force)
-            echo(f"wrote {json_path}")
+        emit_json(result.to_dict(), json_path, force)
     if any(x is not None for x in (plot, netlist, touchstone, report)):
         from ._outputs import write_outputs
 
         written = write_outputs(
             result, plot=plot, netlist=netlist, touchstone=touchstone, touchstone_grid=touchstone_grid,
-            report=report, force=force, command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:]),
+            report=report, force=force, command=command_line(),
             netlist_kind=netlist_kind,
         )
         for path in written:

@@ -2,16 +2,13 @@
 
 from __future__ import annotations
 
-import json
 import math
-import shlex
-import sys
 from pathlib import Path
 from typing import Optional
 
 import typer
 
-from ._cli_common import ForceOpt, app, echo, guarded, quantity
+from ._cli_common import ForceOpt, app, command_line, echo, emit_json, guarded, quantity
 
 _HELP = """Analyse an oscilloscope capture of a square wave (or one step) driven through a part.
 
@@ -99,16 +96,11 @@ def step_command(
         from ._outputs import write_outputs
 
         for path in write_outputs(result, plot=plot, netlist=netlist, report=report, force=force,
-                                  command="zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:])):
+                                  command=command_line()):
             say(f"wrote {path}")
 
     if json_path is not None:
-        text = json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n"
-        if to_stdout:
-            sys.stdout.write(text)
-        else:
-            write_atomic(json_path, text, force)
-            say(f"wrote {json_path}")
+        emit_json(result.to_dict(), json_path, force, say)
     if response is not None:
         write_atomic(response, response_csv(result), force)
         say(f"wrote {response}")
