@@ -2,6 +2,8 @@
 functions, scikit-rf's VectorFitting, statistics of the weighted fit and the
 passivity check."""
 
+import warnings
+
 import numpy as np
 import pytest
 from scipy.optimize import brentq, linear_sum_assignment
@@ -359,8 +361,13 @@ def test_agrees_with_scikit_rf_on_a_reflection_measurement():
     s11 = (z - 50) / (z + 50)
     net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="hz"), s=s11.reshape(-1, 1, 1), z0=50)
     vf = VectorFitting(net)
-    vf.vector_fit(n_poles_real=0, n_poles_cmplx=1, init_pole_spacing="log", parameter_type="s",
-                  fit_constant=True, fit_proportional=False)
+    with warnings.catch_warnings():
+        # scikit-rf 2.2 and later warn that its own unconstrained fit of this
+        # (passive) S11 is not passive; that is scikit-rf's remark on its own
+        # model, expected here, and not what this test compares.
+        warnings.filterwarnings("ignore", message="The fitted network is passive, but the vector fit is not passive")
+        vf.vector_fit(n_poles_real=0, n_poles_cmplx=1, init_pole_spacing="log", parameter_type="s",
+                      fit_constant=True, fit_proportional=False)
     s_skrf = vf.get_model_response(0, 0, f)
     ms = vector_fit(f, s11, n_poles=2, constant=True, proportional=False)
     np.testing.assert_allclose(ms(f), s_skrf, rtol=1e-9, atol=1e-12)
