@@ -46,17 +46,17 @@ CHILD = r"""
 import json, resource, sys, time, tracemalloc
 import numpy as np
 import pandas as pd
-import zfit._capture, zfit._step, scipy.signal  # imported before the baseline
+import zfit.io._capture, zfit.capture._step, scipy.signal  # imported before the baseline
 kind, path, skip = sys.argv[1], sys.argv[2], int(sys.argv[3])
 base = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
 tracemalloc.start()
 t0 = time.perf_counter()
 out = {}
 if kind == "zfit-numpy":
-    cap = zfit._capture.read_capture(path, accelerate=False)
+    cap = zfit.io._capture.read_capture(path, accelerate=False)
     n = cap.n_samples
 elif kind == "zfit-pandas":
-    cap = zfit._capture.read_capture(path, accelerate=True)
+    cap = zfit.io._capture.read_capture(path, accelerate=True)
     n = cap.n_samples
 elif kind == "loadtxt":
     a = np.loadtxt(path, delimiter=",", skiprows=skip)
@@ -65,9 +65,9 @@ elif kind == "read_csv":
     a = pd.read_csv(path, skiprows=skip - 1, engine="c").to_numpy()
     n = a.shape[0]
 elif kind == "zfit-analysis":
-    cap = zfit._capture.read_capture(path)
+    cap = zfit.io._capture.read_capture(path)
     t1 = time.perf_counter()
-    r = zfit._step.analyse_capture(cap, "CH1", "CH2")
+    r = zfit.capture._step.analyse_capture(cap, "CH1", "CH2")
     out["analysis_s"] = time.perf_counter() - t1
     out["read_s"] = t1 - t0
     out["tau_s"] = r.time_constant_s

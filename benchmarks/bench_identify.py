@@ -36,11 +36,11 @@ from pathlib import Path
 
 import numpy as np
 
-from zfit._circuits import circuit_impedance
-from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.fit._circuits import circuit_impedance
+from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
-from zfit._identify import identify
-from zfit._sweep import make_sweep
+from zfit.identification._pipeline import identify
+from zfit.data._sweep import make_sweep
 
 NOISE = InstrumentNoise(2e-3, 1e-5)
 

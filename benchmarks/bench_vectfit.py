@@ -42,7 +42,7 @@ import numpy as np  # noqa: E402
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from zfit._vectfit import fit_impedance  # noqa: E402
+from zfit.fit._vectfit import fit_impedance  # noqa: E402
 
 TWO_PI = 2 * np.pi
 

@@ -22,7 +22,7 @@ import numpy as np
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE.parent))
 
-from zfit._connection import s_from_impedance  # noqa: E402
+from zfit.data._connection import s_from_impedance  # noqa: E402
 
 SEED = 20261201
 Z0 = 50.0

@@ -41,7 +41,7 @@ def _normalised(text: str, folder: Path) -> str:
 
 def contract_outputs(folder: Path) -> dict[str, str]:
     """Return {file name: normalised text} of the demo's contract outputs."""
-    from zfit._cli import app
+    from zfit.cli._app import app
 
     runner = CliRunner()
     old = os.getcwd()

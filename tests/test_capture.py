@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 from zfit import MeasurementWarning, ZfitInputError
-from zfit._capture import clipped_fraction, make_capture, read_capture
+from zfit.io._capture import clipped_fraction, make_capture, read_capture
 
 
 def _scope_text(t, chans, *, meta=(), header="Time,CH1,CH2", units=None, fmt="{:.7E}", sep=","):

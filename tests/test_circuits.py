@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 
 from ngspice import run_ac
-from zfit._circuits import (
+from zfit.fit._circuits import (
     CapacitorCircuit,
     InductorCircuit,
     circuit_for,
@@ -136,7 +136,7 @@ def test_bad_parameters_are_refused():
 
 @pytest.mark.parametrize("circuit,params,netlist", CASES, ids=[c[0].topology for c in CASES])
 def test_guesses_from_data_and_rational_model_land_near_the_truth(circuit, params, netlist):
-    from zfit._vectfit import fit_impedance
+    from zfit.fit._vectfit import fit_impedance
 
     f = np.geomspace(1e4, 3e8, 400)
     p = circuit.vector(params)

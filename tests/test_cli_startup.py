@@ -14,7 +14,7 @@ def test_help_imports_no_heavy_library():
     code = (
         "import sys\n"
         "from typer.testing import CliRunner\n"
-        "from zfit._cli import app\n"
+        "from zfit.cli._app import app\n"
         "r = CliRunner().invoke(app, ['--help'])\n"
         "assert r.exit_code == 0, r.output\n"
         f"print(','.join(m for m in {HEAVY!r} if m in sys.modules))\n"

@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from zfit._cli import app
+from zfit.cli._app import app
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_sweeps"
 pytestmark = pytest.mark.skipif(not (DEMO / "cap_100n_shunt_thru.s2p").is_file(), reason="demo_sweeps/ not present")
@@ -68,7 +68,7 @@ def test_demo_netlist_and_touchstone_agree_in_ngspice(tmp_path):
 
 
 def test_demo_never_reuses_a_folder_that_holds_files(tmp_path, monkeypatch):
-    from zfit._cli_demo import _fresh_folder
+    from zfit.cli._demo import _fresh_folder
     from zfit._errors import ZfitInputError
 
     monkeypatch.chdir(tmp_path)

@@ -15,10 +15,10 @@ import pytest
 
 import zfit
 from ngspice import run_ac
-from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import ZfitInputError
-from zfit._fixture import compensate_from_files, compensated, corrected_impedance, fixture_on_grid, port_extended
-from zfit._sweep import make_sweep
+from zfit.data._fixture import compensate_from_files, compensated, corrected_impedance, fixture_on_grid, port_extended
+from zfit.data._sweep import make_sweep
 
 F0, F1, PPD = 1e3, 1e8, 30
 NOISE = InstrumentNoise(1e-3, 1e-5)
@@ -238,7 +238,7 @@ def test_identify_through_the_pi_board_from_the_command_line(sims, rng, tmp_path
 
     from typer.testing import CliRunner
 
-    from zfit._cli import app
+    from zfit.cli._app import app
 
     f = sims["f"]
     paths = {}

@@ -13,15 +13,15 @@ import numpy as np
 import pytest
 
 from ngspice import run_ac
-from zfit._circuits import circuit_impedance
-from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.fit._circuits import circuit_impedance
+from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
-from zfit._identify import identify
-from zfit._resolution import (
+from zfit.identification._pipeline import identify
+from zfit.fit._fisher import (
     fisher_uncertainties, ground_loop_warning, is_resolved, limits_for, resolution_entries, resolution_limits,
     unresolved_text,
 )
-from zfit._sweep import Sweep
+from zfit.data._sweep import Sweep
 
 NOISE = InstrumentNoise(1e-3, 1e-5)
 CAP = {"C": 100e-9, "ESR": 5e-3, "ESL": 0.5e-9}

@@ -14,10 +14,10 @@ import pytest
 from typer.testing import CliRunner
 
 from ngspice import run_ac
-from zfit._circuits import CapacitorCircuit, InductorCircuit
-from zfit._connection import InstrumentNoise
+from zfit.fit._circuits import CapacitorCircuit, InductorCircuit
+from zfit.data._connection import InstrumentNoise
 from zfit._errors import MeasurementWarning, ZfitInputError
-from zfit._identify import identify
+from zfit.identification._pipeline import identify
 
 from test_identify_ngspice import noisy_sweep
 
@@ -165,7 +165,7 @@ def test_rational_model_and_spot_outside_the_band():
 
 
 def test_impedance_table_is_fitted_on_z():
-    from zfit._sweep import make_sweep
+    from zfit.data._sweep import make_sweep
 
     f = np.geomspace(1e3, 1e7, 301)
     cap = CapacitorCircuit()
@@ -206,7 +206,7 @@ def test_result_is_frozen_and_picklable():
 
 
 def _s1p(tmp_path, seed=11):
-    from zfit._export import touchstone_text
+    from zfit.io._touchstone_export import touchstone_text
 
     f = np.geomspace(1e4, 3e8, 401)
     sweep = _synthetic(InductorCircuit(), [10e-6, 0.5, 5e-12], f, "reflection", seed)
@@ -216,7 +216,7 @@ def _s1p(tmp_path, seed=11):
 
 
 def test_cli_prints_the_table_and_writes_json(tmp_path):
-    from zfit._cli import app
+    from zfit.cli._app import app
 
     path = _s1p(tmp_path)
     out = tmp_path / "coil.json"
@@ -236,7 +236,7 @@ def test_cli_prints_the_table_and_writes_json(tmp_path):
 
 
 def test_cli_writes_outputs_and_json_to_stdout(tmp_path):
-    from zfit._cli import app
+    from zfit.cli._app import app
 
     path = _s1p(tmp_path, seed=12)
     net = tmp_path / "coil.cir"
@@ -254,7 +254,7 @@ def test_cli_writes_outputs_and_json_to_stdout(tmp_path):
 
 
 def test_cli_refuses_bad_outputs_before_the_work(tmp_path):
-    from zfit._cli import app
+    from zfit.cli._app import app
 
     path = _s1p(tmp_path, seed=13)
     (tmp_path / "plots.png").mkdir()

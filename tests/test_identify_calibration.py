@@ -17,7 +17,7 @@ import pytest
 
 from ngspice import run_ac
 from zfit._errors import MeasurementWarning
-from zfit._identify import identify
+from zfit.identification._pipeline import identify
 
 from test_identify_ngspice import noisy_sweep
 

@@ -22,10 +22,10 @@ import numpy as np
 import pytest
 
 from ngspice import run_ac
-from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning, ZfitInputError
-from zfit._identify import identify
-from zfit._sweep import make_sweep
+from zfit.identification._pipeline import identify
+from zfit.data._sweep import make_sweep
 
 pytestmark = pytest.mark.ngspice
 
@@ -276,7 +276,7 @@ def test_spot_readout_matches_truth(identified):
     # At the band's geometric centre (far from any resonance on these bands) the readout's
     # R and X agree with the circuit's true impedance within 4 reported sigma, plus 1e-4 |Z|
     # for the rational model's own approximation where it is the one read.
-    from zfit._circuits import circuit_impedance
+    from zfit.fit._circuits import circuit_impedance
 
     bad = []
     for kind, p, band, conn, r in identified:

@@ -4,7 +4,7 @@ check, and the rational netlist from the command line.
 References: the weighted mean and its standard error (J. R. Taylor, *An
 Introduction to Error Analysis*, 2nd ed., 1997, ch. 7: sigma = 1/sqrt(sum w));
 the one-port conversions of S11 and S21 (D. M. Pozar, *Microwave Engineering*,
-4th ed., 2012, ch. 4) through `zfit._connection`; ngspice (batch mode,
+4th ed., 2012, ch. 4) through `zfit.data._connection`; ngspice (batch mode,
 tests/ngspice.py) for the cable-shield ground loop and for the netlist.
 """
 
@@ -18,11 +18,11 @@ import pytest
 from typer.testing import CliRunner
 
 from ngspice import run_ac
-from zfit._circuits import circuit_impedance
-from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.fit._circuits import circuit_impedance
+from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
-from zfit._identify import identify
-from zfit._sweep import Sweep
+from zfit.identification._pipeline import identify
+from zfit.data._sweep import Sweep
 
 NOISE = InstrumentNoise(1e-3, 1e-5)
 # 100 nF, 5 milliohm ESR, 0.5 nH: SRF 22.5 MHz.
@@ -69,7 +69,7 @@ def test_milliohm_esr_is_below_the_resolution_of_reflection_and_the_limit_is_the
     assert d["parameters"]["ESR"]["resolution_limit"] == pytest.approx(ref, rel=0.02)
     assert d["parameters"]["C"]["resolved"] is True and d["parameters"]["ESL"]["resolved"] is True
     # The table prints the limit, not the number that is only noise.
-    from zfit._cli_identify import summary_lines
+    from zfit.cli._identify import summary_lines
 
     line = next(ln for ln in summary_lines(r) if ln.strip().startswith("ESR"))
     assert "below resolution, < " in line and "±" not in line
@@ -90,8 +90,8 @@ def test_the_same_capacitor_shunt_thru_resolves_its_esr():
 
 def test_unresolved_limit_matches_the_fixtures_resolution_limits():
     # identify solves the limit only for parameters near it, with the computation of
-    # zfit._resolution.resolution_limits; both must give the same number.
-    from zfit._resolution import resolution_limits
+    # zfit.fit._fisher.resolution_limits; both must give the same number.
+    from zfit.fit._fisher import resolution_limits
 
     sweep = _measured("series-thru", 7)
     with warnings.catch_warnings():
@@ -164,8 +164,8 @@ def test_no_ground_loop_no_warning():
 @pytest.mark.ngspice
 def test_cli_writes_the_full_band_rational_network(tmp_path):
     import zfit
-    from zfit._cli import app
-    from zfit._export import touchstone_text
+    from zfit.cli._app import app
+    from zfit.io._touchstone_export import touchstone_text
 
     # A winding in two sections (two parallel resonances, 15.9 MHz and 225 MHz): no
     # single circuit holds over the band, the rational model does.
@@ -210,8 +210,8 @@ def test_refinement_reaches_the_minimum_scipy_least_squares_finds(connection):
     # standard uncertainty and chi-square within 1e-6 of itself.
     from scipy.optimize import least_squares
 
-    from zfit._circuits import CapacitorCircuit, InductorCircuit
-    from zfit._refine import Observation, _jac, _rows, refine
+    from zfit.fit._circuits import CapacitorCircuit, InductorCircuit
+    from zfit.fit._lsq import Observation, _jac, _rows, refine
 
     cases = [
         (InductorCircuit(), [10e-6, 0.5, 5e-12], np.geomspace(1e4, 3e8, 801)),

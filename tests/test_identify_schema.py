@@ -16,11 +16,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from zfit._circuits import CapacitorCircuit, InductorCircuit
-from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.fit._circuits import CapacitorCircuit, InductorCircuit
+from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
-from zfit._identify import identify
-from zfit._sweep import make_sweep
+from zfit.identification._pipeline import identify
+from zfit.data._sweep import make_sweep
 
 SCHEMA = json.loads((Path(__file__).parents[1] / "zfit" / "schemas" / "identify.schema.json").read_text())
 

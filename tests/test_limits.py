@@ -14,7 +14,7 @@ import math
 import pytest
 
 from zfit._errors import ZfitInputError
-from zfit._limits import conformity, decide, figure_name, parse_limits, read_limits
+from zfit.lot._limits import conformity, decide, figure_name, parse_limits, read_limits
 
 EXAMPLE = """\
 # incoming inspection of an invented 10 uH choke

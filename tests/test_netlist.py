@@ -9,7 +9,7 @@ import pytest
 import scipy.signal
 
 from ngspice import run_ac
-from zfit._netlist import (
+from zfit.outputs._netlist import (
     SynthesisError,
     circuit_elements,
     circuit_netlist,
@@ -123,7 +123,7 @@ def test_circuit_netlist_matches_model_in_ngspice(model, params, f0, f1):
 @pytest.mark.ngspice
 @pytest.mark.parametrize("model,params,f0,f1", CIRCUITS)
 def test_circuit_netlist_matches_zfit_circuit_impedance(model, params, f0, f1):
-    circuits = pytest.importorskip("zfit._circuits")
+    circuits = pytest.importorskip("zfit.fit._circuits")
     text = circuit_netlist(model, params, name="dut")
     f, z = _ngspice_z(text, f0, f1, 10)
     np.testing.assert_allclose(z, circuits.circuit_impedance(model, params, f), rtol=1e-3)

@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 
 from zfit._errors import MeasurementWarning, OutputExistsError, ZfitInputError
-from zfit._export import parse_grid, touchstone_text, write_touchstone
+from zfit.io._touchstone_export import parse_grid, touchstone_text, write_touchstone
 
 
 def _coil(f):

@@ -7,8 +7,8 @@ import numpy as np
 import pytest
 
 from ngspice import run_ac
-from zfit._netlist import rational_netlist
-from zfit._outputs import identification_netlist
+from zfit.outputs._netlist import rational_netlist
+from zfit.outputs._outputs import identification_netlist
 
 
 def _ngspice(text, f0, f1, ppd=20):
@@ -18,7 +18,7 @@ def _ngspice(text, f0, f1, ppd=20):
 
 def _identified(kind, seed):
     import zfit
-    from zfit._sweep import make_sweep
+    from zfit.data._sweep import make_sweep
 
     rng = np.random.default_rng(seed)
     f = np.geomspace(1e4, 3e8, 301)
@@ -68,7 +68,7 @@ def test_rational_netlist_of_a_vector_fit_reproduces_it():
 @pytest.mark.ngspice
 def test_rational_netlist_of_a_noisy_two_resonance_part():
     import zfit
-    from zfit._sweep import make_sweep
+    from zfit.data._sweep import make_sweep
 
     # A choke whose winding has a lossless-series second section: noise gives
     # the fit a slightly negative constant / series R that the netlist repairs
@@ -100,7 +100,7 @@ def test_every_netlist_of_the_demo_sweeps_in_ngspice(name, connection):
 
     import zfit
     from zfit._errors import MeasurementWarning
-    from zfit._netlist import SynthesisError
+    from zfit.outputs._netlist import SynthesisError
 
     if not (DEMO / name).is_file():
         pytest.skip("demo_sweeps/ not present")

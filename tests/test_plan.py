@@ -17,13 +17,13 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from zfit._circuits import circuit_impedance
-from zfit._cli import app
-from zfit._connection import impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.fit._circuits import circuit_impedance
+from zfit.cli._app import app
+from zfit.data._connection import impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning, ZfitInputError
-from zfit._identify import identify
-from zfit._planner import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, plan_measurement
-from zfit._sweep import Sweep
+from zfit.identification._pipeline import identify
+from zfit.identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, plan_measurement
+from zfit.data._sweep import Sweep
 
 CAP = ("capacitor", {"C": 100e-9, "ESR": 5e-3, "ESL": 0.5e-9})
 # 10 uH resonating at 20 MHz (C_p = 1 / ((2 pi 20 MHz)^2 10 uH) = 6.33 pF),

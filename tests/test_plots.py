@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from zfit._errors import OutputExistsError, ZfitInputError
-from zfit._plots import (
+from zfit.outputs._plots import (
     envelope,
     eng_tick,
     figure_bytes,
@@ -201,7 +201,7 @@ def test_svg_is_reproducible(inductor_sweep):
 
 
 def test_schematic_draws_every_element():
-    from zfit._plots import plot_schematic
+    from zfit.outputs._plots import plot_schematic
 
     tree = ("parallel", [("series", [("R", "R_s = 66 mΩ"), ("L", "L = 10 µH")]), ("C", "C_p = 4.7 pF"),
                          ("R", "R_p = 20 kΩ")])
@@ -218,7 +218,7 @@ def test_schematic_draws_every_element():
 def test_schematic_labels_of_a_series_chain_do_not_overlap():
     # At the report's width (1.95 in) the three labels of a capacitor's series
     # chain used to run into each other ("ESL = 900 pHC = 100 nF").
-    from zfit._plots import plot_schematic
+    from zfit.outputs._plots import plot_schematic
 
     tree = ("series", [("R", "ESR = 8.02 mΩ"), ("L", "ESL = 900 pH"), ("C", "C = 100 nF")])
     fig = plot_schematic(tree, width_in=1.95)

@@ -8,13 +8,13 @@ import numpy as np
 import pytest
 import scipy.signal
 
-from zfit._outputs import step_figures, write_outputs
+from zfit.outputs._outputs import step_figures, write_outputs
 
 
 @pytest.fixture(scope="module")
 def rc_result():
-    from zfit._capture import make_capture
-    from zfit._step import analyse_capture
+    from zfit.io._capture import make_capture
+    from zfit.capture._step import analyse_capture
 
     # A square wave through a first-order low-pass, tau = 20 us (scipy.signal.lsim is
     # the reference response), sampled at 10 MHz and quantised.

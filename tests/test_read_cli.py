@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
-from zfit._cli import app
+from zfit.cli._app import app
 
 ROOT = Path(__file__).parent.parent
 TS = Path(__file__).parent / "data" / "touchstone"

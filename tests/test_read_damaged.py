@@ -11,7 +11,7 @@ import skrf
 from typer.testing import CliRunner
 
 from zfit import read_sweep
-from zfit._cli import app
+from zfit.cli._app import app
 
 HEADER = "! invented test part\n# MHz S RI R 50\n"
 ROWS = "".join(f"{f:.6f} {0.1 + 0.001 * k:.9e} {0.2 + 0.001 * k:.9e}\n"

@@ -11,8 +11,8 @@ import pytest
 from typer.testing import CliRunner
 
 from zfit import MeasurementWarning, ZfitInputError, read_sweep
-from zfit._cli import app
-from zfit._table import PAIRS, parse_columns
+from zfit.cli._app import app
+from zfit.io._table import PAIRS, parse_columns
 
 DATA = Path(__file__).parent / "data" / "tables"
 F = np.geomspace(1e3, 3e7, 25)
@@ -193,7 +193,7 @@ def test_unsorted_and_repeated_rows(tmp_path):
 
 def test_default_noise_on_tables_and_override():
     from zfit import InstrumentNoise
-    from zfit._readers import TABLE_NOISE_DEFAULT, default_noise
+    from zfit.io._sweep_file import TABLE_NOISE_DEFAULT, default_noise
 
     assert default_noise(DATA / "ls_rs_tab.txt") == TABLE_NOISE_DEFAULT == InstrumentNoise(1e-3, 1e-4)
     sw = read_sweep(DATA / "ls_rs_tab.txt")

@@ -11,9 +11,9 @@ import pytest
 
 from ngspice import run_ac
 from typer.testing import CliRunner
-from zfit._cli import app
+from zfit.cli._app import app
 from zfit import read_sweep
-from zfit._touchstone import read_touchstone
+from zfit.io._touchstone import read_touchstone
 
 DATA = Path(__file__).parent / "data" / "touchstone"
 

@@ -23,8 +23,8 @@ from scipy import signal
 
 from ngspice import run_tran
 from zfit import MeasurementWarning, ZfitInputError
-from zfit._capture import make_capture
-from zfit._step import (
+from zfit.io._capture import make_capture
+from zfit.capture._step import (
     analyse_capture, matrix_pencil, state_levels, stray_capacitance_from_inductance,
     stray_capacitance_two_resonances,
 )
@@ -472,8 +472,8 @@ def test_disagreeing_time_constants_are_warned_in_engineering_notation():
     from scipy.signal import lfilter
 
     from zfit import MeasurementWarning
-    from zfit._capture import make_capture
-    from zfit._step import analyse_capture
+    from zfit.io._capture import make_capture
+    from zfit.capture._step import analyse_capture
 
     dt, n, tau = 1e-8, 20000, 2e-6
     t = np.arange(n) * dt

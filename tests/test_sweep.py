@@ -1,7 +1,7 @@
 import numpy as np
 import pytest
 
-from zfit._connection import (
+from zfit.data._connection import (
     InstrumentNoise,
     dz_ds,
     impedance_from_s,
@@ -9,7 +9,7 @@ from zfit._connection import (
     sigma_z_from_s,
 )
 from zfit._errors import MeasurementWarning, ZfitInputError
-from zfit._sweep import make_sweep
+from zfit.data._sweep import make_sweep
 
 
 def _arrays(n=20):

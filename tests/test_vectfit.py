@@ -1,4 +1,4 @@
-"""Tests of relaxed vector fitting (zfit._vectfit) against known rational
+"""Tests of relaxed vector fitting (zfit.fit._vectfit) against known rational
 functions, scikit-rf's VectorFitting, statistics of the weighted fit and the
 passivity check."""
 
@@ -9,7 +9,7 @@ import pytest
 from scipy.optimize import brentq, linear_sum_assignment
 
 from zfit import FitError, RationalModel, vector_fit
-from zfit._vectfit import PassivityViolation, fit_impedance, starting_poles
+from zfit.fit._vectfit import PassivityViolation, fit_impedance, starting_poles
 
 TWO_PI = 2 * np.pi
 
@@ -281,8 +281,8 @@ def test_sigma_update_restores_the_noise_level_for_s_derived_impedance():
     # sigma_z evaluated at the noisy S11 is itself noisy (the connection barely
     # resolves Z there). Re-evaluating sigma at the model brings the residual of
     # the right model back to the noise (~1) and the count to the physical 2.
-    from zfit._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
-    from zfit._vectfit import sigma_update_for
+    from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+    from zfit.fit._vectfit import sigma_update_for
 
     rng = np.random.default_rng(3)
     f = np.geomspace(1e5, 1e9, 801)
@@ -319,7 +319,7 @@ def test_violation_within_its_uncertainty_is_marked():
 def test_public_parameters_are_documented():
     import inspect
 
-    from zfit import _vectfit
+    from zfit.fit import _vectfit
 
     for name in _vectfit.__all__:
         obj = getattr(_vectfit, name)

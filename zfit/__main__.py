@@ -1,5 +1,5 @@
 """``python -m zfit`` runs the command line."""
 
-from ._cli import main
+from .cli._app import main
 
 main()

@@ -1,0 +1,110 @@
+"""``zfit batch``: identify a lot of parts, check them against limits, summarise the lot."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import List, Optional
+
+import typer
+
+from ._common import (
+    ColumnsOpt,
+    ConnectionOpt,
+    LoadOpt,
+    LoadValueOpt,
+    NoiseFloorOpt,
+    NoiseRelOpt,
+    OpenOpt,
+    PortDelayOpt,
+    PortLossOpt,
+    ShortOpt,
+    app,
+    echo,
+    guarded,
+    quantities,
+    warn_line,
+)
+
+
+@app.command("batch")
+@guarded
+def batch_command(
+    inputs: List[str] = typer.Argument(..., help="Sweep files, folders (searched recursively) or glob patterns ('lot7/*.s1p')."),
+    out: Path = typer.Option(..., "--out", "-o", help="Output folder: per-part JSON (and plots), summary.csv, lot.csv, lot.json."),
+    limits: Optional[Path] = typer.Option(None, "--limits", help="Limits file (TOML, layout in docs/batch.md): pass / fail / indeterminate per part."),
+    model: Optional[str] = typer.Option(None, "--model", "-m", help="auto | inductor | capacitor | rational (default: the limits file's model, else auto)."),
+    at: Optional[List[str]] = typer.Option(None, "--at", help="Extra spot frequency for the summary (R, X, L_eff or C_eff, Q or D), e.g. 1M; repeatable."),
+    jobs: Optional[int] = typer.Option(None, "--jobs", "-j", help="Local worker processes (default: all cores; 1 = in this process)."),
+    cluster: Optional[str] = typer.Option(None, "--cluster", help="Address of a Dask distributed scheduler (tcp://host:8786) to run the parts on; needs the 'cluster' extra and the same file paths on every worker."),
+    plot: bool = typer.Option(False, "--plot", help="Also write a plot per part."),
+    plot_format: str = typer.Option("png", "--plot-format", help="png | svg."),
+    connection: ConnectionOpt = None,
+    noise_rel: NoiseRelOpt = None,
+    noise_floor: NoiseFloorOpt = None,
+    columns: ColumnsOpt = None,
+    open_: OpenOpt = None,
+    short: ShortOpt = None,
+    load: LoadOpt = None,
+    load_value: LoadValueOpt = None,
+    port_delay: PortDelayOpt = None,
+    port_loss: PortLossOpt = None,
+    force: bool = typer.Option(False, "--force", help="Identify every part again, even where its result is newer than its sweep."),
+    quiet: bool = typer.Option(False, "--quiet", "-q", help="No progress display."),
+):
+    """Identify every part in INPUTS, check each against --limits, and summarise the lot.
+
+    Writes the zfit.identify/1 JSON of each part, summary.csv (one row per
+    part: values with uncertainties, SRF, figures at the limit frequencies,
+    verdict and failed limits, or the error of a bad file), and lot.csv /
+    lot.json (count, verdicts, mean, std, min, max, Cpk per limited
+    quantity), then prints the lot summary.
+
+    Decision rule: guarded acceptance per JCGM 106:2012 with a guard band of
+    2 standard uncertainties: pass only when value +- 2 u lies inside the
+    limits, fail when the value lies outside, indeterminate otherwise.
+
+    A rerun with the same --out skips parts whose result is newer than their
+    sweep; --force identifies them all again. One bad file is reported and
+    does not stop the run. Exit status: 0 when every part has a result and
+    passes (or there are no limits), 1 when some part failed, is
+    indeterminate or has no result, 2 on bad usage.
+
+    Safety: discharge capacitors before connecting them to an analyser; for
+    parts on mains or high voltage follow local codes and licensed practice.
+    """
+    from ..lot._batch import ReadOptions, run_batch
+    from ..lot._limits import read_limits
+
+    if model is not None and model not in ("auto", "inductor", "capacitor", "rational"):
+        from .._errors import ZfitInputError
+
+        raise ZfitInputError(f"--model {model!r}: use auto, inductor, capacitor or rational")
+    lim = read_limits(limits) if limits is not None else None
+    read = ReadOptions(
+        connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns,
+        open_=None if open_ is None else str(Path(open_).resolve()),
+        short=None if short is None else str(Path(short).resolve()),
+        load=None if load is None else str(Path(load).resolve()),
+        load_value=load_value, port_delay=port_delay, port_loss=port_loss,
+    )
+    result = run_batch(
+        inputs, out, limits=lim, model=model, at=quantities(at, "--at"), read=read, jobs=jobs,
+        cluster=cluster, plot=plot, plot_format=plot_format, force=force, progress=False if quiet else None,
+    )
+    for row in result.rows:
+        if row.verdict == "error":
+            echo(f"{row.name}: error: {row.error}")
+        elif row.verdict in ("fail", "indeterminate"):
+            echo(f"{row.name}: {row.verdict}: " + "; ".join(row.reasons))
+    n_warn = sum(1 for r in result.rows if r.warnings)
+    if n_warn:
+        warn_line(f"{n_warn} part(s) have measurement warnings: see the 'warnings' column of {result.summary_path}")
+    from ..lot._batch import lot_text
+
+    echo(lot_text(result.lot))
+    echo(f"{result.identified} identified, {result.skipped} up to date (skipped), {result.errors} error, "
+         f"in {result.seconds:.1f} s ({result.workers})")
+    echo(f"wrote {result.summary_path}, {result.lot_csv_path.name}, {result.lot_json_path.name}")
+    v = result.lot.verdicts
+    if v.get("error", 0) or v.get("fail", 0) or v.get("indeterminate", 0):
+        raise typer.Exit(1)

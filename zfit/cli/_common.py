@@ -1,0 +1,176 @@
+"""What every command of the command line shares: the app, error handling,
+option parsing in engineering notation.
+
+Command modules (``_cli_<name>.py``) import `app` from here and register
+their command with ``@app.command()`` and ``@guarded``.  They import the
+heavy parts of zfit inside the command body, so that ``zfit --help``
+stays fast.
+"""
+
+from __future__ import annotations
+
+import functools
+import warnings
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from .._errors import MeasurementWarning, ZfitError, ZfitInputError
+from .._units import parse_quantity
+
+__all__ = [
+    "app", "guarded", "command_line", "emit_json", "quantity", "quantities", "echo", "warn_line", "sweep_from_options",
+    "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
+    "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
+]
+
+app = typer.Typer(
+    name="zfit",
+    help=(
+        "Equivalent circuits, uncertainties and simulator models of inductors and "
+        "capacitors from network-analyser sweeps, impedance-analyser tables and "
+        "oscilloscope captures.\n\n"
+        "Safety: discharge capacitors before connecting them; an oscilloscope's ground "
+        "clip is tied to mains earth. For mains or high-voltage work follow local codes "
+        "and licensed practice."
+    ),
+    add_completion=False,
+    no_args_is_help=True,
+    pretty_exceptions_enable=False,
+    rich_markup_mode=None,
+    context_settings={"help_option_names": ["-h", "--help"]},
+)
+
+
+def echo(text: str = "") -> None:
+    """Print a line of the result to standard output."""
+    typer.echo(text)
+
+
+def warn_line(text: str) -> None:
+    """Print one warning line to standard error."""
+    typer.echo(f"zfit: warning: {text}", err=True)
+
+
+def _show_warning(message, category, filename, lineno, file=None, line=None):
+    warn_line(str(message))
+
+
+def guarded(fn):
+    """Wrap a command so that zfit's errors become one line and exit status 2.
+
+    Warnings about the measurement are printed as one line each on standard
+    error; no traceback reaches the user for an error zfit raised on purpose
+    or for a file that cannot be opened.
+    """
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        with warnings.catch_warnings():
+            warnings.simplefilter("always", MeasurementWarning)
+            warnings.showwarning = _show_warning
+            try:
+                return fn(*args, **kwargs)
+            except ZfitError as exc:
+                text = exc.one_line() if isinstance(exc, ZfitInputError) else str(exc)
+                typer.echo(f"zfit: error: {text}", err=True)
+                raise typer.Exit(2) from None
+            except BrokenPipeError:
+                # The reader of our output (`| head`) has gone: not an error of ours.
+                raise typer.Exit(0) from None
+            except OSError as exc:
+                name = exc.filename if exc.filename is not None else ""
+                typer.echo(f"zfit: error: {name}: {exc.strerror or exc}", err=True)
+                raise typer.Exit(2) from None
+
+    return wrapper
+
+
+def command_line() -> str:
+    """Return the command line that is running, quoted so that it can be rerun."""
+    import shlex
+    import sys
+
+    return "zfit " + " ".join(shlex.quote(a) for a in sys.argv[1:])
+
+
+def emit_json(data: dict, json_path, force: bool, say=None) -> None:
+    """Write a result's JSON to `json_path`, or to standard output for ``-``.
+
+    With ``-`` the standard output holds the JSON alone, so that it can be
+    piped; otherwise the file is written atomically and `say` reports it.
+    """
+    import json
+    import sys
+
+    from .._atomic import write_atomic
+
+    text = json.dumps(data, indent=2, allow_nan=False) + "\n"
+    if str(json_path) == "-":
+        sys.stdout.write(text)
+        return
+    write_atomic(json_path, text, force)
+    (say or echo)(f"wrote {json_path}")
+
+
+def quantity(text: str | None, what: str) -> float | None:
+    """Parse an option value in engineering notation (None stays None)."""
+    if text is None:
+        return None
+    return parse_quantity(text, what)
+
+
+def quantities(texts, what: str) -> tuple[float, ...]:
+    """Parse a repeated option (``--at 100k --at 1M``)."""
+    return tuple(parse_quantity(t, what) for t in (texts or ()))
+
+
+# Options shared by every command that reads a sweep (info, identify, batch).
+# Declared once so that the commands spell them the same way.
+ConnectionOpt = Annotated[
+    Optional[str],
+    typer.Option(
+        "--connection", "-c",
+        help="How the analyser saw the part: reflection (S11), shunt-thru (S21, part to ground) "
+        "or series-thru (S21, part in series). Needed for .s2p files.",
+    ),
+]
+NoiseRelOpt = Annotated[
+    Optional[float],
+    typer.Option("--noise-rel", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/reading.md."),
+]
+NoiseFloorOpt = Annotated[
+    Optional[float],
+    typer.Option("--noise-floor", help="Noise floor: linear |S| for S-parameters (1e-5 = -100 dB), ohm for tables."),
+]
+ColumnsOpt = Annotated[
+    Optional[str],
+    typer.Option("--columns", help="Column mapping of a table, e.g. 'f=1,Ls=2,Rs=3' or 'freq_kHz,Zmag,phase_deg'; overrides the guess."),
+]
+OpenOpt = Annotated[Optional[Path], typer.Option("--open", help="Open-fixture measurement for compensation.")]
+ShortOpt = Annotated[Optional[Path], typer.Option("--short", help="Short-fixture measurement for compensation.")]
+LoadOpt = Annotated[Optional[Path], typer.Option("--load", help="Load-standard measurement (open/short/load compensation).")]
+LoadValueOpt = Annotated[Optional[str], typer.Option("--load-value", help="Known impedance of the load standard in ohm, e.g. 50 or 100.")]
+PortDelayOpt = Annotated[Optional[str], typer.Option("--port-delay", help="Port extension for reflection: one-way delay of the line to remove, e.g. 35p.")]
+PortLossOpt = Annotated[
+    Optional[float],
+    typer.Option("--port-loss", help="With --port-delay: one-way loss of that line in dB at 1 GHz, scaled with sqrt(f)."),
+]
+ForceOpt = Annotated[bool, typer.Option("--force", help="Overwrite output files that exist.")]
+
+
+def sweep_from_options(*args, **kwargs):
+    """Return the `Sweep` that the shared reading options describe.
+
+    The command-line spelling of `zfit.io._prepared.prepared_sweep`; see there
+    for the parameters.
+
+    Parameters
+    ----------
+    *args, **kwargs
+        As `zfit.io._prepared.prepared_sweep`.
+    """
+    from ..io._prepared import prepared_sweep
+
+    return prepared_sweep(*args, **kwargs)

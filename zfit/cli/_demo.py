@@ -1,0 +1,362 @@
+"""``zfit demo``: the whole job, end to end, on the invented bench files in demo_sweeps/.
+
+Four parts of an invented incoming-inspection bench: an inductor measured
+series-thru, a capacitor measured shunt-thru, a choke whose winding has a
+second resonance, and a coil captured on an oscilloscope through a sense
+resistor.  Each is identified exactly as ``zfit identify`` / ``zfit step``
+would do it; the tables are printed, and the JSON, plots, SPICE netlists,
+Touchstone files and one-page reports are written into one folder, with an
+index page.
+"""
+
+from __future__ import annotations
+
+import html
+import json
+import time
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from ._common import app, echo, guarded, warn_line
+
+DEFAULT_OUT = "zfit-demo-output"
+
+
+@dataclass(frozen=True)
+class DemoPart:
+    """One part of the demo.
+
+    Attributes
+    ----------
+    stem : str
+        Base name of its output files.
+    title : str
+        What the part is, in words.
+    file : str
+        Its bench file in demo_sweeps/.
+    kind : {'sweep', 'capture'}
+        Analyser sweep or oscilloscope capture.
+    args : tuple of str
+        The command-line options that reproduce it.
+    story : str
+        Why it is in the demo: what to look at.
+    """
+
+    stem: str
+    title: str
+    file: str
+    kind: str
+    args: tuple
+    story: str
+
+
+PARTS = (
+    DemoPart("L-0117_10uH", "L-0117: 10 µH power inductor", "ind_10u_series_thru.s2p", "sweep",
+             ("--connection", "series-thru", "--at", "100k", "--at", "1M"),
+             "a high impedance measured series-thru: SRF inside the band, core loss chosen by BIC"),
+    DemoPart("C-0342_100nF", "C-0342: 100 nF ceramic capacitor", "cap_100n_shunt_thru.s2p", "sweep",
+             ("--connection", "shunt-thru", "--at", "1M"),
+             "milliohm ESR resolved by a shunt-thru measurement"),
+    DemoPart("CH-0021_470uH", "CH-0021: 470 µH choke with a winding resonance", "choke_470u_winding_resonance.ts", "sweep",
+             ("--connection", "series-thru"),
+             "one circuit does not describe the whole band: its valid band is reported, and the rational model, "
+             "synthesised as a passive network, covers the rest"),
+    DemoPart("L-0233_4m7H_capture", "L-0233: 4.7 mH coil from an oscilloscope capture", "coil_4m7_square_1k.csv", "capture",
+             ("--input", "CH1", "--output", "CH2", "--shunt", "1k"),
+             "no analyser: a square wave through the coil and a 1 kohm sense resistor"),
+)
+
+
+def demo_sweeps_dir() -> Path:
+    """Return the demo_sweeps/ folder of the checkout zfit runs from.
+
+    Raises
+    ------
+    ZfitInputError
+        When the folder is not there (zfit installed without its demo files).
+    """
+    from .._errors import ZfitInputError
+
+    package = Path(__file__).resolve().parent.parent
+    for candidate in (package.parent / "demo_sweeps", package / "demo_sweeps"):
+        if (candidate / PARTS[0].file).is_file():
+            return candidate
+    raise ZfitInputError(
+        "the demo files are not installed with this copy of zfit: demo_sweeps/ was looked for next to the "
+        f"package ({here.parent / 'demo_sweeps'}); run from a checkout of the repository "
+        "(pip install -e .) or give --sweeps DIR"
+    )
+
+
+def _fresh_folder(out: Optional[Path], force: bool) -> Path:
+    """Return the output folder: the one asked for, or a fresh default name."""
+    from .._errors import ZfitInputError
+
+    if out is not None:
+        if out.exists() and not out.is_dir():
+            raise ZfitInputError("is a file; --out names the folder the results go into", out)
+        for parent in out.parents:
+            if parent.exists():
+                if not parent.is_dir():
+                    raise ZfitInputError(f"cannot make this folder: {parent} is a file", out)
+                break
+        if out.exists() and any(out.iterdir()) and not force:
+            raise ZfitInputError("holds files already; give --force to write into it (the demo's own files are "
+                                 "replaced, others left alone) or another --out", out)
+        return out
+    base = Path(DEFAULT_OUT)
+    if force or not base.exists() or not any(base.iterdir()):
+        return base
+    k = 2
+    while Path(f"{DEFAULT_OUT}-{k}").exists():
+        k += 1
+    return Path(f"{DEFAULT_OUT}-{k}")
+
+
+def _command(part: DemoPart, sweeps: Path, outputs: dict) -> list[str]:
+    cmd = ["zfit", "identify" if part.kind == "sweep" else "step", str(sweeps / part.file), *part.args]
+    for opt, name in outputs.items():
+        if opt in _step_options() or part.kind == "sweep":
+            cmd += [opt, name]
+    return cmd
+
+
+def _step_options() -> set:
+    """The output options ``zfit step`` has (the demo writes the rest itself)."""
+    import typer.main
+
+    from ._common import app as _app
+
+    # Typer's own command group (newer typer vendors click: do not import it).
+    command = typer.main.get_command(_app)
+    step = getattr(command, "commands", {}).get("step")
+    if step is None:
+        return {"--json", "--plot"}
+    return {o for p in step.params for o in getattr(p, "opts", ())}
+
+
+def _quoted(cmd) -> str:
+    import shlex
+
+    return " ".join(shlex.quote(c) for c in cmd)
+
+
+def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
+    """Identify one part, write its files; return (result, identification, written, notes)."""
+    import warnings
+
+    from .._errors import MeasurementWarning
+    from ..outputs._netlist import SynthesisError
+    from ..outputs._outputs import write_outputs
+
+    path = sweeps / part.file
+    notes = []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", MeasurementWarning)
+        if part.kind == "sweep":
+            from ..identification._pipeline import identify
+            from ..io._sweep_file import read_sweep
+            from .._units import parse_quantity
+
+            opts = dict(zip(part.args[::2], part.args[1::2]))
+            at = tuple(parse_quantity(v, "--at") for k, v in zip(part.args[::2], part.args[1::2]) if k == "--at")
+            sweep = read_sweep(path, connection=opts.get("--connection"))
+            result = identify(sweep, "auto", at)
+            ident = result
+        else:
+            from ..io._capture import read_capture
+            from ..capture._step import analyse_capture
+            from .._units import parse_quantity
+
+            opts = dict(zip(part.args[::2], part.args[1::2]))
+            cap = read_capture(path)
+            result = analyse_capture(cap, input=opts["--input"], output=opts["--output"],
+                                     shunt_ohm=parse_quantity(opts["--shunt"], "--shunt"))
+            ident = result.impedance
+    notes += [str(w.message) for w in caught]
+
+    out = {"--json": f"{part.stem}.json", "--plot": f"{part.stem}.png", "--report": f"{part.stem}.html"}
+    if ident is not None:
+        out["--netlist"] = f"{part.stem}.cir"
+        if part.kind == "sweep":
+            out["--touchstone"] = f"{part.stem}.s1p"
+    written = []
+    from .._atomic import write_atomic
+
+    written.append(write_atomic(folder / out["--json"], json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n", force))
+    try:
+        written += write_outputs(
+            result, plot=folder / out["--plot"], report=folder / out["--report"],
+            netlist=folder / out["--netlist"] if "--netlist" in out else None,
+            touchstone=folder / out["--touchstone"] if "--touchstone" in out else None,
+            force=force, command=_quoted(_command(part, sweeps, out)),
+        )
+    except SynthesisError as exc:
+        # The demo shows the refusal as a user meets it, then writes what can be written.
+        notes.append(f"netlist: {exc}")
+        out.pop("--netlist", None)
+        written += write_outputs(
+            result, plot=folder / out["--plot"], report=folder / out["--report"],
+            touchstone=folder / out["--touchstone"] if "--touchstone" in out else None,
+            force=force, command=_quoted(_command(part, sweeps, out)),
+        )
+    if ident is not None and ident.model != "rational" and ident.rational is not None:
+        lo, hi = ident.fit.valid_band_hz
+        f0, f1 = ident.sweep.band_hz
+        if lo > f0 * (1 + 1e-9) or hi < f1 * (1 - 1e-9):
+            # The circuit holds over part of the band only: the full band's
+            # rational model as a passive network too.
+            from ..outputs._outputs import identification_netlist
+
+            try:
+                text = identification_netlist(ident, "rational", name=f"{Path(part.file).stem}_full_band")
+                written.append(write_atomic(folder / f"{part.stem}-full-band.cir", text, force))
+            except SynthesisError as exc:
+                notes.append(f"full-band netlist: {exc}")
+    return result, ident, written, notes, _command(part, sweeps, out)
+
+
+def _index_html(rows, generated: str) -> str:
+    """The demo folder's index page: one line per part, linking its report."""
+    from ..outputs._report import _CSS  # the reports' own style, so the folder reads as one
+
+    esc = html.escape
+    body = []
+    for part, ident, headline, cmd in rows:
+        body.append(
+            f'<tr><td><a href="{esc(part.stem)}.html">{esc(part.title)}</a></td>'
+            f"<td>{esc(headline)}</td><td>{esc(part.story)}</td></tr>"
+        )
+    return (
+        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n<title>zfit demo</title>\n"
+        f"<style>{_CSS}</style>\n</head>\n<body>\n<header><h1>zfit demo: four parts from an invented bench</h1>"
+        f'<div class="sub">Generated {esc(generated)}; every file and part is invented (see demo_sweeps/README.md).</div>'
+        "</header>\n<main>\n<section class=\"full\"><h2>Parts</h2><table><thead><tr><th>part</th><th>result</th>"
+        "<th>what to look at</th></tr></thead><tbody>" + "".join(body) + "</tbody></table>"
+        "<p>Each part has its one-page report (.html), its plots (.png), the zfit JSON result (.json) and, where an "
+        "impedance was identified, a SPICE subcircuit (.cir); the analyser sweeps also a one-port Touchstone file "
+        "(.s1p) of the model.</p></section>\n"
+        "</main>\n</body>\n</html>\n"
+    )
+
+
+def _headline(part, result, ident) -> str:
+    from ..outputs._outputs import pretty_std
+
+    if ident is None:
+        return ""
+    p = ident.parameters
+    bits = [f"{k} = {pretty_std(p[k].value, p[k].std, p[k].unit)}" for k in ("L", "C") if k in p]
+    if ident.model == "rational":
+        bits.append(ident.topology)
+    srf = ident.srf
+    if srf is not None and srf.where == "in-band":
+        bits.append(f"SRF {pretty_std(srf.value_hz, srf.std_hz, 'Hz')}")
+    return ", ".join(bits)
+
+
+@app.command("demo")
+@guarded
+def demo_command(
+    out: Optional[Path] = typer.Option(None, "--out", help=f"Folder for the results (default: ./{DEFAULT_OUT}, or a fresh "
+                                       f"{DEFAULT_OUT}-N if that one is taken)."),
+    sweeps: Optional[Path] = typer.Option(None, "--sweeps", help="The demo files' folder (default: demo_sweeps/ of the checkout)."),
+    force: bool = typer.Option(False, "--force", help="Write into --out even if it holds files (replacing the demo's own)."),
+    part: Optional[list[str]] = typer.Option(None, "--part", help="Run only this part (its file stem, e.g. C-0342_100nF); "
+                                             "repeatable. Default: all four."),
+):
+    """Run zfit end to end on the invented bench files of demo_sweeps/.
+
+    Identifies an inductor measured series-thru, a capacitor measured
+    shunt-thru, a choke with a second resonance and a coil captured on an
+    oscilloscope through a sense resistor; prints each table and the command
+    that reproduces it, and writes JSON, plots, SPICE netlists, Touchstone
+    files and one-page HTML reports into one folder, named at the end.
+
+    Safety: the demo touches no instrument.  On the bench, discharge
+    capacitors before connecting them, and remember that an oscilloscope's
+    ground clip is tied to mains earth; follow local codes and licensed
+    practice for mains or high-voltage work.
+    """
+    from .._errors import ZfitInputError
+
+    t0 = time.perf_counter()
+    src = sweeps if sweeps is not None else demo_sweeps_dir()
+    missing = [p.file for p in PARTS if not (src / p.file).is_file()]
+    if missing:
+        raise ZfitInputError(f"demo files missing from {src}: {', '.join(missing)}")
+    chosen = PARTS
+    if part:
+        known = {p.stem: p for p in PARTS}
+        bad = [name for name in part if name not in known]
+        if bad:
+            raise ZfitInputError(f"--part {bad[0]!r}: the demo parts are {', '.join(known)}")
+        chosen = tuple(known[name] for name in dict.fromkeys(part))
+    folder = _fresh_folder(out, force)
+    folder.mkdir(parents=True, exist_ok=True)
+    jobs = _run_all(chosen, src, folder, force)
+    rows = []
+    n_files = 0
+    for k, (part, job) in enumerate(zip(chosen, jobs), 1):
+        echo(f"=== {k}/{len(chosen)}  {part.title}")
+        echo(f"    ({part.story})")
+        echo(f"$ {_quoted(job['command'])}")
+        for line in job["lines"]:
+            echo(line)
+        for text in job["warnings"]:
+            warn_line(text)
+        echo("wrote " + ", ".join(job["written"]))
+        echo()
+        n_files += len(job["written"])
+        rows.append((part, None, job["headline"], job["command"]))
+    from .._atomic import write_atomic
+    from ..outputs._report import Report
+
+    write_atomic(folder / "index.html", _index_html(rows, Report("x").generated), force)
+    n_files += 1
+    dt = time.perf_counter() - t0
+    echo(f"zfit demo: {len(chosen)} parts, {n_files} files in {dt:.1f} s")
+    echo(f"results in {folder}{'/' if not str(folder).endswith('/') else ''}  (open {folder / 'index.html'})")
+
+
+def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
+    """Run one part and return what the command prints about it (picklable)."""
+    from ._identify import summary_lines as identify_lines
+    from ._step import summary_lines as step_lines
+
+    result, ident, written, notes, cmd = _run_part(part, sweeps, folder, force)
+    own = tuple(ident.warnings) if ident is not None else ()
+    return {
+        "command": cmd,
+        "lines": identify_lines(result) if part.kind == "sweep" else step_lines(result),
+        "warnings": list(own) + [t for t in notes if not any(t.endswith(o) for o in own)],
+        "written": [p.name for p in written],
+        "headline": _headline(part, result, ident),
+    }
+
+
+def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
+    """Run the parts, two at a time where the machine has the cores."""
+    import multiprocessing
+    import os
+    from concurrent.futures import ProcessPoolExecutor
+
+    workers = min(2, os.cpu_count() or 1, len(parts))
+    if workers < 2 or "fork" not in multiprocessing.get_all_start_methods():
+        return [_part_job(p, sweeps, folder, force) for p in parts]
+    # Import the heavy parts once, before the fork, so the workers start warm.
+    import matplotlib  # noqa: F401
+
+    from ..capture import _step  # noqa: F401
+    from ..identification import _pipeline  # noqa: F401
+    from ..outputs import _plots  # noqa: F401
+
+    matplotlib.use("Agg")
+    # The slowest parts first, so the two workers finish together.
+    order = sorted(range(len(parts)), key=lambda i: parts[i].kind != "capture")
+    with ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork")) as pool:
+        futures = {i: pool.submit(_part_job, parts[i], sweeps, folder, force) for i in order}
+        return [futures[i].result() for i in range(len(parts))]

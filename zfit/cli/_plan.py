@@ -1,0 +1,134 @@
+"""``zfit plan inductor|capacitor``: which connection to measure a part with.
+
+Simulates the part's equivalent circuit through each connection with the
+same noise model as real files, runs the same identification, and prints
+the expected uncertainty of every parameter per connection with a
+recommendation.  Option names are the parameter keys, case-sensitive
+(``--L``, ``--C``, ``--C_p``, ``--ESR``).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ._common import ForceOpt, app, echo, guarded, quantity
+
+plan_app = typer.Typer(
+    name="plan",
+    help=(
+        "Plan a measurement: simulate the part through reflection, shunt-thru, series-thru and an analyser "
+        "table, and print the expected uncertainty of each parameter with a recommendation."
+    ),
+    no_args_is_help=True,
+    rich_markup_mode=None,
+    context_settings={"help_option_names": ["-h", "--help"]},
+)
+app.add_typer(plan_app, name="plan")
+
+BandOpt = Annotated[str, typer.Option("--band", help="Swept band low:high in Hz, engineering notation, e.g. 1k:1G.")]
+PointsOpt = Annotated[int, typer.Option("--points", help="Log-spaced points of the sweep.")]
+JsonOpt = Annotated[Optional[Path], typer.Option("--json", help="Write the plan as zfit.plan/1 JSON to this file.")]
+NaRelOpt = Annotated[Optional[float], typer.Option("--noise-rel", help="Network analyser: relative noise on S (default 1e-3).")]
+NaFloorOpt = Annotated[Optional[float], typer.Option("--noise-floor", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
+TabRelOpt = Annotated[Optional[float], typer.Option("--table-rel", help="Analyser table: relative accuracy on Z (default 1e-3 = 0.1 %).")]
+TabFloorOpt = Annotated[Optional[str], typer.Option("--table-floor", help="Analyser table: accuracy floor in ohm (default 10m).")]
+RefOpt = Annotated[str, typer.Option("--reference", help="Reference impedance of the analyser ports, ohm.")]
+
+
+def _band(text: str):
+    from .._errors import ZfitInputError
+    from .._units import parse_quantity
+
+    parts = text.split(":")
+    if len(parts) != 2:
+        raise ZfitInputError(f"--band must be low:high, e.g. 1k:1G (got {text!r})")
+    return parse_quantity(parts[0], "--band"), parse_quantity(parts[1], "--band")
+
+
+def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_rel, table_floor, reference, force):
+    import json
+
+    from .._atomic import write_atomic
+    from ..data._connection import InstrumentNoise
+    from ..identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, format_plan, plan_measurement
+
+    noise = InstrumentNoise(
+        NA_NOISE_DEFAULT.rel if noise_rel is None else noise_rel,
+        NA_NOISE_DEFAULT.floor if noise_floor is None else noise_floor,
+    )
+    table = InstrumentNoise(
+        TABLE_ACCURACY_DEFAULT.rel if table_rel is None else table_rel,
+        TABLE_ACCURACY_DEFAULT.floor if table_floor is None else quantity(table_floor, "--table-floor"),
+    )
+    if json_path is not None:
+        from .._atomic import check_writable
+
+        check_writable(json_path, force)
+    plan = plan_measurement(
+        model, params, _band(band), points=points, noise=noise, table_accuracy=table,
+        reference_ohm=quantity(reference, "--reference"),
+    )
+    echo(format_plan(plan))
+    if json_path is not None:
+        write_atomic(json_path, json.dumps(plan.to_dict(), indent=2) + "\n", force)
+        echo(f"wrote {json_path}")
+
+
+@plan_app.command("inductor")
+@guarded
+def plan_inductor(
+    L: Annotated[str, typer.Option("--L", help="Inductance, e.g. 10u (H).")],
+    C_p: Annotated[str, typer.Option("--C_p", help="Parallel (inter-winding) capacitance, e.g. 5p (F).")],
+    R_s: Annotated[str, typer.Option("--R_s", help="Series (winding) resistance, e.g. 50m (ohm).")],
+    R_p: Annotated[Optional[str], typer.Option("--R_p", help="Parallel (core-loss) resistance, ohm; omit for none.")] = None,
+    band: BandOpt = "1k:1G",
+    points: PointsOpt = 201,
+    json_path: JsonOpt = None,
+    noise_rel: NaRelOpt = None,
+    noise_floor: NaFloorOpt = None,
+    table_rel: TabRelOpt = None,
+    table_floor: TabFloorOpt = None,
+    reference: RefOpt = "50",
+    force: ForceOpt = False,
+):
+    """Plan the measurement of an inductor: series R_s-L with parallel C_p (and R_p).
+
+    Prints, per connection, the expected standard uncertainty of each
+    parameter (or "below resolution, < X") and the recommended connection
+    with its reason.  Nothing is measured: the part is simulated.
+    """
+    params = {"L": quantity(L, "--L"), "R_s": quantity(R_s, "--R_s"), "C_p": quantity(C_p, "--C_p"),
+              "R_p": quantity(R_p, "--R_p")}
+    _run("inductor", params, band, points, json_path, noise_rel, noise_floor, table_rel, table_floor, reference, force)
+
+
+@plan_app.command("capacitor")
+@guarded
+def plan_capacitor(
+    C: Annotated[str, typer.Option("--C", help="Capacitance, e.g. 100n (F).")],
+    ESR: Annotated[str, typer.Option("--ESR", help="Equivalent series resistance, e.g. 5m (ohm).")],
+    ESL: Annotated[str, typer.Option("--ESL", help="Equivalent series inductance, e.g. 500p (H).")],
+    R_leak: Annotated[Optional[str], typer.Option("--R_leak", help="Leakage resistance across C, ohm; omit for none.")] = None,
+    band: BandOpt = "1k:1G",
+    points: PointsOpt = 201,
+    json_path: JsonOpt = None,
+    noise_rel: NaRelOpt = None,
+    noise_floor: NaFloorOpt = None,
+    table_rel: TabRelOpt = None,
+    table_floor: TabFloorOpt = None,
+    reference: RefOpt = "50",
+    force: ForceOpt = False,
+):
+    """Plan the measurement of a capacitor: series C-ESR-ESL (C shunted by R_leak).
+
+    Prints, per connection, the expected standard uncertainty of each
+    parameter (or "below resolution, < X") and the recommended connection
+    with its reason.  Nothing is measured: the part is simulated.  Discharge
+    a capacitor before connecting it to an analyser.
+    """
+    params = {"C": quantity(C, "--C"), "ESR": quantity(ESR, "--ESR"), "ESL": quantity(ESL, "--ESL"),
+              "R_leak": quantity(R_leak, "--R_leak")}
+    _run("capacitor", params, band, points, json_path, noise_rel, noise_floor, table_rel, table_floor, reference, force)

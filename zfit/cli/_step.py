@@ -1,0 +1,201 @@
+"""``zfit step``: time-domain figures, frequency response and part values from a scope capture."""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from ._common import ForceOpt, app, command_line, echo, emit_json, guarded, quantity
+
+_HELP = """Analyse an oscilloscope capture of a square wave (or one step) driven through a part.
+
+Prints the IEEE Std 181 figures of the output (state levels, 10-90 % transition
+duration, overshoot), the dominant time constant (of H = V_out/V_in with two
+channels, so that the generator's output resistance drops out), the ringing
+frequency, and the band over which the frequency response is usable.  With
+--shunt the output channel is the voltage across a sense resistor at the part's
+return and the input the drive at its other terminal: the part's impedance
+Z = R (V_in - V_out)/V_out is identified exactly as `zfit identify` does for a sweep.
+
+CAPTURE is delimited text as oscilloscopes export it (metadata lines, a header,
+a time column or the sample interval in the header), or .npy/.npz arrays.
+Channels are chosen by header name or 1-based column number.
+
+Safety: an oscilloscope's ground clip is tied to mains earth through the scope's
+power cord.  Clipping it onto a mains-referenced or floating circuit short-circuits
+that circuit through the scope; measure such circuits only with differential
+probes or an isolated setup, and follow your local codes and licensed practice.
+Keep drive levels low enough that the part, the sense resistor and the probes stay
+within their ratings, and discharge capacitors before you connect them.
+"""
+
+
+@app.command("step", help=_HELP)
+@guarded
+def step_command(
+    capture: Path = typer.Argument(..., help="The capture: delimited text export, .npy or .npz."),
+    input: Optional[str] = typer.Option(None, "--input", "-i", help="Drive channel (name or 1-based column); omit for a single-channel capture."),
+    output: Optional[str] = typer.Option(None, "--output", "-o", help="Response channel (name or 1-based column); may be omitted when there is one channel."),
+    shunt: Optional[str] = typer.Option(None, "--shunt", help="Sense resistor in ohm at the part's return (e.g. 100, 2.2k): identify the part's impedance."),
+    json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.step/1 JSON result here ('-' for standard output)."),
+    response: Optional[Path] = typer.Option(None, "--response", help="Write the frequency response (CSV: f, |H| dB, phase, uncertainties, coherence, usable)."),
+    plot: Optional[Path] = typer.Option(None, "--plot", help="Write the figures (.png or .svg): time record, Bode, and with --shunt the impedance."),
+    netlist: Optional[Path] = typer.Option(None, "--netlist", help="With --shunt: write a SPICE subcircuit of the identified part (.cir, .sp or .lib)."),
+    report: Optional[Path] = typer.Option(None, "--report", help="Write a self-contained HTML report (.html)."),
+    inductance: Optional[str] = typer.Option(None, "--inductance", help="The coil's inductance in H (e.g. 25m): turns the ringing into its stray capacitance."),
+    added_capture: Optional[Path] = typer.Option(None, "--added-capture", help="Capture of the same coil with a known capacitor across it (two-resonance method)."),
+    added_capacitance: Optional[str] = typer.Option(None, "--added-capacitance", help="That capacitor in F (e.g. 100p)."),
+    model: str = typer.Option("auto", "--model", help="With --shunt: auto | inductor | capacitor | rational (as for identify)."),
+    dt: Optional[str] = typer.Option(None, "--dt", help="Sample interval (e.g. 40n) when the file has neither a time column nor the interval in its header."),
+    force: ForceOpt = False,
+):
+    from .._atomic import write_atomic
+    from ..io._capture import read_capture
+    from .._errors import ZfitInputError
+    from ..capture._step import analyse_capture
+
+    shunt_ohm = quantity(shunt, "--shunt")
+    inductance_h = quantity(inductance, "--inductance")
+    added_f = quantity(added_capacitance, "--added-capacitance")
+    dt_s = quantity(dt, "--dt")
+    if (added_capture is None) != (added_f is None):
+        raise ZfitInputError("--added-capture and --added-capacitance go together")
+    for name, v in (("--shunt", shunt_ohm), ("--inductance", inductance_h), ("--added-capacitance", added_f), ("--dt", dt_s)):
+        if v is not None and not v > 0:
+            raise ZfitInputError(f"{name} must be positive")
+    if response is not None and response.suffix.lower() not in (".csv", ".txt"):
+        raise ZfitInputError("the response file is written as CSV: give a .csv path", response)
+    if netlist is not None and shunt_ohm is None:
+        raise ZfitInputError("--netlist needs the part's impedance: give the sense resistor with --shunt")
+    # Fail before the work, not after it, when an output exists or cannot be written.
+    from ..outputs._outputs import check_output_path, check_output_suffix
+
+    to_stdout = json_path is not None and str(json_path) == "-"
+    for p in (None if to_stdout else json_path, response):
+        if p is not None:
+            check_output_path(p, force)
+    for p, kind in ((plot, "plot"), (netlist, "netlist"), (report, "report")):
+        if p is not None:
+            check_output_path(check_output_suffix(p, kind), force)
+
+    cap = read_capture(capture, dt=dt_s)
+    added = read_capture(added_capture, dt=dt_s) if added_capture is not None else None
+    result = analyse_capture(cap, input=input, output=output, shunt_ohm=shunt_ohm, inductance_h=inductance_h,
+                             added_capture=added, added_capacitance_f=added_f, model=model)
+    # With --json - the standard output is the JSON alone; the rest goes to standard error.
+    def say(text):
+        typer.echo(text, err=to_stdout)
+
+    if not to_stdout:
+        for line in summary_lines(result):
+            echo(line)
+    if plot is not None or netlist is not None or report is not None:
+        from ..outputs._outputs import write_outputs
+
+        for path in write_outputs(result, plot=plot, netlist=netlist, report=report, force=force,
+                                  command=command_line()):
+            say(f"wrote {path}")
+
+    if json_path is not None:
+        emit_json(result.to_dict(), json_path, force, say)
+    if response is not None:
+        write_atomic(response, response_csv(result), force)
+        say(f"wrote {response}")
+
+def response_csv(result) -> str:
+    """Return the frequency response of a step result as CSV text.
+
+    Columns: ``f_hz``, ``mag_db``, ``phase_deg``, ``mag_db_std``,
+    ``phase_std_deg`` (standard uncertainties), ``coherence`` and ``usable``
+    (1 inside the usable band).
+
+    Parameters
+    ----------
+    result : StepResult
+        What `zfit.analyse_capture` returned.
+    """
+    import numpy as np
+
+    from .._units import format_eng
+
+    r = result.response
+    cols = np.column_stack([r.f_hz, r.magnitude_db(), r.phase_deg(), r.magnitude_db_std(), r.phase_std_deg(),
+                            r.coherence, r.usable.astype(float)])
+    lines = [
+        f"# zfit step response of {result.source}: H = V_out/V_in ({r.method})",
+        f"# usable band {format_eng(r.band_hz[0], 'Hz', 6)} to {format_eng(r.band_hz[1], 'Hz', 6)}; "
+        "uncertainties are standard (k=1)",
+        "f_hz,mag_db,phase_deg,mag_db_std,phase_std_deg,coherence,usable",
+    ]
+    for row in cols:
+        lines.append(",".join(
+            "inf" if not np.isfinite(v) else f"{v:.9g}" for v in row[:-1]) + f",{int(row[-1])}")
+    return "\n".join(lines) + "\n"
+
+
+def summary_lines(result) -> list[str]:
+    """Return the readable table of a step result, in engineering notation.
+
+    Parameters
+    ----------
+    result : StepResult
+        What `zfit.analyse_capture` returned.
+    """
+    from .._units import format_eng, format_value_std
+
+    def vs(v, s, unit):
+        return "n/a" if v is None else format_value_std(v, s, unit)
+
+    chans = result.output_name if result.input_name is None else f"{result.input_name} -> {result.output_name}"
+    out = [
+        f"capture:      {result.source}  ({chans}; {result.n_samples} samples at {format_eng(result.sample_rate_hz, 'Sa/s')})",
+        f"edges:        {result.edges} ({result.edges_rising} rising, {result.edges_falling} falling)",
+        f"levels:       {format_eng(result.levels_v[0], 'V')} / {format_eng(result.levels_v[1], 'V')} (output)"
+        # A histogram mode has no simple standard uncertainty; the samples' spread says how well it is known.
+        + f" [settled samples spread {format_eng(result.levels_noise_v[0], digits=2)} / "
+          f"{format_eng(result.levels_noise_v[1], 'V rms', digits=2)}]"
+        + ("" if result.input_levels_v is None else
+           f";  {format_eng(result.input_levels_v[0], 'V')} / {format_eng(result.input_levels_v[1], 'V')} (input)"),
+        f"10-90 %:      {vs(result.transition_10_90_s, result.transition_10_90_std_s, 's')}",
+        f"overshoot:    {_percent(result.overshoot_pct, result.overshoot_std_pct)}",
+        f"time const.:  {vs(result.time_constant_s, result.time_constant_std_s, 's')}"
+        + (f"  [{result.time_constant_method}]" if result.time_constant_s is not None else ""),
+        f"  cross-check {vs(result.midpoint_time_constant_s, result.midpoint_time_constant_std_s, 's')}  [low-to-midpoint time / ln 2]",
+    ]
+    r = result.ringing
+    if r is None:
+        out.append("ringing:      none found")
+    else:
+        out.append(f"ringing:      {format_value_std(r.frequency_hz, r.frequency_std_hz, 'Hz')}  "
+                   f"(natural {format_value_std(r.natural_hz, r.natural_std_hz, 'Hz')}, damping ratio {r.damping_ratio:.3g})")
+    c = result.stray_capacitance
+    if c is not None:
+        out.append(f"stray C:      {format_value_std(c.value_f, c.std_f, 'F')}  [{c.method}]")
+        if c.inductance_h is not None:
+            out.append(f"  and L       {format_value_std(c.inductance_h, c.inductance_std_h, 'H')}  "
+                       f"(with the added C it rings at {format_eng(c.added_ringing_hz, 'Hz')})")
+    lo, hi = result.usable_band_hz
+    resp = result.response
+    out.append(f"usable band:  {format_eng(lo, 'Hz')} to {format_eng(hi, 'Hz')}  "
+               f"({resp.n_averages} segment(s) averaged, bins of {format_eng(1.0 / resp.segment_s, 'Hz')})")
+    if result.impedance is not None:
+        from ._identify import summary_lines as identify_lines
+
+        out.append(f"impedance with the {format_eng(result.shunt_ohm, 'ohm')} sense resistor:")
+        out.extend("  " + line for line in identify_lines(result.impedance))
+    # The notes say why a figure is n/a (no settled states, no slow edge to fit).
+    out.extend(f"note:         {n}" for n in result.notes)
+    return out
+
+
+def _percent(v, s) -> str:
+    if v is None:
+        return "n/a"
+    if s is None or not math.isfinite(s) or s <= 0:
+        return f"{v:.3g} %"
+    # Two significant digits of the uncertainty, the value to the same place (GUM 7.2.6).
+    decimals = min(max(0, 1 - int(math.floor(math.log10(s)))), 9)
+    return f"{v:.{decimals}f} ± {s:.{decimals}f} %"

@@ -1,0 +1,43 @@
+"""Decoding the text files instruments write."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from .._errors import ZfitInputError
+
+__all__ = ["file_text"]
+
+
+def file_text(path: Path, kind: str) -> str:
+    """Return the text of an instrument's file, whatever its encoding.
+
+    UTF-16 with a byte-order mark (bench software on Windows), UTF-8 with or
+    without a mark, else Latin-1 (instruments write a degree sign or "Ohm"
+    with an umlaut in comments).
+
+    Parameters
+    ----------
+    path : pathlib.Path
+        The file.
+    kind : str
+        What the file should be, for the message about a binary file
+        (``"text table"``, ``"Touchstone text file"``).
+
+    Raises
+    ------
+    ZfitInputError
+        For a binary file, or UTF-16 that cannot be decoded.
+    """
+    raw = Path(path).read_bytes()
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        try:
+            return raw.decode("utf-16")
+        except UnicodeDecodeError:
+            raise ZfitInputError("starts as UTF-16 text but cannot be decoded as such", path) from None
+    if b"\x00" in raw[:4096]:
+        raise ZfitInputError(f"is a binary file, not a {kind}", path)
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        return raw.decode("latin-1")
