@@ -101,12 +101,12 @@ def emit_json(data: dict, json_path, force: bool, say=None) -> None:
     With ``-`` the standard output holds the JSON alone, so that it can be
     piped; otherwise the file is written atomically and `say` reports it.
     """
-    import json
     import sys
 
     from .._atomic import write_atomic
+    from .._json import json_text
 
-    text = json.dumps(data, indent=2, allow_nan=False) + "\n"
+    text = json_text(data)
     if str(json_path) == "-":
         sys.stdout.write(text)
         return

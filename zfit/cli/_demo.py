@@ -185,8 +185,9 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
             out["--touchstone"] = f"{part.stem}.s1p"
     written = []
     from .._atomic import write_atomic
+    from .._json import json_text
 
-    written.append(write_atomic(folder / out["--json"], json.dumps(result.to_dict(), indent=2, allow_nan=False) + "\n", force))
+    written.append(write_atomic(folder / out["--json"], json_text(result.to_dict()), force))
     try:
         written += write_outputs(
             result, plot=folder / out["--plot"], report=folder / out["--report"],

@@ -9,7 +9,7 @@ import typer
 
 from ._common import (
     ColumnsOpt, ConnectionOpt, ForceOpt, LoadOpt, LoadValueOpt, NoiseFloorOpt, NoiseRelOpt, OpenOpt, PortDelayOpt,
-    PortLossOpt, ShortOpt, app, echo, guarded, sweep_from_options,
+    PortLossOpt, ShortOpt, app, echo, emit_json, guarded, sweep_from_options,
 )
 
 #: Version tag of the ``--json`` output.
@@ -112,7 +112,6 @@ def info_command(
 
     Safety: discharge capacitors before connecting them to the analyser.
     """
-    import json
     import warnings
 
     from .._errors import MeasurementWarning
@@ -121,11 +120,10 @@ def info_command(
         sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay, port_loss
     )
     d = info_dict(s)
-    for line in info_lines(d):
-        echo(line)
+    to_stdout = json_path is not None and str(json_path) == "-"
+    for line in info_lines(d):  # with --json - the standard output is the JSON alone
+        typer.echo(line, err=to_stdout)
     for w in d["warnings"]:
         warnings.warn(w, MeasurementWarning)
     if json_path is not None:
-        from .._atomic import write_atomic
-
-        write_atomic(json_path, json.dumps(d, indent=2) + "\n", force)
+        emit_json(d, json_path, force)

@@ -14,7 +14,7 @@ from typing import Annotated, Optional
 
 import typer
 
-from ._common import ForceOpt, app, echo, guarded, quantity
+from ._common import ForceOpt, app, echo, emit_json, guarded, quantity
 
 plan_app = typer.Typer(
     name="plan",
@@ -49,9 +49,6 @@ def _band(text: str):
 
 
 def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_rel, table_floor, reference, force):
-    import json
-
-    from .._atomic import write_atomic
     from ..data._connection import InstrumentNoise
     from ..identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, format_plan, plan_measurement
 
@@ -63,7 +60,8 @@ def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_r
         TABLE_ACCURACY_DEFAULT.rel if table_rel is None else table_rel,
         TABLE_ACCURACY_DEFAULT.floor if table_floor is None else quantity(table_floor, "--table-floor"),
     )
-    if json_path is not None:
+    to_stdout = json_path is not None and str(json_path) == "-"
+    if json_path is not None and not to_stdout:
         from .._atomic import check_writable
 
         check_writable(json_path, force)
@@ -71,10 +69,9 @@ def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_r
         model, params, _band(band), points=points, noise=noise, table_accuracy=table,
         reference_ohm=quantity(reference, "--reference"),
     )
-    echo(format_plan(plan))
+    typer.echo(format_plan(plan), err=to_stdout)  # with --json - the standard output is the JSON alone
     if json_path is not None:
-        write_atomic(json_path, json.dumps(plan.to_dict(), indent=2) + "\n", force)
-        echo(f"wrote {json_path}")
+        emit_json(plan.to_dict(), json_path, force)
 
 
 @plan_app.command("inductor")

@@ -47,6 +47,7 @@ from pathlib import Path
 from typing import Mapping, Sequence
 
 from .._errors import ZfitError, ZfitInputError
+from .._json import json_text
 from ._limits import PARAMETER_UNITS, VERDICTS, Limits, decide, figure_name
 from ..io._sweep_file import TABLE_EXTENSIONS, TOUCHSTONE_EXTENSIONS
 
@@ -243,7 +244,7 @@ def _read_sweep(task: PartTask):
 
 def result_json_text(result: dict) -> str:
     """Return the JSON text of an identify result as the batch writes it."""
-    return json.dumps(result, indent=2, allow_nan=False) + "\n"
+    return json_text(result)
 
 
 def _identify_part(task: PartTask) -> PartOutcome:
@@ -923,7 +924,7 @@ def lot_json_text(lot: LotSummary) -> str:
                       "(Montgomery 2013, 8.3; ISO 22514-2)",
         "quantities": [{k: clean(v) for k, v in zip(_LOT_FIELDS, _stat_values(q))} for q in lot.quantities],
     }
-    return json.dumps(doc, indent=2, allow_nan=False) + "\n"
+    return json_text(doc)
 
 
 def lot_text(lot: LotSummary) -> str:
