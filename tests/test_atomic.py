@@ -37,3 +37,56 @@ def test_write_atomic_names_a_folder_given_as_file(tmp_path):
     (tmp_path / "notes.txt").write_text("mine")
     with pytest.raises(ZfitInputError, match=r"notes\.txt is a file, not a folder"):
         write_atomic(tmp_path / "notes.txt" / "out.json", "x")
+
+
+def test_force_onto_a_device_writes_in_place_and_keeps_the_node(tmp_path):
+    # Issue 16 (item 4): `--json /dev/null --force` as root must not replace
+    # /dev/null by a regular file. POSIX: /dev/null is a character device.
+    write_atomic("/dev/null", "discarded\n", force=True)
+    assert stat.S_ISCHR(os.stat("/dev/null").st_mode)
+
+
+def test_force_onto_a_fifo_writes_into_it(tmp_path):
+    import threading
+
+    fifo = tmp_path / "pipe"
+    os.mkfifo(fifo)
+    got = []
+
+    def read():
+        with open(fifo, "rb") as fh:
+            got.append(fh.read())
+
+    reader = threading.Thread(target=read)
+    reader.start()
+    write_atomic(fifo, b"through the pipe", force=True)
+    reader.join(timeout=10)
+    assert got == [b"through the pipe"]
+    assert stat.S_ISFIFO(os.stat(fifo).st_mode)
+
+
+def test_force_onto_a_symlink_replaces_its_target_and_keeps_the_link(tmp_path):
+    real = tmp_path / "real.json"
+    real.write_text("old")
+    link = tmp_path / "link.json"
+    link.symlink_to(real)
+    write_atomic(link, "new", force=True)
+    assert link.is_symlink() and real.read_text() == "new"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["link.json", "real.json"]
+
+
+def test_a_write_that_fails_names_the_file_not_the_temporary(tmp_path):
+    from zfit._errors import ZfitInputError
+
+    folder = tmp_path / "locked"
+    folder.mkdir()
+    folder.chmod(0o500)
+    try:
+        if os.access(folder, os.W_OK):  # root ignores permissions: use a full device instead
+            with pytest.raises(ZfitInputError, match=r"^/dev/full: cannot write: No space left on device$"):
+                write_atomic("/dev/full", "x", force=True)
+        else:
+            with pytest.raises(ZfitInputError, match=r"out\.json: cannot write: Permission denied$"):
+                write_atomic(folder / "out.json", "x")
+    finally:
+        folder.chmod(0o700)

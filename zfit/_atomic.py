@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import stat
 import tempfile
 from pathlib import Path
 
@@ -40,11 +41,23 @@ def check_writable(path, force: bool = False) -> Path:
     return path
 
 
+def _special(path: Path) -> bool:
+    """Whether `path` is a node that must never be renamed over (device, FIFO, socket)."""
+    try:
+        mode = os.stat(path).st_mode
+    except (FileNotFoundError, NotADirectoryError):
+        return False
+    return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
+
+
 def write_atomic(path, data, force: bool = False) -> Path:
     """Write `data` to `path` through a temporary file and a rename.
 
     An interrupted write leaves either the old file or the new one, never a
     half-written file, because ``os.replace`` is atomic on one file system.
+    A symbolic link is followed (the file it points to is replaced, the link
+    stays); a device, FIFO or socket (``/dev/null``, a named pipe) is written
+    in place, never replaced by a regular file.
 
     Parameters
     ----------
@@ -59,10 +72,31 @@ def write_atomic(path, data, force: bool = False) -> Path:
     -------
     pathlib.Path
         The path written.
+
+    Raises
+    ------
+    OutputExistsError
+        When `path` exists and `force` is false.
+    ZfitInputError
+        When the file cannot be written (no space left, no permission),
+        naming the file and not the temporary.
     """
-    path = check_writable(path, force)
-    path.parent.mkdir(parents=True, exist_ok=True)
+    given = check_writable(path, force)
     raw = data.encode("utf-8") if isinstance(data, str) else bytes(data)
+    target = Path(os.path.realpath(given)) if given.is_symlink() else given
+    try:
+        if _special(target):
+            with open(target, "wb") as fh:
+                fh.write(raw)
+            return given
+        target.parent.mkdir(parents=True, exist_ok=True)
+        _replace_with(target, raw)
+    except OSError as exc:
+        raise ZfitInputError(f"cannot write: {exc.strerror or exc}", given) from None
+    return given
+
+
+def _replace_with(path: Path, raw: bytes) -> None:
     fd, tmp = tempfile.mkstemp(prefix="." + path.name + ".", suffix=".part", dir=path.parent)
     try:
         # mkstemp makes the file private (0600); a result file should be as
@@ -79,4 +113,3 @@ def write_atomic(path, data, force: bool = False) -> Path:
         except FileNotFoundError:
             pass
         raise
-    return path
