@@ -47,6 +47,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .._errors import ZfitInputError
+from ._parameters import UNITS
 
 __all__ = [
     "Circuit",
@@ -63,8 +64,6 @@ __all__ = [
 #: The families of parts zfit has equivalent circuits for.
 FAMILIES = ("inductor", "capacitor")
 
-#: Unit of every parameter key.
-UNITS = {"L": "H", "R_s": "ohm", "C_p": "F", "R_p": "ohm", "C": "F", "ESR": "ohm", "ESL": "H", "R_leak": "ohm"}
 
 _TWO_PI = 2.0 * math.pi
 
