@@ -108,12 +108,12 @@ def measured_two_port(z, connection: str, noise: InstrumentNoise, reference_ohm:
     s11 = s21 - 1.0 if connection == "shunt-thru" else 1.0 - s21
     if rng is None:
         return s11, s21, s21, s11
+    # S21 is read with the first draw; the four readings then draw their own
+    # and S21's own goes unused, which keeps seeded lots as they were written.
     first = circular_noise(rng, s21.size)
-    out = []
-    for k, sp in enumerate((s11, s21, s21, s11)):
-        e = first if k == 1 else circular_noise(rng, sp.size)
-        out.append(sp + noise.sigma(sp) * e)
-    return tuple(out)
+    own = [circular_noise(rng, s21.size) for _ in range(4)]
+    own[1] = first
+    return tuple(sp + noise.sigma(sp) * e for sp, e in zip((s11, s21, s21, s11), own))
 
 
 def measured_impedance(z, noise: InstrumentNoise, rng=None, unit_noise=None) -> np.ndarray:

@@ -42,6 +42,15 @@ def _needs_skrf(tasks, sample: int = 8) -> bool:
 
 
 def preload_modules(plot: bool = False, skrf: bool = False) -> list[str]:
+    """Return the modules a worker needs, to import once before the workers start.
+
+    Parameters
+    ----------
+    plot : bool
+        Whether parts are plotted (matplotlib).
+    skrf : bool
+        Whether the lot holds Touchstone 2.0 files (scikit-rf).
+    """
     # What the first part of a worker would otherwise import (measured with
     # ``python -X importtime``: scipy.optimize and friends are about 0.4 s;
     # matplotlib another 0.5 s when plotting; scikit-rf, for Touchstone 2.0
@@ -57,6 +66,7 @@ def preload_modules(plot: bool = False, skrf: bool = False) -> list[str]:
 
 
 def import_all(modules) -> None:
+    """Import `modules`, skipping those that are not installed."""
     import importlib
 
     for m in modules:

@@ -14,6 +14,7 @@ from typing import Sequence
 from .._json import json_text
 from ..fit._parameters import PARAMETERS
 from ..io._limits_file import Limits, figure_name
+from ._part_summary import SPOT_READOUTS
 from ._rows import PartRow
 from ._statistics import LotSummary, QuantityStats
 
@@ -28,8 +29,13 @@ __all__ = [
     "lot_text",
 ]
 
-_SPOT_KEYS = ("R", "X", "Z_mag", "L_eff", "C_eff", "Q", "D", "ESR")
+#: Spot readouts in the order of the summary's columns.
+_SPOT_KEYS = (*SPOT_READOUTS, "ESR")
+
+#: The summary files of a run, in its output folder.
 SUMMARY_NAME, LOT_CSV_NAME, LOT_JSON_NAME = "summary.csv", "lot.csv", "lot.json"
+
+#: The decision rule in words, as lot.json states it.
 DECISION_RULE = (
     "guarded acceptance (JCGM 106:2012, 8.3.2): pass when value +- k u lies inside the limits, "
     "fail when the value lies outside, indeterminate otherwise"

@@ -16,8 +16,19 @@ def _close(a: float, b: float) -> bool:
 
 
 def reusable_summary(task: PartTask, force: bool) -> PartSummary | None:
-    """Return the summary of the stored result of `task` if it is newer than the input and covers
-    what is asked (model, spot frequencies, plot), else None."""
+    """Return the summary of the stored result of `task`, or None when it must be redone.
+
+    A stored result is reused when it is newer than the input (and the plot
+    too, when one is asked), was written by this version of zfit, and covers
+    what is asked (model, spot frequencies).
+
+    Parameters
+    ----------
+    task : PartTask
+        The part.
+    force : bool
+        Never reuse.
+    """
     if force:
         return None
     try:
