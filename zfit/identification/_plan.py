@@ -40,7 +40,7 @@ from types import MappingProxyType
 import numpy as np
 
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise
-from ..data._simulate import simulated_sweep
+from ..data._simulate import SIMULATED_CONNECTIONS, simulated_sweep
 from ..fit._parameters import OPTIONAL_KEY, REQUIRED_KEYS, UNITS
 from .._errors import FitError, ZfitInputError
 from .._units import format_eng
@@ -56,7 +56,7 @@ __all__ = [
 ]
 
 #: The connections the planner compares; ``impedance`` is the analyser table.
-PLAN_CONNECTIONS = ("reflection", "shunt-thru", "series-thru", "impedance")
+PLAN_CONNECTIONS = SIMULATED_CONNECTIONS
 
 #: Network-analyser noise on S (the readers' default for S-parameter files).
 NA_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-5)

@@ -35,7 +35,7 @@ from pathlib import Path
 
 from .._errors import ZfitInputError
 from .._units import format_eng, parse_quantity
-from ..fit._parameters import FAMILY_OF, UNITS
+from ..fit._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
 
 __all__ = [
     "Limit",
@@ -53,7 +53,7 @@ SPOT_UNITS = {"Q": "", "D": "", "ESR": "ohm", "R": "ohm", "X": "ohm", "L_eff": "
 
 _LIMIT_KEYS = {"nominal", "tolerance_percent", "tolerance", "min", "max", "at", "guard_band_k"}
 _TOP_KEYS = {"title", "model", "guard_band_k", "limit"}
-_MODELS = ("inductor", "capacitor")
+_MODELS = tuple(PARAMETER_KEYS)
 
 #: Guard band in standard uncertainties when the file gives none (JCGM 106:2012, 8.3.2).
 DEFAULT_GUARD_K = 2.0
