@@ -2,8 +2,9 @@
 
 The part's equivalent circuit is simulated through each way of measuring it
 (network analyser in reflection, shunt-thru and series-thru, and an
-impedance-analyser table of stated accuracy), with the same noise model the
-readers give real files (`zfit.data._connection.InstrumentNoise`), and identified
+impedance-analyser table of stated accuracy) by the one simulated measurement
+(`zfit.data._simulate`), with the same noise model the readers give real
+files (`zfit.data._connection.InstrumentNoise`), and identified
 by the same `zfit.identify`.  For each connection the plan gives the
 expected standard uncertainty of every parameter, its resolution limit
 (`zfit.fit._fisher`), and a recommendation.
