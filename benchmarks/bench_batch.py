@@ -45,7 +45,7 @@ min = 2
 
 
 def _lot(n: int, seed: int = 2026):
-    from zfit.lot._batch import SimulatedPart
+    from zfit.lot._simulated_lot import SimulatedPart
 
     rng = np.random.default_rng(seed)
     parts = []
@@ -79,9 +79,10 @@ def _worker_imports(sample: Path) -> dict:
     code = (
         "import sys, time\n"
         "t0 = time.perf_counter()\n"
-        "import zfit.lot._batch, zfit.identification._pipeline, zfit.io._sweep_file, zfit.cli._common\n"
+        "import zfit.lot._worker, zfit.identification._pipeline, zfit.io._sweep_file, zfit.cli._common\n"
         "t1 = time.perf_counter()\n"
-        "from zfit.lot._batch import PartTask, _identify_part\n"
+        "from zfit.lot._tasks import PartTask\n"
+        "from zfit.lot._worker import identify_part as _identify_part\n"
         "import tempfile, os\n"
         "d = tempfile.mkdtemp()\n"
         f"t = PartTask(0, {str(sample)!r}, 'x', os.path.join(d, 'x.json'), None, 'auto', (1e6,))\n"
@@ -105,7 +106,7 @@ def main(argv=None):
     ap.add_argument("--workdir", type=Path, default=None, help="Keep the lot here (default: a temporary folder).")
     a = ap.parse_args(argv)
 
-    from zfit.lot._batch import write_simulated_lot
+    from zfit.lot._simulated_lot import write_simulated_lot
 
     tmp = None
     if a.workdir is None:

@@ -37,7 +37,8 @@ from pathlib import Path
 import numpy as np
 
 from zfit.fit._circuits import circuit_impedance
-from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from zfit.data._connection import InstrumentNoise, impedance_from_s, sigma_z_from_s
+from zfit.data._simulate import measured_s
 from zfit._errors import MeasurementWarning
 from zfit.identification._pipeline import identify
 from zfit.data._sweep import make_sweep
@@ -75,9 +76,8 @@ def sweep_of(kind, p, rng, n=1601):
     lo, hi = band_of(kind, p)
     f = np.geomspace(lo, hi, n)
     z = circuit_impedance(kind, p, f)
-    s = s_from_impedance(z, "reflection")
     for _ in range(50):
-        sm = s + NOISE.sigma(s) * (rng.standard_normal(n) + 1j * rng.standard_normal(n)) / math.sqrt(2)
+        sm = measured_s(z, "reflection", NOISE, 50.0, rng)
         try:
             sweep = make_sweep(
                 f, impedance_from_s(sm, "reflection"), sigma_z_from_s(sm, "reflection", noise=NOISE),

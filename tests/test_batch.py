@@ -22,19 +22,15 @@ import pytest
 from ngspice import require_ngspice, run_ac
 from typer.testing import CliRunner
 
-from zfit.lot._batch import (
-    Progress,
-    SimulatedPart,
-    expand_inputs,
-    lot_summary,
-    part_row,
-    process_capability,
-    run_batch,
-    write_simulated_lot,
-)
+from zfit.lot._inputs import expand_inputs
+from zfit.lot._progress import Progress
+from zfit.lot._rows import part_row
+from zfit.lot._run import run_batch
+from zfit.lot._simulated_lot import SimulatedPart, write_simulated_lot
+from zfit.lot._statistics import lot_summary, process_capability
 from zfit.cli._app import app
 from zfit._errors import ZfitInputError
-from zfit.lot._limits import parse_limits
+from zfit.io._limits_file import parse_limits
 
 F_START, F_STOP, PPD = 1e3, 1e8, 40  # 201 points, 1 kHz - 100 MHz
 
@@ -252,7 +248,7 @@ def test_capability_formula_against_the_normal_table():
     assert process_capability(10.0, 0.0, 9.7, 10.5) == (None, None)
     # Expected fraction out: the normal tail beyond 3 sigma is 0.135 % (1350 ppm,
     # standard normal table, common practice), beyond 5 sigma 0.287 ppm.
-    from zfit.lot._batch import _ppm_out
+    from zfit.lot._statistics import _ppm_out
 
     assert _ppm_out(10.0, 0.1, 9.7, 10.5) == pytest.approx(1349.898 + 0.2867, rel=1e-4)
 
@@ -397,9 +393,10 @@ def test_rows_and_lot_without_limits():
         "srf": {"value_hz": None, "std_hz": None, "where": "above-band", "bound_hz": 1e7},
         "fit": {"rms_normalized_residual": 1.0}, "spot": [], "warnings": [],
     }
-    from zfit.lot._batch import PartOutcome
+    from zfit.lot._part_summary import part_summary_from_json
+    from zfit.lot._tasks import PartOutcome
 
-    rows = [part_row(PartOutcome(i, f"C{i}.s1p", result)) for i in range(3)]
+    rows = [part_row(PartOutcome(i, f"C{i}.s1p", part_summary_from_json(result))) for i in range(3)]
     assert rows[0].verdict == "unchecked"
     assert rows[0].figures["ESR"] == (0.01, None)
     lot = lot_summary(rows)
@@ -488,7 +485,7 @@ def test_capacitor_lot_measured_shunt_thru(tmp_path):
 
 
 def test_output_names_mirror_the_inputs_and_never_collide(tmp_path):
-    from zfit.lot._batch import _output_names
+    from zfit.lot._inputs import output_names as _output_names
 
     for rel in ("day1/L1.s1p", "day2/L1.s1p", "day2/L2.s1p", "day2/L2.csv"):
         (tmp_path / rel).parent.mkdir(parents=True, exist_ok=True)
@@ -501,7 +498,7 @@ def test_output_names_mirror_the_inputs_and_never_collide(tmp_path):
 def test_in_process_run_puts_the_blas_thread_count_back(tmp_path):
     import scipy.linalg  # noqa: F401  (loads scipy's own OpenBLAS)
 
-    from zfit.lot._batch import _blas_threads
+    from zfit.lot._threads import blas_threads as _blas_threads
 
     write_simulated_lot(tmp_path / "in", [SimulatedPart("T.csv", "inductor", {"L": 1e-6, "R_s": 0.1, "C_p": 1e-12})],
                         np.logspace(4, 9, 101), seed=1)

@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 
 from ngspice import run_ac
+from zfit.data._simulate import simulated_sweep
 from zfit.fit._circuits import circuit_impedance
 from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
@@ -53,13 +54,9 @@ def test_resolution_limits_of_an_identification_and_the_resolved_flag(rng):
     # 5 milliohm ESR: far below what series-thru resolves (its S21 ~ 1 hides
     # it), well above what shunt-thru does.
     f = np.geomspace(1e3, 1e9, 201)
-    z = circuit_impedance("capacitor", CAP, f)
     out = {}
     for conn in ("series-thru", "shunt-thru"):
-        s = s_from_impedance(z, conn)
-        s = s + NOISE.sigma(s) * (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) / math.sqrt(2)
-        sw = Sweep(f, impedance_from_s(s, conn), sigma_z_from_s(s, conn, 50.0, NOISE), connection=conn,
-                   reference_ohm=50.0, s_param=s, noise=NOISE)
+        sw = simulated_sweep("capacitor", CAP, conn, f, NOISE, 50.0, rng=rng)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", MeasurementWarning)
             ident = identify(sw, model="capacitor")

@@ -18,6 +18,7 @@ import pytest
 from typer.testing import CliRunner
 
 from ngspice import run_ac
+from zfit.data._simulate import simulated_sweep
 from zfit.fit._circuits import circuit_impedance
 from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning
@@ -31,11 +32,7 @@ F = np.geomspace(1e4, 1e8, 41)  # a quick sweep, 10 points per decade
 
 
 def _measured(connection, seed, f=F, params=CAP):
-    rng = np.random.default_rng(seed)
-    s = s_from_impedance(circuit_impedance("capacitor", params, f), connection)
-    s = s + NOISE.sigma(s) * (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) / math.sqrt(2)
-    return Sweep(f, impedance_from_s(s, connection), sigma_z_from_s(s, connection, 50.0, NOISE), connection=connection,
-                 reference_ohm=50.0, s_param=s, noise=NOISE, source=f"cap-{connection}")
+    return simulated_sweep("capacitor", params, connection, f, NOISE, 50.0, rng=np.random.default_rng(seed))
 
 
 def _esr_limit_reference(c, esl, f, connection):

@@ -14,7 +14,8 @@ import math
 import pytest
 
 from zfit._errors import ZfitInputError
-from zfit.lot._limits import conformity, decide, figure_name, parse_limits, read_limits
+from zfit.io._limits_file import figure_name, parse_limits, read_limits
+from zfit.lot._conformity import conformity, decide
 
 EXAMPLE = """\
 # incoming inspection of an invented 10 uH choke

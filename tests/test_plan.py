@@ -17,13 +17,11 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from zfit.fit._circuits import circuit_impedance
 from zfit.cli._app import app
-from zfit.data._connection import impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning, ZfitInputError
 from zfit.identification._pipeline import identify
+from zfit.data._simulate import simulated_sweep
 from zfit.identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, plan_measurement
-from zfit.data._sweep import Sweep
 
 CAP = ("capacitor", {"C": 100e-9, "ESR": 5e-3, "ESL": 0.5e-9})
 # 10 uH resonating at 20 MHz (C_p = 1 / ((2 pi 20 MHz)^2 10 uH) = 6.33 pF),
@@ -33,14 +31,8 @@ BAND, POINTS, RUNS = (1e3, 1e9), 201, 100
 
 
 def noisy_sweep(model, params, connection, f, rng):
-    z = circuit_impedance(model, params, f)
-    e = (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) / math.sqrt(2)
-    if connection == "impedance":
-        zm = z + TABLE_ACCURACY_DEFAULT.sigma(z) * e
-        return Sweep(f, zm, TABLE_ACCURACY_DEFAULT.sigma(zm), connection="impedance", noise=TABLE_ACCURACY_DEFAULT)
-    s = s_from_impedance(z, connection) + NA_NOISE_DEFAULT.sigma(s_from_impedance(z, connection)) * e
-    return Sweep(f, impedance_from_s(s, connection), sigma_z_from_s(s, connection, 50.0, NA_NOISE_DEFAULT),
-                 connection=connection, reference_ohm=50.0, s_param=s, noise=NA_NOISE_DEFAULT)
+    noise = TABLE_ACCURACY_DEFAULT if connection == "impedance" else NA_NOISE_DEFAULT
+    return simulated_sweep(model, params, connection, f, noise, 50.0, rng=rng)
 
 
 @pytest.fixture(scope="module")

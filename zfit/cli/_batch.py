@@ -72,8 +72,9 @@ def batch_command(
     Safety: discharge capacitors before connecting them to an analyser; for
     parts on mains or high voltage follow local codes and licensed practice.
     """
-    from ..lot._batch import ReadOptions, run_batch
-    from ..lot._limits import read_limits
+    from ..io._limits_file import read_limits
+    from ..lot._run import run_batch
+    from ..lot._tasks import ReadOptions
 
     if model is not None and model not in ("auto", "inductor", "capacitor", "rational"):
         from .._errors import ZfitInputError
@@ -99,7 +100,7 @@ def batch_command(
     n_warn = sum(1 for r in result.rows if r.warnings)
     if n_warn:
         warn_line(f"{n_warn} part(s) have measurement warnings: see the 'warnings' column of {result.summary_path}")
-    from ..lot._batch import lot_text
+    from ..lot._lot_files import lot_text
 
     echo(lot_text(result.lot))
     echo(f"{result.identified} identified, {result.skipped} up to date (skipped), {result.errors} error, "

@@ -47,13 +47,13 @@ from dataclasses import dataclass
 import numpy as np
 
 from .._errors import ZfitInputError
+from ._parameters import OPTIONAL_KEY, PARAMETER_KEYS, REQUIRED_KEYS, UNITS
 
 __all__ = [
     "Circuit",
     "InductorCircuit",
     "CapacitorCircuit",
     "FAMILIES",
-    "UNITS",
     "circuit_for",
     "circuit_impedance",
     "circuits_of",
@@ -63,8 +63,6 @@ __all__ = [
 #: The families of parts zfit has equivalent circuits for.
 FAMILIES = ("inductor", "capacitor")
 
-#: Unit of every parameter key.
-UNITS = {"L": "H", "R_s": "ohm", "C_p": "F", "R_p": "ohm", "C": "F", "ESR": "ohm", "ESL": "H", "R_leak": "ohm"}
 
 _TWO_PI = 2.0 * math.pi
 
@@ -261,8 +259,8 @@ class InductorCircuit(Circuit):
             self, "topology",
             "series R_s-L with parallel C_p and R_p" if core_loss else "series R_s-L with parallel C_p",
         )
-        object.__setattr__(self, "keys", ("L", "R_s", "C_p", "R_p") if core_loss else ("L", "R_s", "C_p"))
-        object.__setattr__(self, "optional", "R_p" if core_loss else None)
+        object.__setattr__(self, "keys", PARAMETER_KEYS["inductor"] if core_loss else REQUIRED_KEYS["inductor"])
+        object.__setattr__(self, "optional", OPTIONAL_KEY["inductor"] if core_loss else None)
 
     def impedance(self, p, f_hz) -> np.ndarray:
         """Return ``(R_s + sL) || 1/(sC_p) [|| R_p]`` in ohm.
@@ -472,8 +470,8 @@ class CapacitorCircuit(Circuit):
         object.__setattr__(
             self, "topology", "series ESR-ESL with C shunted by R_leak" if leakage else "series C-ESR-ESL"
         )
-        object.__setattr__(self, "keys", ("C", "ESR", "ESL", "R_leak") if leakage else ("C", "ESR", "ESL"))
-        object.__setattr__(self, "optional", "R_leak" if leakage else None)
+        object.__setattr__(self, "keys", PARAMETER_KEYS["capacitor"] if leakage else REQUIRED_KEYS["capacitor"])
+        object.__setattr__(self, "optional", OPTIONAL_KEY["capacitor"] if leakage else None)
 
     def _zc(self, p, s):
         if self.leakage:

@@ -52,6 +52,7 @@ import numpy as np
 
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise, s_from_impedance, sigma_z_from_s
 from .._units import format_eng
+from ._parameters import PARAMETER_KEYS, RESOLUTION_KIND
 
 __all__ = [
     "PARAMETER_KEYS",
@@ -65,16 +66,6 @@ __all__ = [
     "unresolved_text",
     "ground_loop_warning",
 ]
-
-#: Circuit parameters of each model, in the order of the contract.
-PARAMETER_KEYS = {
-    "inductor": ("L", "R_s", "C_p", "R_p"),
-    "capacitor": ("C", "ESR", "ESL", "R_leak"),
-}
-
-#: ``"lower"``: a value below the limit is not resolved; ``"upper"``: a value
-#: above it (parallel losses).
-RESOLUTION_KIND = {k: ("upper" if k in ("R_p", "R_leak") else "lower") for ks in PARAMETER_KEYS.values() for k in ks}
 
 #: The relative uncertainty at the resolution limit.
 _THRESHOLD = 1.0 / 3.0

@@ -2,8 +2,9 @@
 
 The part's equivalent circuit is simulated through each way of measuring it
 (network analyser in reflection, shunt-thru and series-thru, and an
-impedance-analyser table of stated accuracy), with the same noise model the
-readers give real files (`zfit.data._connection.InstrumentNoise`), and identified
+impedance-analyser table of stated accuracy) by the one simulated measurement
+(`zfit.data._simulate`), with the same noise model the readers give real
+files (`zfit.data._connection.InstrumentNoise`), and identified
 by the same `zfit.identify`.  For each connection the plan gives the
 expected standard uncertainty of every parameter, its resolution limit
 (`zfit.fit._fisher`), and a recommendation.
@@ -39,7 +40,9 @@ from types import MappingProxyType
 
 import numpy as np
 
-from ..data._connection import NA_CONNECTIONS, InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from ..data._connection import NA_CONNECTIONS, InstrumentNoise
+from ..data._simulate import SIMULATED_CONNECTIONS, simulated_sweep
+from ..fit._parameters import OPTIONAL_KEY, REQUIRED_KEYS, UNITS
 from .._errors import FitError, ZfitInputError
 from .._units import format_eng
 
@@ -50,12 +53,11 @@ __all__ = [
     "PlannedParameter",
     "ConnectionPlan",
     "Plan",
-    "simulated_sweep",
     "plan_measurement",
 ]
 
 #: The connections the planner compares; ``impedance`` is the analyser table.
-PLAN_CONNECTIONS = ("reflection", "shunt-thru", "series-thru", "impedance")
+PLAN_CONNECTIONS = SIMULATED_CONNECTIONS
 
 #: Network-analyser noise on S (the readers' default for S-parameter files).
 NA_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-5)
@@ -66,9 +68,6 @@ NA_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-5)
 TABLE_ACCURACY_DEFAULT = InstrumentNoise(1e-3, 1e-2)
 
 _LABEL = {"impedance": "analyser table"}
-_UNITS = {"L": "H", "R_s": "ohm", "C_p": "F", "R_p": "ohm", "C": "F", "ESR": "ohm", "ESL": "H", "R_leak": "ohm"}
-_REQUIRED = {"inductor": ("L", "R_s", "C_p"), "capacitor": ("C", "ESR", "ESL")}
-_OPTIONAL = {"inductor": "R_p", "capacitor": "R_leak"}
 _SCHEMA = "zfit.plan/1"
 
 
@@ -283,60 +282,14 @@ class Plan:
         }
 
 
-def simulated_sweep(model, params, connection, f_hz, noise, reference_ohm=50.0, rng=None):
-    """Return the sweep a connection would measure on the circuit, with or without noise.
-
-    Parameters
-    ----------
-    model : {'inductor', 'capacitor'}
-        The equivalent circuit.
-    params : mapping
-        Its values, SI units.
-    connection : str
-        One of `PLAN_CONNECTIONS`.
-    f_hz : array_like
-        Frequencies, Hz.
-    noise : InstrumentNoise
-        On S for the analyser connections, on Z for ``"impedance"``.
-    reference_ohm : float
-        Reference impedance, ohm.
-    rng : numpy.random.Generator, optional
-        Draws circular Gaussian noise of the model's size; None: no noise.
-
-    Returns
-    -------
-    Sweep
-        Sigma computed from the (noisy) measured values, as a reader would.
-    """
-    from ..fit._circuits import circuit_impedance
-    from ..data._sweep import Sweep
-
-    f = np.asarray(f_hz, dtype=float)
-    z = np.asarray(circuit_impedance(model, params, f), dtype=complex)
-    if connection in NA_CONNECTIONS:
-        s = s_from_impedance(z, connection, reference_ohm)
-        if rng is not None:
-            s = s + noise.sigma(s) * (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) / math.sqrt(2)
-        zm = impedance_from_s(s, connection, reference_ohm)
-        sig = sigma_z_from_s(s, connection, reference_ohm, noise)
-        return Sweep(f, zm, sig, source=f"simulated {connection}", connection=connection, reference_ohm=reference_ohm,
-                     data_format="simulated", noise_model=noise.describe("S"), s_param=s, noise=noise)
-    if connection != "impedance":
-        raise ZfitInputError(f"unknown connection {connection!r}; use one of {', '.join(PLAN_CONNECTIONS)}")
-    if rng is not None:
-        z = z + noise.sigma(z) * (rng.standard_normal(f.size) + 1j * rng.standard_normal(f.size)) / math.sqrt(2)
-    return Sweep(f, z, noise.sigma(z), source="simulated analyser table", connection="impedance",
-                 data_format="simulated", noise_model=noise.describe("Z"), noise=noise)
-
-
 def _check_params(model, params):
-    if model not in _REQUIRED:
+    if model not in REQUIRED_KEYS:
         raise ZfitInputError(f"unknown model {model!r}; use inductor or capacitor")
     out = {}
-    for k in _REQUIRED[model] + (_OPTIONAL[model],):
+    for k in REQUIRED_KEYS[model] + (OPTIONAL_KEY[model],):
         v = params.get(k)
         if v is None:
-            if k in _REQUIRED[model]:
+            if k in REQUIRED_KEYS[model]:
                 raise ZfitInputError(f"a {model} plan needs --{k} (the part's expected value)")
             continue
         v = float(v)
@@ -456,7 +409,7 @@ def plan_measurement(
             rel = std[k] / v
             e = reported.get(k)
             entries[k] = PlannedParameter(
-                key=k, value=v, unit=_UNITS[k], std=std[k], relative_std=rel,
+                key=k, value=v, unit=UNITS[k], std=std[k], relative_std=rel,
                 resolved=bool(rel <= 1 / 3 and is_resolved(k, v, limits.get(k))),
                 resolution_limit=limits.get(k),
                 std_reported=None if e is None or e.std is None else float(e.std),
@@ -539,7 +492,7 @@ def format_plan(plan: Plan) -> str:
     """
     from ..fit._fisher import unresolved_text
 
-    vals = ", ".join(f"{k} = {format_eng(v, _UNITS[k])}" for k, v in plan.params.items())
+    vals = ", ".join(f"{k} = {format_eng(v, UNITS[k])}" for k, v in plan.params.items())
     srf = f" (SRF {format_eng(plan.srf_hz, 'Hz')})" if plan.srf_hz else ""
     lines = [f"plan: {plan.model}, {plan.topology}: {vals}{srf}",
              f"band {format_eng(plan.band_hz[0], 'Hz')} to {format_eng(plan.band_hz[1], 'Hz')}, {plan.points} log-spaced points, "

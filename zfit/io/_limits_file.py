@@ -1,4 +1,4 @@
-"""Limits of a lot of parts, and the decision rule that checks a part against them.
+"""Reading a limits file: the tolerance of each quantity a lot is checked against.
 
 The limits file is TOML (read with the standard library's `tomllib`) in a
 layout of zfit's own, described in ``docs/batch.md``::
@@ -21,22 +21,8 @@ layout of zfit's own, described in ``docs/batch.md``::
     at = "1M"
     min = 150
 
-Decision rule: guarded acceptance (JCGM 106:2012, *Evaluation of
-measurement data -- The role of measurement uncertainty in conformity
-assessment*, section 8.3.2, "guarded acceptance") with a guard band of
-``w = k u`` and ``k = 2`` by default.  With ``y`` the measured value, ``u``
-its standard uncertainty and ``[T_L, T_U]`` the tolerance interval:
-
-* ``pass`` when ``[y - k u, y + k u]`` lies inside ``[T_L, T_U]`` (the
-  acceptance interval ``[T_L + w, T_U - w]`` contains ``y``);
-* ``fail`` when ``y`` itself lies outside ``[T_L, T_U]``;
-* ``indeterminate`` otherwise: the value is inside, but only the
-  uncertainty's width away from a limit, so conformity is not shown.
-
-A value without an uncertainty (``std`` null) cannot be shown to conform:
-it is ``indeterminate`` when inside the limits (``fail`` when outside),
-unless that limit asks for simple acceptance with ``guard_band_k = 0``
-(JCGM 106:2012 section 8.2), which accepts any value inside the limits.
+The decision rule that checks a part against these limits is in
+`zfit.lot._conformity`.
 """
 
 from __future__ import annotations
@@ -46,36 +32,20 @@ import re
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Mapping
 
 from .._errors import ZfitInputError
 from .._units import format_eng, parse_quantity
+from ..fit._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
 
 __all__ = [
     "Limit",
     "Limits",
-    "LimitDecision",
-    "PartDecision",
     "read_limits",
     "parse_limits",
-    "conformity",
-    "decide",
     "figure_name",
-    "PARAMETER_UNITS",
     "SPOT_UNITS",
-    "VERDICTS",
+    "DEFAULT_GUARD_K",
 ]
-
-#: Verdicts, from best to worst.
-VERDICTS = ("pass", "indeterminate", "fail", "error")
-
-#: Equivalent-circuit parameters that a limit can name, with their units.
-PARAMETER_UNITS = {
-    "L": "H", "R_s": "ohm", "C_p": "F", "R_p": "ohm",
-    "C": "F", "ESR": "ohm", "ESL": "H", "R_leak": "ohm",
-}
-_FAMILY = {"L": "inductor", "R_s": "inductor", "C_p": "inductor", "R_p": "inductor",
-           "C": "capacitor", "ESR": "capacitor", "ESL": "capacitor", "R_leak": "capacitor"}
 
 #: Figures read at a named frequency (``at = ...``), with their units.
 #: ``ESR`` at a frequency is the real part of Z there (not the circuit's ESR).
@@ -83,8 +53,11 @@ SPOT_UNITS = {"Q": "", "D": "", "ESR": "ohm", "R": "ohm", "X": "ohm", "L_eff": "
 
 _LIMIT_KEYS = {"nominal", "tolerance_percent", "tolerance", "min", "max", "at", "guard_band_k"}
 _TOP_KEYS = {"title", "model", "guard_band_k", "limit"}
-_MODELS = ("inductor", "capacitor")
+_MODELS = tuple(PARAMETER_KEYS)
+
+#: Guard band in standard uncertainties when the file gives none (JCGM 106:2012, 8.3.2).
 DEFAULT_GUARD_K = 2.0
+
 
 
 def figure_name(quantity: str, f_hz: float | None = None) -> str:
@@ -178,155 +151,6 @@ class Limits:
     def names(self) -> tuple[str, ...]:
         """The figure names of the limits, in file order."""
         return tuple(lim.name for lim in self.limits)
-
-
-@dataclass(frozen=True)
-class LimitDecision:
-    """The verdict on one limit for one part.
-
-    Attributes
-    ----------
-    limit : Limit
-    value, std : float or None
-        The measured value and its standard uncertainty.
-    verdict : {'pass', 'indeterminate', 'fail'}
-    reason : str
-        Why, in words (for the reader of a failed part).
-    """
-
-    limit: Limit
-    value: float | None
-    std: float | None
-    verdict: str
-    reason: str
-
-
-@dataclass(frozen=True)
-class PartDecision:
-    """The verdict on a part: the worst of its limits.
-
-    Attributes
-    ----------
-    verdict : {'pass', 'indeterminate', 'fail'}
-    decisions : tuple of LimitDecision
-    """
-
-    verdict: str
-    decisions: tuple[LimitDecision, ...]
-
-    @property
-    def failed(self) -> tuple[str, ...]:
-        """Names of the limits that failed."""
-        return tuple(d.limit.name for d in self.decisions if d.verdict == "fail")
-
-    @property
-    def indeterminate(self) -> tuple[str, ...]:
-        """Names of the limits whose conformity was not shown."""
-        return tuple(d.limit.name for d in self.decisions if d.verdict == "indeterminate")
-
-
-# ---------------------------------------------------------------------------
-# The decision rule
-
-
-def _finite(x) -> bool:
-    return x is not None and isinstance(x, (int, float)) and math.isfinite(x)
-
-
-def conformity(value, std, lower=None, upper=None, k: float = DEFAULT_GUARD_K) -> str:
-    """Return the verdict of guarded acceptance for one measured value.
-
-    Parameters
-    ----------
-    value : float or None
-        The measured value ``y``; None (or NaN) when it could not be measured.
-    std : float or None
-        Its standard uncertainty ``u``; None when it has none.
-    lower, upper : float or None
-        Tolerance limits ``T_L`` and ``T_U``; None for a one-sided limit.
-    k : float
-        Guard band in standard uncertainties, ``w = k u`` (2 by default;
-        0 is simple acceptance).
-
-    Returns
-    -------
-    {'pass', 'indeterminate', 'fail'}
-        ``fail`` when ``y`` lies outside ``[T_L, T_U]``; ``pass`` when
-        ``[y - k u, y + k u]`` lies inside it; ``indeterminate`` otherwise,
-        and whenever `value` is missing, or `std` is missing with ``k > 0``.
-
-    References
-    ----------
-    JCGM 106:2012, Evaluation of measurement data -- The role of measurement
-    uncertainty in conformity assessment, sections 8.2 (simple acceptance)
-    and 8.3.2 (guarded acceptance).
-    """
-    if not _finite(value):
-        return "indeterminate"
-    if (lower is not None and value < lower) or (upper is not None and value > upper):
-        return "fail"
-    if k == 0:
-        return "pass"
-    if not _finite(std) or std < 0:
-        return "indeterminate"
-    w = k * std
-    if (lower is not None and value - w < lower) or (upper is not None and value + w > upper):
-        return "indeterminate"
-    return "pass"
-
-
-def _reason(lim: Limit, value, std, verdict: str) -> str:
-    unit = lim.unit
-    if not _finite(value):
-        return f"{lim.name}: not in the result"
-    shown = format_eng(value, unit)
-    if verdict == "fail":
-        if lim.lower is not None and value < lim.lower:
-            return f"{lim.name} = {shown} below min {format_eng(lim.lower, unit)}"
-        return f"{lim.name} = {shown} above max {format_eng(lim.upper, unit)}"
-    if verdict == "indeterminate":
-        if not _finite(std):
-            return f"{lim.name} = {shown} has no uncertainty"
-        return (f"{lim.name} = {shown} is inside but within {lim.guard_band_k:g} standard "
-                f"uncertainties ({format_eng(lim.guard_band_k * std, unit)}) of a limit")
-    return f"{lim.name} = {shown} inside {lim.text}"
-
-
-def decide(limits: Limits, figures: Mapping[str, tuple]) -> PartDecision:
-    """Return the verdict on one part.
-
-    Parameters
-    ----------
-    limits : Limits
-        The limits of the lot.
-    figures : mapping
-        Figure name (`Limit.name`) -> ``(value, std)`` of the part; a
-        figure that is missing counts as not measured. The SRF may carry a
-        third item, its lower bound in Hz when the resonance lies above the
-        band (``where == 'above-band'``): a minimum SRF at or below that
-        bound passes, since no resonance was seen below it.
-
-    Returns
-    -------
-    PartDecision
-        The worst verdict of all limits (fail > indeterminate > pass).
-    """
-    out = []
-    for lim in limits.limits:
-        got = figures.get(lim.name) or (None, None)
-        value, std = got[0], got[1]
-        bound = got[2] if len(got) > 2 else None
-        if (lim.quantity == "SRF" and _finite(bound) and lim.upper is None
-                and lim.lower is not None and bound >= lim.lower):
-            verdict = "pass"
-            reason = f"SRF above the band, > {format_eng(bound, 'Hz')} >= min {format_eng(lim.lower, 'Hz')}"
-        else:
-            verdict = conformity(value, std, lim.lower, lim.upper, lim.guard_band_k)
-            reason = _reason(lim, value, std, verdict)
-        out.append(LimitDecision(lim, value if _finite(value) else None,
-                                 std if _finite(std) else None, verdict, reason))
-    worst = max((VERDICTS.index(d.verdict) for d in out), default=0)
-    return PartDecision(VERDICTS[worst], tuple(out))
 
 
 # ---------------------------------------------------------------------------
@@ -442,10 +266,10 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
         if f_hz <= 0:
             raise where_for("at")(f"frequency {table['at']!r} is not positive")
         unit = SPOT_UNITS[quantity]
-    elif quantity in PARAMETER_UNITS:
-        unit = PARAMETER_UNITS[quantity]
-        if model is not None and _FAMILY[quantity] != model:
-            family = _FAMILY[quantity]
+    elif quantity in UNITS:
+        unit = UNITS[quantity]
+        if model is not None and FAMILY_OF[quantity] != model:
+            family = FAMILY_OF[quantity]
             article = "an" if family[0] in "aeiou" else "a"
             raise where_for()(f"{quantity} is {article} {family} parameter but the file is for model {model!r}")
     elif quantity == "SRF":
@@ -453,7 +277,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
     elif quantity in SPOT_UNITS:
         raise where_for()(f"{quantity} is read at a frequency: give at = \"1M\" (say)")
     else:
-        known = ", ".join([*PARAMETER_UNITS, "SRF", *(q + " (with at)" for q in SPOT_UNITS if q != "ESR")])
+        known = ", ".join([*UNITS, "SRF", *(q + " (with at)" for q in SPOT_UNITS if q != "ESR")])
         raise where_for()(f"unknown quantity {quantity!r}; limits can name {known}")
 
     k = default_k

@@ -1,0 +1,102 @@
+"""The one registry of equivalent-circuit parameters: names, units, families, bounds.
+
+Every place that needs to know what ``L`` or ``R_leak`` is (the circuits,
+the resolution limits, the planner, the limits file, the lot's summary
+columns) reads it here, so that a parameter is described once.
+
+All values are in SI units and positive: the refinement works in the
+logarithm of each element (see `zfit.fit._circuits`), so the domain of every
+parameter is ``(0, inf)``.  What differs is the side on which a sweep stops
+resolving it: a series element (``L``, ``R_s``, ``ESR`` ...) is lost when it
+is too small, a parallel loss (``R_p``, ``R_leak``) when it is too large,
+because its current vanishes as it grows.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from types import MappingProxyType
+
+__all__ = [
+    "Parameter",
+    "PARAMETERS",
+    "PARAMETER_KEYS",
+    "REQUIRED_KEYS",
+    "OPTIONAL_KEY",
+    "UNITS",
+    "RESOLUTION_KIND",
+    "FAMILY_OF",
+]
+
+
+@dataclass(frozen=True)
+class Parameter:
+    """One element of an equivalent circuit.
+
+    Attributes
+    ----------
+    key : str
+        Its name in results, limits files and JSON (``"R_s"``).
+    unit : str
+        SI unit (``"H"``, ``"F"``, ``"ohm"``).
+    family : {'inductor', 'capacitor'}
+        The kind of part whose circuit has it.
+    optional : bool
+        Whether the element is the family's optional one (part of the
+        circuit only when the data ask for it).
+    resolution_kind : {'lower', 'upper'}
+        ``"lower"``: a value below the resolution limit is not resolved;
+        ``"upper"``: a value above it (parallel losses).
+    description : str
+        What the element stands for, in words.
+    lower, upper : float
+        The domain of the value (open interval).
+    """
+
+    key: str
+    unit: str
+    family: str
+    optional: bool
+    resolution_kind: str
+    description: str
+    lower: float = 0.0
+    upper: float = float("inf")
+
+
+_ALL = (
+    Parameter("L", "H", "inductor", False, "lower", "inductance of the winding"),
+    Parameter("R_s", "ohm", "inductor", False, "lower", "series (winding) resistance"),
+    Parameter("C_p", "F", "inductor", False, "lower", "parallel (inter-winding) capacitance"),
+    Parameter("R_p", "ohm", "inductor", True, "upper", "parallel (core) loss resistance"),
+    Parameter("C", "F", "capacitor", False, "lower", "capacitance"),
+    Parameter("ESR", "ohm", "capacitor", False, "lower", "equivalent series resistance"),
+    Parameter("ESL", "H", "capacitor", False, "lower", "equivalent series inductance"),
+    Parameter("R_leak", "ohm", "capacitor", True, "upper", "leakage resistance across the capacitance"),
+)
+
+#: Every parameter by key, in the order of the JSON contract and the summary columns.
+PARAMETERS = MappingProxyType({p.key: p for p in _ALL})
+
+#: Parameter keys of each family, in the order of the contract (optional last).
+PARAMETER_KEYS = MappingProxyType({
+    fam: tuple(p.key for p in _ALL if p.family == fam) for fam in ("inductor", "capacitor")
+})
+
+#: The elements every circuit of a family has.
+REQUIRED_KEYS = MappingProxyType({
+    fam: tuple(k for k in keys if not PARAMETERS[k].optional) for fam, keys in PARAMETER_KEYS.items()
+})
+
+#: The optional element of each family.
+OPTIONAL_KEY = MappingProxyType({
+    fam: next(k for k in keys if PARAMETERS[k].optional) for fam, keys in PARAMETER_KEYS.items()
+})
+
+#: Unit of every parameter key.
+UNITS = MappingProxyType({p.key: p.unit for p in _ALL})
+
+#: Side of the resolution limit of every parameter key.
+RESOLUTION_KIND = MappingProxyType({p.key: p.resolution_kind for p in _ALL})
+
+#: Family of every parameter key.
+FAMILY_OF = MappingProxyType({p.key: p.family for p in _ALL})

@@ -1,0 +1,96 @@
+"""The work of one part: read its sweep, identify it, write its JSON (and plot).
+
+A pure function of its `PartTask`, so that it runs alike in this process, in
+a local worker process or on a Dask worker; it never raises: one bad part
+must not stop the lot, so an error becomes one line of its `PartOutcome`.
+"""
+
+from __future__ import annotations
+
+import time
+from pathlib import Path
+from typing import Sequence
+
+from .._errors import ZfitError, ZfitInputError
+from .._json import json_text
+from ._part_summary import part_summary
+from ._tasks import PartOutcome, PartTask
+from ._threads import blas_threads
+from ._warning_routing import collect_warnings
+
+__all__ = ["identify_part", "identify_chunk", "worker_init"]
+
+
+def _one_line(exc: BaseException, task: PartTask) -> str:
+    if isinstance(exc, ZfitInputError):
+        text = exc.one_line()
+    elif isinstance(exc, OSError):
+        text = f"{exc.filename or task.path}: {exc.strerror or exc}"
+    elif isinstance(exc, ZfitError):
+        text = str(exc)
+    else:
+        text = f"internal error: {type(exc).__name__}: {exc}"
+    text = " ".join(text.split())
+    return text.replace(task.path, task.name)
+
+
+def _read_sweep(task: PartTask):
+    from ..io._prepared import prepared_sweep
+
+    r = task.read
+    opt = lambda p: None if p is None else Path(p)  # noqa: E731
+    return prepared_sweep(
+        Path(task.path), connection=r.connection, noise_rel=r.noise_rel, noise_floor=r.noise_floor,
+        columns=r.columns, open_=opt(r.open_), short=opt(r.short), load=opt(r.load),
+        load_value=r.load_value, port_delay=r.port_delay, port_loss=r.port_loss,
+    )
+
+def identify_part(task: PartTask) -> PartOutcome:
+    """Return what identifying one part produced, having written its files.
+
+    Parameters
+    ----------
+    task : PartTask
+        The part.
+    """
+    from .._atomic import write_atomic
+    from ..identification._pipeline import identify
+
+    t0 = time.perf_counter()
+    summary = error = None
+    with collect_warnings() as caught:
+        try:
+            sweep = _read_sweep(task)
+            ident = identify(sweep, model=task.model, at=task.at)
+            write_atomic(task.json_path, json_text(ident.to_dict()), force=True)
+            if task.plot_path is not None:
+                from ..outputs._outputs import write_outputs
+
+                write_outputs(ident, plot=task.plot_path, force=True)
+            summary = part_summary(ident)
+        except Exception as exc:  # one bad part must not stop the lot
+            summary, error = None, _one_line(exc, task)
+    seen = []
+    for w in caught:
+        w = " ".join(w.replace(task.path, task.name).split())
+        # The summary row names the file already.
+        w = w[len(task.name) + 2:] if w.startswith(task.name + ": ") else w
+        if w not in seen:
+            seen.append(w)
+    return PartOutcome(task.index, task.name, summary, error, tuple(seen), False, time.perf_counter() - t0)
+
+
+def worker_init() -> None:
+    """Start a worker process: one BLAS thread (see `zfit.lot._threads`)."""
+    blas_threads(1)
+
+
+def identify_chunk(tasks: Sequence[PartTask]) -> list[PartOutcome]:
+    """Return the outcomes of a few parts, identified one after the other.
+
+    Parameters
+    ----------
+    tasks : sequence of PartTask
+        The parts.
+    """
+    return [identify_part(t) for t in tasks]
