@@ -698,7 +698,7 @@ def _step_plot_data(result) -> dict:
         "t_s": t, "channels": channels, "levels": levels, "edges_s": edges, "fitted": fitted, "window_s": window,
         "title": f"{Path(str(result.source)).name}: {result.edges} edges at {pretty(result.sample_rate_hz, 'Hz')} sampling",
         "source": result.source,
-        "identification": result.impedance,
+        "identification": result.identification,
         "f_hz": None,
     }
     if resp is not None and resp.f_hz.size:
