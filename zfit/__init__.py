@@ -90,8 +90,8 @@ _EXPORTS = {
     "plot_sweep": "outputs._plots",
     "plot_q": "outputs._plots",
     "plot_esr_d": "outputs._plots",
-    "plot_bode": "outputs._plots",
-    "plot_time_record": "outputs._plots",
+    "plot_bode": "outputs._plot_capture",
+    "plot_time_record": "outputs._plot_capture",
 }
 
 __all__ = ["__version__", *_EXPORTS]
