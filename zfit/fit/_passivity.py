@@ -17,10 +17,14 @@ from __future__ import annotations
 import dataclasses
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from ._basis import TWO_PI
+
+if TYPE_CHECKING:
+    from ._rational import RationalModel
 
 __all__ = ["PassivityViolation", "real_part_crossings_hz", "violations", "with_std", "re_at_dc", "negative_bands"]
 
@@ -63,7 +67,8 @@ class PassivityViolation:
         return bool(np.isfinite(self.worst_std) and -self.worst_value <= 2.0 * self.worst_std)
 
 
-def negative_bands(f, re, tol):
+def negative_bands(f, re, tol) -> list[PassivityViolation]:
+    """Return the runs of consecutive samples with ``re < -tol`` as real-part violations."""
     neg = re < -tol
     if not neg.any():
         return []
@@ -77,7 +82,7 @@ def negative_bands(f, re, tol):
     return out
 
 
-def real_part_crossings_hz(model) -> np.ndarray:
+def real_part_crossings_hz(model: RationalModel) -> np.ndarray:
     """Return the frequencies (Hz, sorted) where Re H(j omega) of `model` changes sign
     (see `RationalModel.real_part_crossings_hz`)."""
     if model.poles.size == 0:
@@ -104,13 +109,16 @@ def real_part_crossings_hz(model) -> np.ndarray:
     return np.sort(np.sqrt(y[ok].real) * w0 / TWO_PI)
 
 
-def re_at_dc(model) -> float:
+def re_at_dc(model: RationalModel) -> float:
+    """Return Re H(0) of `model` (the limit at DC of its pole and constant terms)."""
     if model.poles.size == 0:
         return float(model.constant)
     return float(model.constant + np.real(np.sum(-model.residues / model.poles)))
 
 
-def violations(model, f_hz, tol_ohm):
+def violations(model: RationalModel, f_hz, tol_ohm: float) -> list[PassivityViolation]:
+    """Return where `model` is not passive, without the uncertainties (see
+    `RationalModel.passivity_violations`)."""
     out = []
     if model.has_origin_pole and model.origin_residue < 0:
         out.append(PassivityViolation("origin residue", 0.0, 0.0, 0.0, float(model.origin_residue)))
@@ -154,7 +162,9 @@ def violations(model, f_hz, tol_ohm):
     return out
 
 
-def with_std(model, v):
+def with_std(model: RationalModel, v: PassivityViolation) -> PassivityViolation:
+    """Return `v` with the model's standard uncertainty of its worst value (unchanged
+    when the model carries no covariance)."""
     C = model.full_covariance
     if C.size == 0 or not np.all(np.isfinite(C)):
         return v

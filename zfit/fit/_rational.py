@@ -129,7 +129,7 @@ class RationalModel:
     has_proportional: bool = False
     has_origin_pole: bool = False
     coefficients: np.ndarray = field(default_factory=lambda: np.zeros(0), repr=False)
-    coefficient_names: tuple = ()
+    coefficient_names: tuple[str, ...] = ()
     covariance: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)), repr=False)
     full_covariance: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)), repr=False)
     rms_normalized_residual: float = float("nan")
@@ -140,9 +140,9 @@ class RationalModel:
     f_max_hz: float = float("nan")
     weighting: str = "sigma"
     absolute_sigma: bool = False
-    iterations: tuple = field(default=(), repr=False)
+    iterations: tuple[VFIteration, ...] = field(default=(), repr=False)
     converged: bool = True
-    pole_count_trials: tuple = ()
+    pole_count_trials: tuple[tuple[int, float], ...] = ()
     reference_omega: float = 1.0
     reweight_passes: int = 0
 
@@ -160,7 +160,7 @@ class RationalModel:
         return int(self.poles.size)
 
     @property
-    def full_parameter_names(self) -> tuple:
+    def full_parameter_names(self) -> tuple[str, ...]:
         """Names of the rows of `full_covariance`: `coefficient_names`, then
         ``pole[i]`` for each real pole and ``Re pole[i]``, ``Im pole[i]`` for
         each pair (i: the index in `poles` of its positive-imaginary member)."""
@@ -336,7 +336,7 @@ class RationalModel:
         """
         return real_part_crossings_hz(self)
 
-    def passivity_violations(self, f_hz=None, *, tol_ohm: float = 0.0) -> tuple:
+    def passivity_violations(self, f_hz=None, *, tol_ohm: float = 0.0) -> tuple[PassivityViolation, ...]:
         """Return where the model is not passive (empty tuple when it is).
 
         Passive means positive-real: Re H(j omega) >= 0 at every frequency,
