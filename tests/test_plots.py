@@ -8,17 +8,10 @@ import numpy as np
 import pytest
 
 from zfit._errors import OutputExistsError, ZfitInputError
-from zfit.outputs._plots import (
-    envelope,
-    eng_tick,
-    figure_bytes,
-    plot_bode,
-    plot_esr_d,
-    plot_q,
-    plot_sweep,
-    plot_time_record,
-    save_figure,
-)
+from zfit.outputs._plot_capture import plot_bode, plot_time_record
+from zfit.outputs._plot_files import figure_bytes, save_figure
+from zfit.outputs._plot_style import envelope, eng_tick
+from zfit.outputs._plots import plot_esr_d, plot_q, plot_sweep
 
 
 def _artist(fig, gid):
@@ -201,7 +194,7 @@ def test_svg_is_reproducible(inductor_sweep):
 
 
 def test_schematic_draws_every_element():
-    from zfit.outputs._plots import plot_schematic
+    from zfit.outputs._plot_schematic import plot_schematic
 
     tree = ("parallel", [("series", [("R", "R_s = 66 mΩ"), ("L", "L = 10 µH")]), ("C", "C_p = 4.7 pF"),
                          ("R", "R_p = 20 kΩ")])
@@ -218,7 +211,7 @@ def test_schematic_draws_every_element():
 def test_schematic_labels_of_a_series_chain_do_not_overlap():
     # At the report's width (1.95 in) the three labels of a capacitor's series
     # chain used to run into each other ("ESL = 900 pHC = 100 nF").
-    from zfit.outputs._plots import plot_schematic
+    from zfit.outputs._plot_schematic import plot_schematic
 
     tree = ("series", [("R", "ESR = 8.02 mΩ"), ("L", "ESL = 900 pH"), ("C", "C = 100 nF")])
     fig = plot_schematic(tree, width_in=1.95)

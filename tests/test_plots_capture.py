@@ -14,7 +14,7 @@ from zfit.outputs._outputs import step_figures, write_outputs
 @pytest.fixture(scope="module")
 def rc_result():
     from zfit.io._capture import make_capture
-    from zfit.capture._step import analyse_capture
+    from zfit.capture._analysis import analyse_capture
 
     # A square wave through a first-order low-pass, tau = 20 us (scipy.signal.lsim is
     # the reference response), sampled at 10 MHz and quantised.

@@ -24,10 +24,10 @@ from scipy import signal
 from ngspice import run_tran
 from zfit import MeasurementWarning, ZfitInputError
 from zfit.io._capture import make_capture
-from zfit.capture._step import (
-    analyse_capture, matrix_pencil, state_levels, stray_capacitance_from_inductance,
-    stray_capacitance_two_resonances,
-)
+from zfit.capture._analysis import analyse_capture
+from zfit.capture._levels import state_levels
+from zfit.capture._ringing import matrix_pencil
+from zfit.capture._stray import stray_capacitance_from_inductance, stray_capacitance_two_resonances
 
 
 def adc8(v, lo, hi, rng, noise_lsb=0.4):
@@ -240,8 +240,8 @@ def test_capacitor_with_sense_resistor_from_lsim(rng):
     cap = make_capture({"in": adc8(x, -0.5, 5.5, rng), "out": adc8(y, -5.5, 5.5, rng)}, 1 / fs)
     r = analyse_capture(cap, "in", "out", shunt_ohm=Rs)
     assert r.time_constant_s is None and any("does not settle" in n for n in r.notes)
-    p = r.impedance.parameters
-    assert r.impedance.model == "capacitor"
+    p = r.identification.parameters
+    assert r.identification.model == "capacitor"
     assert p["C"].value == pytest.approx(C, rel=0.01)
     assert p["ESL"].value == pytest.approx(esl, rel=0.05)
     assert p["ESR"].value == pytest.approx(esr, rel=0.15)
@@ -290,7 +290,7 @@ def test_single_step_with_sense_resistor_has_honest_bins():
     ne = np.abs(resp.h[m] - h_true) / resp.h_std[m]
     assert 0.5 < math.sqrt(np.mean(ne**2)) < 2.0
     assert 0.5 < math.sqrt(np.mean(ne[:20] ** 2)) < 2.0
-    ident = r.impedance
+    ident = r.identification
     assert ident.topology.startswith("series R_s-L with parallel C_p")
     # The element values of the lsim reference: L within 3 %, C_p within 8 % (issue 4).
     assert ident.parameters["L"].value == pytest.approx(L, rel=0.03)
@@ -420,7 +420,7 @@ def test_ngspice_coil_with_sense_resistor(coil_capture):
     poles = np.roots([Rs * L * Cp, L + Rs * Rw * Cp, Rs + Rw])
     tau_dom = float(np.max(-1 / poles.real))
     assert r.time_constant_s == pytest.approx(tau_dom, rel=0.03)
-    ident = r.impedance
+    ident = r.identification
     assert ident.topology.startswith("series R_s-L with parallel C_p")
     assert ident.parameters["L"].value == pytest.approx(L, rel=0.03)
     assert ident.parameters["C_p"].value == pytest.approx(Cp, rel=0.08)
@@ -460,7 +460,7 @@ def test_sweep_and_capture_paths_agree(coil_capture, rng):
         warnings.simplefilter("ignore", MeasurementWarning)
         a = identify(make_sweep(f, zn, sig, source="ngspice ac"), model="inductor")
     for key in ("L", "C_p"):
-        e1, e2 = a.parameters[key], r.impedance.parameters[key]
+        e1, e2 = a.parameters[key], r.identification.parameters[key]
         # Agreement within the combined standard uncertainties (k = 3).
         assert abs(e1.value - e2.value) < 3 * math.hypot(e1.std, e2.std), key
 
@@ -473,7 +473,7 @@ def test_disagreeing_time_constants_are_warned_in_engineering_notation():
 
     from zfit import MeasurementWarning
     from zfit.io._capture import make_capture
-    from zfit.capture._step import analyse_capture
+    from zfit.capture._analysis import analyse_capture
 
     dt, n, tau = 1e-8, 20000, 2e-6
     t = np.arange(n) * dt

@@ -168,14 +168,14 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
             ident = result
         else:
             from ..io._capture import read_capture
-            from ..capture._step import analyse_capture
+            from ..capture._analysis import analyse_capture
             from .._units import parse_quantity
 
             opts = dict(zip(part.args[::2], part.args[1::2]))
             cap = read_capture(path)
             result = analyse_capture(cap, input=opts["--input"], output=opts["--output"],
                                      shunt_ohm=parse_quantity(opts["--shunt"], "--shunt"))
-            ident = result.impedance
+            ident = result.identification
     notes += [str(w.message) for w in caught]
 
     out = {"--json": f"{part.stem}.json", "--plot": f"{part.stem}.png", "--report": f"{part.stem}.html"}
@@ -351,7 +351,7 @@ def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
     # Import the heavy parts once, before the fork, so the workers start warm.
     import matplotlib  # noqa: F401
 
-    from ..capture import _step  # noqa: F401
+    from ..capture import _analysis  # noqa: F401
     from ..identification import _pipeline  # noqa: F401
     from ..outputs import _plots  # noqa: F401
 

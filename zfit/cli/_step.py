@@ -55,7 +55,7 @@ def step_command(
     from .._atomic import write_atomic
     from ..io._capture import read_capture
     from .._errors import ZfitInputError
-    from ..capture._step import analyse_capture
+    from ..capture._analysis import analyse_capture
 
     shunt_ohm = quantity(shunt, "--shunt")
     inductance_h = quantity(inductance, "--inductance")
@@ -181,11 +181,11 @@ def summary_lines(result) -> list[str]:
     resp = result.response
     out.append(f"usable band:  {format_eng(lo, 'Hz')} to {format_eng(hi, 'Hz')}  "
                f"({resp.n_averages} segment(s) averaged, bins of {format_eng(1.0 / resp.segment_s, 'Hz')})")
-    if result.impedance is not None:
+    if result.identification is not None:
         from ._identify import summary_lines as identify_lines
 
         out.append(f"impedance with the {format_eng(result.shunt_ohm, 'ohm')} sense resistor:")
-        out.extend("  " + line for line in identify_lines(result.impedance))
+        out.extend("  " + line for line in identify_lines(result.identification))
     # The notes say why a figure is n/a (no settled states, no slow edge to fit).
     out.extend(f"note:         {n}" for n in result.notes)
     return out

@@ -180,6 +180,33 @@ def dz_ds(s, connection: str, z0: float = 50.0) -> np.ndarray:
         return -2 * z0 / s**2
 
 
+def ds_dz(z, connection: str, z0: float = 50.0) -> np.ndarray:
+    """Return the complex derivative dS/dZ of `s_from_impedance`.
+
+    How a model's impedance moves the S-parameter it predicts; used to fit
+    on S (`zfit.fit._lsq.Observation`).
+
+    Parameters
+    ----------
+    z : array_like of complex
+        The part's impedance in ohm.
+    connection : {'reflection', 'shunt-thru', 'series-thru'}
+        How the part is connected.
+    z0 : float
+        Reference impedance of the ports in ohm.
+    """
+    _check(connection)
+    z = np.asarray(z, dtype=complex)
+    if connection == "reflection":
+        d = z + z0
+        return 2 * z0 / (d * d)
+    if connection == "shunt-thru":
+        d = 2 * z + z0
+        return 2 * z0 / (d * d)
+    d = 2 * z0 + z
+    return -2 * z0 / (d * d)
+
+
 def sigma_z_from_s(s, connection: str, z0: float = 50.0, noise: InstrumentNoise = InstrumentNoise()) -> np.ndarray:
     """Return the standard uncertainty of Z (ohm) implied by noise on S.
 

@@ -1,1 +1,33 @@
-"""fit."""
+"""Fitting: numbers from arrays, no files and no text.
+
+What enters: frequencies (Hz), a complex impedance (ohm) and its
+complex-circular standard uncertainty, as arrays, or an `Observation` of a
+`Sweep` (on S when the sweep came from an analyser connection).  What
+leaves: frozen records -- a `RationalModel` (poles, residues, covariance,
+passivity), an equivalent `Circuit` with its log-parameter estimate and
+covariance (`Refinement`), and the resolution limits of a sweep.
+
+Rational models (relaxed vector fitting)
+    _vectfit       `vector_fit`, `fit_impedance` (options per kind of part),
+                   `sigma_update_for` (sigma re-evaluated at the model)
+    _rational      `RationalModel` (evaluation, uncertainty with the poles)
+                   and `VFIteration` (one pole relocation)
+    _passivity     `PassivityViolation`: where Re H < 0 or s, 1/s terms are negative
+    _pole_count    the pole count: given, from starting poles, or automatic
+    _relocation    the relaxed pole relocation for a given count
+    _residues      residues with the poles fixed, and the covariance
+    _poles         starting poles, pole sets split into real poles and pairs
+    _basis         the real-arithmetic basis of a pole-residue model
+    _qr            QR factors and inverse Gram matrices of the least squares
+Equivalent circuits
+    _circuits      the circuits of inductors and capacitors (impedance,
+                   derivatives, SRF, initial guesses)
+    _parameters    the parameter registry: names, units, bounds
+    _lsq           weighted nonlinear least squares with covariance (`refine`)
+    _fisher        resolution limits from the Fisher information, the
+                   shunt-thru ground-loop warning
+
+The S<->Z conversions and their derivatives are not here but in
+`zfit.data._connection`; the choice between circuits is identification's
+(`zfit.identification`).
+"""

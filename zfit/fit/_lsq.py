@@ -32,8 +32,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._circuits import Circuit
 from .._errors import FitError
+from ..data._connection import NA_CONNECTIONS, ds_dz, impedance_from_s, s_from_impedance
+from ._circuits import Circuit
 
 __all__ = ["Observation", "Prior", "best_start_chi2", "Refinement", "refine", "log_gradient", "optional_element_gain"]
 
@@ -90,8 +91,6 @@ class Observation:
         mask : array_like of bool, optional
             The points to use (all by default).
         """
-        from ..data._connection import NA_CONNECTIONS, impedance_from_s
-
         sel = slice(None) if mask is None else np.asarray(mask, bool)
         f, z, sig = sweep.f_hz[sel], sweep.z_ohm[sel], sweep.sigma_ohm[sel]
         s = sweep.s_param
@@ -125,15 +124,9 @@ class Observation:
         return Observation(self.f_hz[m], self.z_ohm[m], self.sigma_ohm[m], self.connection, self.z0, pick(self.s), pick(self.sigma_s))
 
     def _s_and_slope(self, z_model):
-        z0, zm = self.z0, z_model
-        if self.connection == "reflection":
-            d = zm + z0
-            return (zm - z0) / d, 2.0 * z0 / (d * d)
-        if self.connection == "shunt-thru":
-            d = 2.0 * zm + z0
-            return 2.0 * zm / d, 2.0 * z0 / (d * d)
-        d = 2.0 * z0 + zm
-        return 2.0 * z0 / d, -2.0 * z0 / (d * d)
+        """The S the model predicts and dS/dZ there."""
+        return (s_from_impedance(z_model, self.connection, self.z0),
+                ds_dz(z_model, self.connection, self.z0))
 
     def normalized(self, z_model) -> np.ndarray:
         """Return the complex normalised residual of a model impedance.

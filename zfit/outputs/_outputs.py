@@ -346,7 +346,8 @@ def _command_text(command) -> str:
 
 
 def _svg(fig, salt: str, label: str) -> str:
-    from ._plots import _pyplot, figure_bytes
+    from ._plot_files import figure_bytes
+    from ._plot_style import pyplot as _pyplot
     from ._report import inline_svg
 
     try:
@@ -545,7 +546,7 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
     tree = schematic_tree(result)
     schematic = ()
     if tree is not None:
-        from ._plots import plot_schematic
+        from ._plot_schematic import plot_schematic
 
         # Drawn at the size it is shown (55 % of a column), so its labels print at the page's size.
         schematic = (FigureBlock(_svg(plot_schematic(tree, width_in=1.95), "schematic", "the circuit"),
@@ -698,7 +699,7 @@ def _step_plot_data(result) -> dict:
         "t_s": t, "channels": channels, "levels": levels, "edges_s": edges, "fitted": fitted, "window_s": window,
         "title": f"{Path(str(result.source)).name}: {result.edges} edges at {pretty(result.sample_rate_hz, 'Hz')} sampling",
         "source": result.source,
-        "identification": result.impedance,
+        "identification": result.identification,
         "f_hz": None,
     }
     if resp is not None and resp.f_hz.size:
@@ -776,7 +777,7 @@ def step_figures(result, titles: bool = True, impedance: bool = True, sizes: dic
         ``"bode"`` (H with the usable band and coherence); ``"sweep"`` and
         ``"q"``/``"esr_d"`` as for a sweep when the impedance was identified.
     """
-    from ._plots import plot_bode, plot_time_record
+    from ._plot_capture import plot_bode, plot_time_record
 
     d = _step_plot_data(result)
     sizes = sizes or {}
@@ -972,7 +973,8 @@ def write_outputs(
             netlist_text = identification_netlist(ident, netlist_kind)
             out.append((path, netlist_text))
         elif kind == "plot":
-            from ._plots import figure_bytes, _pyplot
+            from ._plot_files import figure_bytes
+            from ._plot_style import pyplot as _pyplot
 
             figs = step_figures(result) if step else identification_figures(ident)
             fmt = path.suffix.lower().lstrip(".")
