@@ -171,7 +171,7 @@ def summary_lines(result) -> list[str]:
             out.append(f"SRF:        above {format_eng(srf.bound_hz, 'Hz')} (top of the band); the {srf.source} puts it at {val}")
         else:
             out.append(f"SRF:        below {format_eng(srf.bound_hz, 'Hz')} (bottom of the band); the {srf.source} puts it at {val}")
-    fig = result.merit
+    fig = result.figures
     if fig.z_at_srf is not None:
         out.append(f"|Z| at SRF: {format_value_std(fig.z_at_srf.value, fig.z_at_srf.std, 'ohm')}")
     if fig.q_peak is not None:

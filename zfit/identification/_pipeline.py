@@ -164,7 +164,7 @@ def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, r
     return Identification(
         sweep=sweep, model="rational", topology=f"rational model with {n_poles_of(rational)} poles",
         parameters=ParameterMap(), rational=rational, srf=srf, fit=fit, spot=read.spot,
-        merit=read.merit, curves=read.curves, rdc=None,
+        figures=read.merit, curves=read.curves, rdc=None,
     )
 
 
@@ -309,7 +309,7 @@ def identify(
     )
     result = Identification(
         sweep=sweep, model=picked.family, topology=chosen.circuit.topology, parameters=est, rational=rational,
-        srf=srf, fit=fit, spot=read.spot, merit=read.merit, curves=read.curves, candidates=candidates,
+        srf=srf, fit=fit, spot=read.spot, figures=read.merit, curves=read.curves, candidates=candidates,
         correlation=correlation_of(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
         refinement=chosen,
     )

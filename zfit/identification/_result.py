@@ -191,9 +191,8 @@ class Identification:
         Readouts at the frequencies asked for.
     warnings : tuple of str
         What the user should know about this result.
-    merit : Merits
-        The figures of merit: Q peak, ESR, D, |Z| at resonance (the JSON
-        key ``figures``).
+    figures : Merits
+        The figures of merit: Q peak, ESR, D, |Z| at resonance.
     curves : Curves or None
         Q(f), ESR(f), D(f) on a log grid over the band, measured and model.
     candidates : tuple of Candidate
@@ -215,7 +214,7 @@ class Identification:
     fit: FitQuality
     spot: tuple[SpotReadout, ...] = ()
     warnings: tuple[str, ...] = ()
-    merit: Merits = Merits()
+    figures: Merits = Merits()
     curves: Curves | None = None
     candidates: tuple[Candidate, ...] = ()
     correlation: np.ndarray | None = None
@@ -285,7 +284,7 @@ class Identification:
             "parameters": {k: v.to_dict() for k, v in self.parameters.items()},
             "correlation": corr,
             "srf": self.srf.to_dict(),
-            "figures": self.merit.to_dict(),
+            "figures": self.figures.to_dict(),
             "curves": None if self.curves is None else self.curves.to_dict(),
             "fit": self.fit.to_dict(),
             "candidates": [c.to_dict() for c in self.candidates],

@@ -175,7 +175,7 @@ def identification_figures(result, titles: bool = True) -> dict:
             qc = np.abs(circuit.imag) / circuit.real if circuit is not None else None
             qt = result.q_model(f) if result.model == "inductor" else None
             peak = None
-            qp = result.merit.q_peak if result.merit is not None else None
+            qp = result.figures.q_peak if result.figures is not None else None
             if qp is not None and qp.f_hz is not None and qp.value is not None:
                 peak = (float(qp.f_hz), float(qp.value))
             figs["q"] = plot_q(f, q, q_std=q_std, q_rational=qr, q_circuit=qc, q_textbook=qt, peak=peak, f_max_hz=srf,
@@ -361,7 +361,7 @@ def _resize(fig, w, h):
 
 
 def _figure_rows(result) -> list:
-    fg = result.merit
+    fg = result.figures
     rows = []
     srf = result.srf
     if srf is not None:
