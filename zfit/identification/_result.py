@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass
+from functools import cached_property
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -21,6 +22,7 @@ if TYPE_CHECKING:
     from ..data._sweep import Sweep
     from ..fit._circuits import Circuit
     from ..fit._lsq import Refinement
+    from ..fit._realisation import Realisation
     from ..fit._vectfit import RationalModel
 
 __all__ = ["Identification", "FitQuality", "Candidate", "ParameterMap", "SCHEMA"]
@@ -231,6 +233,25 @@ class Identification:
     def circuit(self) -> Circuit | None:
         """The fitted `Circuit`, or None for the rational model."""
         return None if self.refinement is None else self.refinement.circuit
+
+    @cached_property
+    def realisation(self) -> Realisation:
+        """The rational model realised as a passive R-L-C network (computed once, on first use).
+
+        Raises
+        ------
+        ZfitInputError
+            When there is no rational model.
+        SynthesisError
+            When it cannot be realised with non-negative elements
+            (`zfit.fit._realisation.passive_realisation`).
+        """
+        from .._errors import ZfitInputError
+        from ..fit._realisation import passive_realisation
+
+        if self.rational is None:
+            raise ZfitInputError("there is no rational model to realise as a network")
+        return passive_realisation(self.rational, self.sweep)
 
     def impedance(self, f_hz) -> np.ndarray:
         """Return the reported model's impedance (ohm) at `f_hz`.
