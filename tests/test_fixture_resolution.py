@@ -19,10 +19,11 @@ from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impe
 from zfit._errors import MeasurementWarning
 from zfit.identification._pipeline import identify
 from zfit.fit._fisher import (
-    fisher_uncertainties, ground_loop_warning, is_resolved, limits_for, resolution_entries, resolution_limits,
+    fisher_uncertainties, is_resolved, limits_for, resolution_entries, resolution_limits,
     unresolved_text,
 )
 from zfit.data._sweep import Sweep
+from zfit.identification._diagnostics import ground_loop_warning
 
 NOISE = InstrumentNoise(1e-3, 1e-5)
 CAP = {"C": 100e-9, "ESR": 5e-3, "ESL": 0.5e-9}

@@ -66,7 +66,7 @@ def test_milliohm_esr_is_below_the_resolution_of_reflection_and_the_limit_is_the
     assert d["parameters"]["ESR"]["resolution_limit"] == pytest.approx(ref, rel=0.02)
     assert d["parameters"]["C"]["resolved"] is True and d["parameters"]["ESL"]["resolved"] is True
     # The table prints the limit, not the number that is only noise.
-    from zfit.cli._identify import summary_lines
+    from zfit.outputs._views import identification_summary as summary_lines
 
     line = next(ln for ln in summary_lines(r) if ln.strip().startswith("ESR"))
     assert "below resolution, < " in line and "±" not in line

@@ -9,13 +9,11 @@ import pytest
 import scipy.signal
 
 from ngspice import run_ac
+from zfit.fit._realisation import SynthesisError, foster_branches, rational_elements
+from zfit.fit._realisation import network_impedance as netlist_impedance
 from zfit.outputs._netlist import (
-    SynthesisError,
     circuit_elements,
     circuit_netlist,
-    foster_branches,
-    netlist_impedance,
-    rational_elements,
     rational_netlist,
     spice_value,
     subckt_name,

@@ -8,7 +8,7 @@ import pytest
 
 from ngspice import run_ac
 from zfit.outputs._netlist import rational_netlist
-from zfit.outputs._outputs import identification_netlist
+from zfit.outputs._netlist import identification_netlist
 
 
 def _ngspice(text, f0, f1, ppd=20):
@@ -100,7 +100,7 @@ def test_every_netlist_of_the_demo_sweeps_in_ngspice(name, connection):
 
     import zfit
     from zfit._errors import MeasurementWarning
-    from zfit.outputs._netlist import SynthesisError
+    from zfit.fit._realisation import SynthesisError
 
     if not (DEMO / name).is_file():
         pytest.skip("demo_sweeps/ not present")

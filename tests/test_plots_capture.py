@@ -8,7 +8,8 @@ import numpy as np
 import pytest
 import scipy.signal
 
-from zfit.outputs._outputs import step_figures, write_outputs
+from zfit.outputs._outputs import write_outputs
+from zfit.outputs._result_plots import step_plots as step_figures
 
 
 @pytest.fixture(scope="module")

@@ -13,7 +13,9 @@ import numpy as np
 import pytest
 
 from zfit._errors import OutputExistsError, ZfitInputError
-from zfit.outputs._outputs import identification_report, pretty, pretty_std, write_outputs
+from zfit.outputs._outputs import write_outputs
+from zfit.outputs._pages import identification_report
+from zfit.outputs._views import pretty, pretty_std
 from zfit.outputs._report import report_html
 
 
@@ -204,7 +206,7 @@ def test_small_dimensionless_values_share_one_power_of_ten():
     # gives the uncertainty two digits and the value the same decimal place.
     from types import SimpleNamespace
 
-    from zfit.outputs._outputs import _dimensionless, _percent_std
+    from zfit.outputs._views import dimensionless as _dimensionless, percent_std as _percent_std
 
     assert _dimensionless(SimpleNamespace(value=5.037e-05, std=1.5e-07)) == "(50.37 ± 0.15)e-6"
     assert _dimensionless(SimpleNamespace(value=123456.0, std=789.0)) == "(123.46 ± 0.79)e3"

@@ -149,7 +149,7 @@ def test_outputs_are_checked_before_anything_is_written(tmp_path):
 
 
 def test_summary_says_why_a_figure_is_missing_and_rounds_percent_as_gum():
-    from zfit.cli._step import _percent
+    from zfit.outputs._views import percent_std as _percent
 
     # GUM (JCGM 100:2008, 7.2.6): two digits of the uncertainty, the value to the same place.
     assert _percent(8.198770868, 0.0826699) == "8.199 ± 0.083 %"

@@ -16,7 +16,7 @@ from ._stray import StrayCapacitance
 
 if TYPE_CHECKING:
     from ..data._sweep import Sweep
-    from ..identification._pipeline import Identification
+    from ..identification._result import Identification
     from ..io._capture import Capture
 
 __all__ = ["STEP_SCHEMA", "EdgeWaveform", "StepResult"]

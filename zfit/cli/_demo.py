@@ -149,7 +149,7 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
     import warnings
 
     from .._errors import MeasurementWarning
-    from ..outputs._netlist import SynthesisError
+    from ..fit._realisation import SynthesisError
     from ..outputs._outputs import write_outputs
 
     path = sweeps / part.file
@@ -210,7 +210,7 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
         if lo > f0 * (1 + 1e-9) or hi < f1 * (1 - 1e-9):
             # The circuit holds over part of the band only: the full band's
             # rational model as a passive network too.
-            from ..outputs._outputs import identification_netlist
+            from ..outputs._netlist import identification_netlist
 
             try:
                 text = identification_netlist(ident, "rational", name=f"{Path(part.file).stem}_full_band")
@@ -222,7 +222,7 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
 
 def _index_html(rows, generated: str) -> str:
     """The demo folder's index page: one line per part, linking its report."""
-    from ..outputs._report import _CSS  # the reports' own style, so the folder reads as one
+    from ..outputs._report import PAGE_CSS  # the reports' own style, so the folder reads as one
 
     esc = html.escape
     body = []
@@ -233,7 +233,7 @@ def _index_html(rows, generated: str) -> str:
         )
     return (
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n<title>zfit demo</title>\n"
-        f"<style>{_CSS}</style>\n</head>\n<body>\n<header><h1>zfit demo: four parts from an invented bench</h1>"
+        f"<style>{PAGE_CSS}</style>\n</head>\n<body>\n<header><h1>zfit demo: four parts from an invented bench</h1>"
         f'<div class="sub">Generated {esc(generated)}; every file and part is invented (see demo_sweeps/README.md).</div>'
         "</header>\n<main>\n<section class=\"full\"><h2>Parts</h2><table><thead><tr><th>part</th><th>result</th>"
         "<th>what to look at</th></tr></thead><tbody>" + "".join(body) + "</tbody></table>"
@@ -245,7 +245,7 @@ def _index_html(rows, generated: str) -> str:
 
 
 def _headline(part, result, ident) -> str:
-    from ..outputs._outputs import pretty_std
+    from ..outputs._views import pretty_std
 
     if ident is None:
         return ""
@@ -325,14 +325,13 @@ def demo_command(
 
 def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
     """Run one part and return what the command prints about it (picklable)."""
-    from ._identify import summary_lines as identify_lines
-    from ._step import summary_lines as step_lines
+    from ..outputs._views import identification_summary, step_summary
 
     result, ident, written, notes, cmd = _run_part(part, sweeps, folder, force)
     own = tuple(ident.warnings) if ident is not None else ()
     return {
         "command": cmd,
-        "lines": identify_lines(result) if part.kind == "sweep" else step_lines(result),
+        "lines": identification_summary(result) if part.kind == "sweep" else step_summary(result),
         "warnings": list(own) + [t for t in notes if not any(t.endswith(o) for o in own)],
         "written": [p.name for p in written],
         "headline": _headline(part, result, ident),

@@ -78,6 +78,7 @@ def identify_command(
     from .._errors import MeasurementWarning, ZfitInputError
     from ..identification._pipeline import identify
     from ..outputs._outputs import check_output_suffix
+    from ..outputs._views import identification_summary
 
     # Refuse before any work if an output exists or cannot be written there
     # (nothing is overwritten without --force).
@@ -111,7 +112,7 @@ def identify_command(
 
     to_stdout = json_path is not None and str(json_path) == "-"
     if not to_stdout:  # with --json - the standard output is the JSON alone
-        for line in summary_lines(result):
+        for line in identification_summary(result):
             echo(line)
     for text in result.warnings:
         warn_line(text)
@@ -128,90 +129,3 @@ def identify_command(
         )
         for path in written:
             typer.echo(f"wrote {path}", err=to_stdout)
-
-
-def summary_lines(result) -> list[str]:
-    """Return the readable table of an identification, line by line.
-
-    Parameters
-    ----------
-    result : Identification
-        What `zfit.identify` returned.
-    """
-    from .._units import format_eng, format_value_std
-
-    fit = result.fit
-    out = [
-        f"part:       {result.sweep.source}  ({result.sweep.connection}, {result.sweep.n_points} points, "
-        f"{format_eng(fit.f_min_hz, 'Hz')} to {format_eng(fit.f_max_hz, 'Hz')})",
-        f"model:      {result.model}: {result.topology}",
-    ]
-    if len(result.parameters):
-        out.append("parameters (value ± standard uncertainty):")
-        for key, est in result.parameters.items():
-            text = est.unresolved_text() if hasattr(est, "unresolved_text") else None
-            if text is not None:
-                # A number that is only noise is not printed.
-                out.append(f"  {key:<7}{text}")
-                continue
-            rel = ""
-            if est.std is not None and est.value:
-                rel = f"  ({100 * est.std / abs(est.value):.2g} %)"
-            out.append(f"  {key:<7}{format_value_std(est.value, est.std, est.unit)}{rel}")
-    if result.rdc is not None:
-        out.append(f"  (DC resistance given: {format_value_std(result.rdc.value, result.rdc.std, 'ohm')})")
-    srf = result.srf
-    if srf.where == "none":
-        out.append("SRF:        none (the reactance does not cross zero)")
-    else:
-        val = format_value_std(srf.value_hz, srf.std_hz, "Hz")
-        if srf.where == "in-band":
-            out.append(f"SRF:        {val}  (in band)")
-        elif srf.where == "above-band":
-            out.append(f"SRF:        above {format_eng(srf.bound_hz, 'Hz')} (top of the band); the {srf.source} puts it at {val}")
-        else:
-            out.append(f"SRF:        below {format_eng(srf.bound_hz, 'Hz')} (bottom of the band); the {srf.source} puts it at {val}")
-    fig = result.figures
-    if fig.z_at_srf is not None:
-        out.append(f"|Z| at SRF: {format_value_std(fig.z_at_srf.value, fig.z_at_srf.std, 'ohm')}")
-    if fig.q_peak is not None:
-        out.append(
-            f"Q peak:     {format_value_std(fig.q_peak.value, fig.q_peak.std)} at {format_eng(fig.q_peak.f_hz, 'Hz')}"
-            f"  [{fig.q_peak.definition}]"
-        )
-        if fig.q_model_at_q_peak is not None:
-            q = fig.q_model_at_q_peak
-            out.append(f"            {format_value_std(q.value, q.std)} there  [{q.definition}]")
-    if fig.esr_min is not None:
-        out.append(f"ESR min:    {format_value_std(fig.esr_min.value, fig.esr_min.std, 'ohm')} at {format_eng(fig.esr_min.f_hz, 'Hz')}")
-    if fig.d_at_f_min is not None:
-        d = fig.d_at_f_min
-        out.append(f"D:          {format_value_std(d.value, d.std)} at {format_eng(d.f_hz, 'Hz')}  [{d.definition}]")
-        if fig.d_model_at_f_min is not None:
-            dm = fig.d_model_at_f_min
-            out.append(f"            {format_value_std(dm.value, dm.std)} there  [{dm.definition}]")
-    band = fit.valid_band_hz
-    whole = band[0] == fit.f_min_hz and band[1] == fit.f_max_hz
-    out.append(
-        f"fit:        normalised RMS residual {fit.rms_normalized_residual:.3g} over {fit.points} points "
-        f"(1 = noise level; residuals on {fit.domain})"
-    )
-    if fit.rational_rms_normalized_residual is not None:
-        out.append(f"            rational model: {fit.rational_poles} poles, residual {fit.rational_rms_normalized_residual:.3g}")
-    if result.model != "rational":
-        if whole:
-            out.append("            the circuit holds over the whole band")
-        else:
-            out.append(f"            valid band {format_eng(band[0], 'Hz')} to {format_eng(band[1], 'Hz')}")
-    if result.spot:
-        out.append("spot readouts (from the " + ", ".join(sorted({s.source for s in result.spot})) + " model):")
-        out.append(f"  {'f':>10}  {'R':>22}  {'X':>22}  {'L_eff / C_eff':>24}  {'Q':>16}  {'D':>16}")
-        for sp in result.spot:
-            eff = sp.L_eff if sp.X.value >= 0 else sp.C_eff
-            out.append(
-                f"  {format_eng(sp.f_hz, 'Hz'):>10}  {format_value_std(sp.R.value, sp.R.std, 'ohm'):>22}  "
-                f"{format_value_std(sp.X.value, sp.X.std, 'ohm'):>22}  {format_value_std(eff.value, eff.std, eff.unit):>24}  "
-                f"{format_value_std(sp.Q.value, sp.Q.std):>16}  {format_value_std(sp.D.value, sp.D.std):>16}"
-                + ("" if sp.in_band else "  (outside the band)")
-            )
-    return out

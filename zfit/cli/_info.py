@@ -12,83 +12,6 @@ from ._common import (
     PortLossOpt, ShortOpt, app, echo, emit_json, guarded, sweep_from_options,
 )
 
-#: Version tag of the ``--json`` output.
-INFO_SCHEMA = "zfit.info/1"
-
-
-def info_dict(sweep) -> dict:
-    """Return the ``zfit.info/1`` JSON object describing `sweep`.
-
-    Keys: ``schema``, ``source``, ``data_format``, ``connection``,
-    ``reference_ohm`` (null for impedance data), ``points``, ``f_min_hz``,
-    ``f_max_hz``, ``z_min_ohm``, ``z_min_at_hz``, ``z_max_ohm``,
-    ``z_max_at_hz``, ``noise_model`` (text), ``noise`` (``{"on": "S"|"Z",
-    "rel": float, "floor": float}`` or null), ``sigma_rel_median``,
-    ``sigma_rel_max``, ``notes`` (list of str), ``warnings`` (list of str).
-
-    Parameters
-    ----------
-    sweep : Sweep
-        What `zfit.read_sweep` returned.
-    """
-    import numpy as np
-
-    from ..io._sweep_file import conditioning_note
-
-    mag = np.abs(sweep.z_ohm)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        rel = sweep.sigma_ohm / mag
-    i_min, i_max = int(np.argmin(mag)), int(np.argmax(mag))
-    warning = conditioning_note(sweep)
-    noise = None
-    if sweep.noise is not None:
-        noise = {"on": "S" if sweep.s_param is not None else "Z", "rel": sweep.noise.rel, "floor": sweep.noise.floor}
-    return {
-        "schema": INFO_SCHEMA,
-        "source": sweep.source,
-        "data_format": sweep.data_format,
-        "connection": sweep.connection,
-        "reference_ohm": sweep.reference_ohm,
-        "points": sweep.n_points,
-        "f_min_hz": sweep.band_hz[0],
-        "f_max_hz": sweep.band_hz[1],
-        "z_min_ohm": float(mag[i_min]),
-        "z_min_at_hz": float(sweep.f_hz[i_min]),
-        "z_max_ohm": float(mag[i_max]),
-        "z_max_at_hz": float(sweep.f_hz[i_max]),
-        "noise_model": sweep.noise_model,
-        "noise": noise,
-        "sigma_rel_median": float(np.median(rel)),
-        "sigma_rel_max": float(np.max(rel)),
-        "sigma_rel_max_at_hz": float(sweep.f_hz[int(np.argmax(rel))]),
-        "notes": list(sweep.notes),
-        "warnings": [] if warning is None else [warning],
-    }
-
-
-def info_lines(d: dict) -> list[str]:
-    """Return the human-readable lines of ``zfit info`` for an `info_dict`."""
-    from .._units import format_eng
-
-    ref = "n/a (impedance data)" if d["reference_ohm"] is None else format_eng(d["reference_ohm"], "ohm")
-    rows = [
-        ("file", d["source"]),
-        ("format", d["data_format"]),
-        ("connection", d["connection"]),
-        ("reference", ref),
-        ("points", str(d["points"])),
-        ("band", f"{format_eng(d['f_min_hz'], 'Hz')} .. {format_eng(d['f_max_hz'], 'Hz')}"),
-        ("|Z| range", f"{format_eng(d['z_min_ohm'], 'ohm')} at {format_eng(d['z_min_at_hz'], 'Hz')}"
-                      f" .. {format_eng(d['z_max_ohm'], 'ohm')} at {format_eng(d['z_max_at_hz'], 'Hz')}"),
-        ("noise model", d["noise_model"]),
-        ("sigma/|Z|", f"median {100 * d['sigma_rel_median']:.3g} %, worst {100 * d['sigma_rel_max']:.3g} % "
-                      f"at {format_eng(d['sigma_rel_max_at_hz'], 'Hz')}"),
-    ]
-    rows += [("note", n) for n in d["notes"]]
-    width = max(len(k) for k, _ in rows)
-    return [f"{k:<{width}}  {v}" for k, v in rows]
-
-
 @app.command("info")
 @guarded
 def info_command(
@@ -115,6 +38,7 @@ def info_command(
     import warnings
 
     from .._errors import MeasurementWarning
+    from ..outputs._views import info_dict, info_lines
 
     s = sweep_from_options(
         sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay, port_loss

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 from typing import Optional
 
@@ -56,6 +55,7 @@ def step_command(
     from ..io._capture import read_capture
     from .._errors import ZfitInputError
     from ..capture._analysis import analyse_capture
+    from ..outputs._views import response_csv, step_summary
 
     shunt_ohm = quantity(shunt, "--shunt")
     inductance_h = quantity(inductance, "--inductance")
@@ -90,7 +90,7 @@ def step_command(
         typer.echo(text, err=to_stdout)
 
     if not to_stdout:
-        for line in summary_lines(result):
+        for line in step_summary(result):
             echo(line)
     if plot is not None or netlist is not None or report is not None:
         from ..outputs._outputs import write_outputs
@@ -104,98 +104,3 @@ def step_command(
     if response is not None:
         write_atomic(response, response_csv(result), force)
         say(f"wrote {response}")
-
-def response_csv(result) -> str:
-    """Return the frequency response of a step result as CSV text.
-
-    Columns: ``f_hz``, ``mag_db``, ``phase_deg``, ``mag_db_std``,
-    ``phase_std_deg`` (standard uncertainties), ``coherence`` and ``usable``
-    (1 inside the usable band).
-
-    Parameters
-    ----------
-    result : StepResult
-        What `zfit.analyse_capture` returned.
-    """
-    import numpy as np
-
-    from .._units import format_eng
-
-    r = result.response
-    cols = np.column_stack([r.f_hz, r.magnitude_db(), r.phase_deg(), r.magnitude_db_std(), r.phase_std_deg(),
-                            r.coherence, r.usable.astype(float)])
-    lines = [
-        f"# zfit step response of {result.source}: H = V_out/V_in ({r.method})",
-        f"# usable band {format_eng(r.band_hz[0], 'Hz', 6)} to {format_eng(r.band_hz[1], 'Hz', 6)}; "
-        "uncertainties are standard (k=1)",
-        "f_hz,mag_db,phase_deg,mag_db_std,phase_std_deg,coherence,usable",
-    ]
-    for row in cols:
-        lines.append(",".join(
-            "inf" if not np.isfinite(v) else f"{v:.9g}" for v in row[:-1]) + f",{int(row[-1])}")
-    return "\n".join(lines) + "\n"
-
-
-def summary_lines(result) -> list[str]:
-    """Return the readable table of a step result, in engineering notation.
-
-    Parameters
-    ----------
-    result : StepResult
-        What `zfit.analyse_capture` returned.
-    """
-    from .._units import format_eng, format_value_std
-
-    def vs(v, s, unit):
-        return "n/a" if v is None else format_value_std(v, s, unit)
-
-    chans = result.output_name if result.input_name is None else f"{result.input_name} -> {result.output_name}"
-    out = [
-        f"capture:      {result.source}  ({chans}; {result.n_samples} samples at {format_eng(result.sample_rate_hz, 'Sa/s')})",
-        f"edges:        {result.edges} ({result.edges_rising} rising, {result.edges_falling} falling)",
-        f"levels:       {format_eng(result.levels_v[0], 'V')} / {format_eng(result.levels_v[1], 'V')} (output)"
-        # A histogram mode has no simple standard uncertainty; the samples' spread says how well it is known.
-        + f" [settled samples spread {format_eng(result.levels_noise_v[0], digits=2)} / "
-          f"{format_eng(result.levels_noise_v[1], 'V rms', digits=2)}]"
-        + ("" if result.input_levels_v is None else
-           f";  {format_eng(result.input_levels_v[0], 'V')} / {format_eng(result.input_levels_v[1], 'V')} (input)"),
-        f"10-90 %:      {vs(result.transition_10_90_s, result.transition_10_90_std_s, 's')}",
-        f"overshoot:    {_percent(result.overshoot_pct, result.overshoot_std_pct)}",
-        f"time const.:  {vs(result.time_constant_s, result.time_constant_std_s, 's')}"
-        + (f"  [{result.time_constant_method}]" if result.time_constant_s is not None else ""),
-        f"  cross-check {vs(result.midpoint_time_constant_s, result.midpoint_time_constant_std_s, 's')}  [low-to-midpoint time / ln 2]",
-    ]
-    r = result.ringing
-    if r is None:
-        out.append("ringing:      none found")
-    else:
-        out.append(f"ringing:      {format_value_std(r.frequency_hz, r.frequency_std_hz, 'Hz')}  "
-                   f"(natural {format_value_std(r.natural_hz, r.natural_std_hz, 'Hz')}, damping ratio {r.damping_ratio:.3g})")
-    c = result.stray_capacitance
-    if c is not None:
-        out.append(f"stray C:      {format_value_std(c.value_f, c.std_f, 'F')}  [{c.method}]")
-        if c.inductance_h is not None:
-            out.append(f"  and L       {format_value_std(c.inductance_h, c.inductance_std_h, 'H')}  "
-                       f"(with the added C it rings at {format_eng(c.added_ringing_hz, 'Hz')})")
-    lo, hi = result.usable_band_hz
-    resp = result.response
-    out.append(f"usable band:  {format_eng(lo, 'Hz')} to {format_eng(hi, 'Hz')}  "
-               f"({resp.n_averages} segment(s) averaged, bins of {format_eng(1.0 / resp.segment_s, 'Hz')})")
-    if result.identification is not None:
-        from ._identify import summary_lines as identify_lines
-
-        out.append(f"impedance with the {format_eng(result.shunt_ohm, 'ohm')} sense resistor:")
-        out.extend("  " + line for line in identify_lines(result.identification))
-    # The notes say why a figure is n/a (no settled states, no slow edge to fit).
-    out.extend(f"note:         {n}" for n in result.notes)
-    return out
-
-
-def _percent(v, s) -> str:
-    if v is None:
-        return "n/a"
-    if s is None or not math.isfinite(s) or s <= 0:
-        return f"{v:.3g} %"
-    # Two significant digits of the uncertainty, the value to the same place (GUM 7.2.6).
-    decimals = min(max(0, 1 - int(math.floor(math.log10(s)))), 9)
-    return f"{v:.{decimals}f} ± {s:.{decimals}f} %"

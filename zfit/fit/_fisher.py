@@ -1,4 +1,4 @@
-"""What a sweep can resolve: resolution limits and the shunt-thru ground loop.
+"""What a sweep can resolve: resolution limits of circuit parameters.
 
 Resolution limit
     For a circuit parameter ``p`` (``ESR``, ``R_s``, ``C_p``...), the value
@@ -19,22 +19,6 @@ Resolution limit
     connection (`zfit.data._connection.sigma_z_from_s`), so that a reflection
     measurement near the short circuit, or a shunt-thru measurement of a
     large impedance, counts for what it is worth at the candidate value too.
-
-Ground loop of shunt-thru
-    In a shunt-thru measurement both port cables' shields are tied to the
-    part's ground and, through the analyser's chassis, to each other: a
-    ground loop.  At low frequency the return current of port 1 divides
-    between its own shield and the loop through port 2's shield (by their
-    resistances), and the voltage it drops across the resistance of port
-    2's shield adds to what port 2 receives.  The analyser sees the part in
-    series with a few milliohms of shield resistance: a flat resistive floor.
-    Above the shield's corner frequency (loop resistance over loop
-    inductance, typically tens of kHz to a few MHz) the mutual inductance of
-    centre conductor and shield forces the return current back onto its own
-    shield and the error fades.  In a low-impedance capacitor this floor at
-    low frequency looks like ESR but is not (common practice in
-    power-distribution impedance measurement; remedies: ferrite cores or a
-    common-mode choke on a port cable, or an isolating transformer).
 
 References
 ----------
@@ -64,7 +48,7 @@ __all__ = [
     "is_resolved",
     "resolution_entries",
     "unresolved_text",
-    "ground_loop_warning",
+    "sigma_at_impedance",
 ]
 
 #: The relative uncertainty at the resolution limit.
@@ -172,8 +156,26 @@ def fisher_uncertainties(model: str, params, f_hz, sigma_ohm) -> dict[str, float
     return out
 
 
-def _sigma_shape(z, connection, z0, noise):
-    """The noise model's sigma of impedance `z` (up to the sweep's own scale)."""
+def sigma_at_impedance(z, connection, z0, noise):
+    """Return the noise model's sigma of Z (ohm) were the part's impedance `z`.
+
+    The one "sigma at the model": for an analyser connection the
+    instrument noise on S at the S that `z` would give, carried to Z
+    through the connection (`zfit.data._connection.sigma_z_from_s`); for
+    an impedance table the noise model applied to `z` itself.  None
+    without a noise model.
+
+    Parameters
+    ----------
+    z : array_like of complex
+        Model impedances in ohm.
+    connection : str
+        How the part was connected.
+    z0 : float
+        Reference impedance in ohm (analyser connections).
+    noise : InstrumentNoise or None
+        The sweep's noise model.
+    """
     if noise is None:
         return None
     if connection in NA_CONNECTIONS:
@@ -272,7 +274,7 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
     z0 = 50.0 if reference_ohm is None else float(reference_ohm)
     if noise is None and connection in NA_CONNECTIONS:
         noise = InstrumentNoise()
-    base = _sigma_shape(_impedance(model, params, f), connection, z0, noise)
+    base = sigma_at_impedance(_impedance(model, params, f), connection, z0, noise)
 
     def rel_std(key, x):
         p = dict(params)
@@ -280,7 +282,7 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
         sig = sigma
         if base is not None:
             with np.errstate(all="ignore"):
-                sig = sigma * _sigma_shape(_impedance(model, p, f), connection, z0, noise) / base
+                sig = sigma * sigma_at_impedance(_impedance(model, p, f), connection, z0, noise) / base
         if not np.all(np.isfinite(sig) & (sig > 0)):
             return math.inf
         return fisher_uncertainties(model, p, f, sig)[key] / x
@@ -404,70 +406,3 @@ def unresolved_text(key: str, limit: float, unit: str = "") -> str:
     if RESOLUTION_KIND.get(key, "lower") == "upper":
         return f"not resolved, > {format_eng(limit, unit)}"
     return f"below resolution, < {format_eng(limit, unit)}"
-
-
-def ground_loop_warning(sweep, identification) -> str | None:
-    """Return a warning when a shunt-thru capacitor shows a ground-loop floor.
-
-    A capacitor measured shunt-thru whose real part, below a fifth of its
-    series resonance, sits on a flat floor above the identified ESR, by
-    more than five standard uncertainties of the floor and by more than
-    half the ESR, is flagged as the cable-shield ground-loop error (module
-    notes).  The floor is judged over the lowest decade of the sweep: a
-    constant there must fit the excess better than ``1/f`` (dielectric
-    loss, ``Re Z = D / (w C)``; leakage rises faster still), which is not
-    flagged.
-
-    Parameters
-    ----------
-    sweep : Sweep
-        The measurement.
-    identification : Identification
-        Its identification (model ``"capacitor"`` for the check to apply).
-
-    Returns
-    -------
-    str or None
-        One line naming the floor, its band and the remedy; None when the
-        check does not apply or finds nothing.
-    """
-    if sweep.connection != "shunt-thru" or getattr(identification, "model", None) != "capacitor":
-        return None
-    params = _params_of(identification)
-    if not {"C", "ESL", "ESR"} <= set(params):
-        return None
-    c, esl, esr = params["C"], params["ESL"], params["ESR"]
-    srf = getattr(getattr(identification, "srf", None), "value_hz", None)
-    if srf is None or not np.isfinite(srf):
-        srf = 1.0 / (2 * math.pi * math.sqrt(abs(esl * c))) if esl > 0 and c > 0 else None
-    if srf is None:
-        return None
-    f = np.asarray(sweep.f_hz, dtype=float)
-    low = f < srf / 5.0
-    if low.sum() < 8:
-        return None
-    fl = f[low]
-    # The excess of the measured real part over the ESR: a ground-loop floor
-    # is flat in the lowest decade, dielectric loss (Re Z = D / (w C)) rises
-    # as 1/f and leakage as 1/f^2.  Two one-parameter weighted fits decide.
-    resid = np.asarray(sweep.z_ohm)[low].real - esr
-    w = 2.0 / np.asarray(sweep.sigma_ohm, dtype=float)[low] ** 2  # 1 / var(Re Z)
-    dec = fl <= 10.0 * fl[0]
-    if dec.sum() < 5:
-        dec = np.ones(fl.size, bool)
-    r, wd, fd = resid[dec], w[dec], fl[dec]
-    floor = float(np.sum(wd * r) / np.sum(wd))
-    std = float(1.0 / math.sqrt(np.sum(wd)))
-    chi_flat = float(np.sum(wd * (r - floor) ** 2))
-    k = float(np.sum(wd * r / fd) / np.sum(wd / fd**2))
-    chi_inv = float(np.sum(wd * (r - k / fd) ** 2))
-    if not (floor > 5.0 * std and floor > 0.5 * abs(esr) and chi_flat < chi_inv):
-        return None
-    above = (resid > 0.5 * floor) & (resid > 2.0 / np.sqrt(w))
-    top = float(fl[above][-1]) if above.any() else float(fd[-1])
-    return (
-        f"shunt-thru: the real part up to {format_eng(top)}Hz sits on a flat floor "
-        f"{format_eng(floor, 'ohm')} (+- {format_eng(std, 'ohm')}) above the ESR (fitted {format_eng(esr, 'ohm')}): "
-        "the known cable-shield ground-loop error of shunt-thru, not ESR; break the loop (ferrite cores or a "
-        "common-mode choke on a port cable, or an isolating transformer) and measure again"
-    )

@@ -1,1 +1,22 @@
-"""identify."""
+"""Identification: a `Sweep` in, an `Identification` out (the ``zfit.identify/1`` contract).
+
+Enters: a `Sweep` (frequencies, impedance, per-point sigma, connection,
+noise model) and the options of `identify` (model, spot frequencies, DC
+resistance).  Leaves: a frozen `Identification` (circuit, parameter
+estimates with resolution, rational model, SRF, figures of merit, fit
+quality, candidates, warnings) and, from the planner, a `Plan`.
+
+Modules
+-------
+_pipeline     `identify`: the named stages, options -> rational -> candidates -> choice -> valid band -> merit -> result
+_rational     the rational model of the full band, its score, its refit with the noise at the circuit
+_candidates   the circuits of each family and the choice between them by the BIC
+_band         the valid band of the chosen circuit and its refit over a sub-band
+_criteria     the BIC and the test of a valid band
+_estimates    parameter estimates with uncertainties, resolution floors, correlation
+_merit        SRF, Q, D, ESR, spot readouts, curves; `ModelEvaluator` (which model is read where)
+_traces       the figures of merit at every sweep point (what a plot draws)
+_diagnostics  adequacy, resolution, DC-resistance and shunt-thru ground-loop warnings
+_result       `Identification`, `FitQuality`, `Candidate`, `ParameterMap` and ``to_dict``
+_plan         the measurement planner
+"""

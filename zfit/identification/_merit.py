@@ -36,21 +36,27 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from typing import TYPE_CHECKING
+
 import numpy as np
+
+if TYPE_CHECKING:
+    from ..fit._lsq import Refinement
+    from ..fit._vectfit import RationalModel
 
 __all__ = [
     "Estimate",
     "ParameterEstimate",
-    "Figure",
+    "Merit",
     "SRF",
     "SpotReadout",
-    "Figures",
+    "Merits",
     "srf_of_circuit",
     "srf_of_rational",
     "rational_reading",
     "spot_readout",
-    "MeasuredReader",
-    "figures_of",
+    "ModelEvaluator",
+    "merits_of",
     "Curves",
     "curves_of",
     "Q_MEASURED",
@@ -143,7 +149,7 @@ class ParameterEstimate(Estimate):
 
 
 @dataclass(frozen=True)
-class Figure:
+class Merit:
     """A derived figure at a frequency, with its definition.
 
     Attributes
@@ -214,7 +220,7 @@ class SRF:
 
 @dataclass(frozen=True)
 class SpotReadout:
-    """Figures of the part at one frequency.
+    """Readings of the part at one frequency.
 
     Attributes
     ----------
@@ -260,32 +266,32 @@ class SpotReadout:
 
 
 @dataclass(frozen=True)
-class Figures:
+class Merits:
     """The derived figures of an identification (None where not applicable).
 
     Attributes
     ----------
-    z_at_srf : Figure or None
+    z_at_srf : Merit or None
         ``|Z|`` at the self-resonance (in band: read from the rational model;
         otherwise the circuit's value there).
-    q_peak : Figure or None
+    q_peak : Merit or None
         Peak of the measured Q, ``|X|/R``, below the SRF (inductors).
-    q_model_at_q_peak : Figure or None
+    q_model_at_q_peak : Merit or None
         The model's ``omega L / R_s`` at the frequency of `q_peak`.
-    esr_min : Figure or None
+    esr_min : Merit or None
         The smallest ESR in the band and where (capacitors).
-    d_at_f_min : Figure or None
+    d_at_f_min : Merit or None
         The measured D at the lowest frequency of the band (capacitors).
-    d_model_at_f_min : Figure or None
+    d_model_at_f_min : Merit or None
         The model's ``omega C ESR`` there.
     """
 
-    z_at_srf: Figure | None = None
-    q_peak: Figure | None = None
-    q_model_at_q_peak: Figure | None = None
-    esr_min: Figure | None = None
-    d_at_f_min: Figure | None = None
-    d_model_at_f_min: Figure | None = None
+    z_at_srf: Merit | None = None
+    q_peak: Merit | None = None
+    q_model_at_q_peak: Merit | None = None
+    esr_min: Merit | None = None
+    d_at_f_min: Merit | None = None
+    d_model_at_f_min: Merit | None = None
 
     def to_dict(self) -> dict:
         """Return the ``figures`` object of the JSON contract."""
@@ -412,7 +418,7 @@ def srf_of_rational(rational, band, f_hz=None) -> SRF:
 
 
 def _readout(f, z, cov):
-    """Figures at one frequency from Z and the 2x2 covariance of (R, X)."""
+    """Readings at one frequency from Z and the 2x2 covariance of (R, X)."""
     w = _TWO_PI * f
     r, x = float(z.real), float(z.imag)
     mag = math.hypot(r, x)
@@ -447,7 +453,7 @@ def _readout(f, z, cov):
 
 
 @dataclass(frozen=True)
-class MeasuredReader:
+class ModelEvaluator:
     """Where the figures of the measured part are read from, frequency by frequency.
 
     Inside `circuit_band` (the band where the fitted circuit is within the
@@ -472,10 +478,10 @@ class MeasuredReader:
         Where the circuit is read in preference to the rational model.
     """
 
-    band: tuple
-    rational: object = None
-    refinement: object = None
-    circuit_band: tuple | None = None
+    band: tuple[float, float]
+    rational: RationalModel | None = None
+    refinement: Refinement | None = None
+    circuit_band: tuple[float, float] | None = None
 
     def source(self, f_hz: float) -> str:
         """Return ``"circuit"`` or ``"rational"``: which model is read at `f_hz`.
@@ -546,27 +552,27 @@ class MeasuredReader:
         return z, cov, src
 
 
-def spot_readout(f_hz: float, reader: MeasuredReader) -> SpotReadout:
+def spot_readout(f_hz: float, evaluator: ModelEvaluator) -> SpotReadout:
     """Return the figures at one frequency, with their uncertainties.
 
     Parameters
     ----------
     f_hz : float
         The frequency in Hz.
-    reader : MeasuredReader
+    evaluator : ModelEvaluator
         Which model to read where.
     """
     f = float(f_hz)
-    lo, hi = reader.band
-    z, cov, src = reader.read(f)
+    lo, hi = evaluator.band
+    z, cov, src = evaluator.read(f)
     return SpotReadout(f, lo <= f <= hi, src, **_readout(f, z, cov))
 
 
-def _q_peak(reader, srf_hz, n=2000):
-    lo, hi = reader.band
+def _q_peak(evaluator, srf_hz, n=2000):
+    lo, hi = evaluator.band
     top = hi if srf_hz is None or not (lo < srf_hz < hi) else srf_hz
     grid = np.geomspace(lo, top, n)
-    z = reader.impedance(grid)
+    z = evaluator.impedance(grid)
     ok = (z.imag > 0) & (z.real > 0)
     if not ok.any():
         return None
@@ -574,7 +580,7 @@ def _q_peak(reader, srf_hz, n=2000):
     return float(grid[int(np.argmax(q))])
 
 
-def figures_of(family: str, srf: SRF, reader: MeasuredReader) -> Figures:
+def merits_of(family: str, srf: SRF, evaluator: ModelEvaluator) -> Merits:
     """Return the derived figures of an identification.
 
     Parameters
@@ -583,39 +589,39 @@ def figures_of(family: str, srf: SRF, reader: MeasuredReader) -> Figures:
         The model chosen.
     srf : SRF
         The self-resonance already found.
-    reader : MeasuredReader
+    evaluator : ModelEvaluator
         Which model to read where.
     """
-    lo, hi = reader.band
-    refinement = reader.refinement
+    lo, hi = evaluator.band
+    refinement = evaluator.refinement
     out = {}
     if srf.value_hz is not None:
         f0 = srf.value_hz
         if srf.where == "in-band" or refinement is not None:
-            sp = spot_readout(f0, reader)
+            sp = spot_readout(f0, evaluator)
             text = "|Z| at the SRF" + ("" if sp.in_band else " (circuit, outside the band)")
-            out["z_at_srf"] = Figure(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, text, sp.source)
+            out["z_at_srf"] = Merit(sp.Z_mag.value, sp.Z_mag.std, "ohm", f0, text, sp.source)
     if family == "inductor":
-        fq = _q_peak(reader, srf.value_hz)
+        fq = _q_peak(evaluator, srf.value_hz)
         if fq is not None:
-            sp = spot_readout(fq, reader)
-            out["q_peak"] = Figure(sp.Q.value, sp.Q.std, "", fq, Q_MEASURED, sp.source)
+            sp = spot_readout(fq, evaluator)
+            out["q_peak"] = Merit(sp.Q.value, sp.Q.std, "", fq, Q_MEASURED, sp.source)
             if refinement is not None:
                 circuit = refinement.circuit
                 fn = lambda p: float(circuit.model_q(p, np.array([fq]))[0])  # noqa: E731
-                out["q_model_at_q_peak"] = Figure(fn(refinement.values), refinement.std_of(fn), "", fq, Q_MODEL, "circuit")
+                out["q_model_at_q_peak"] = Merit(fn(refinement.values), refinement.std_of(fn), "", fq, Q_MODEL, "circuit")
     if family == "capacitor":
         grid = np.geomspace(lo, hi, 2000)
-        i = int(np.argmin(reader.impedance(grid).real))
-        sp = spot_readout(float(grid[i]), reader)
-        out["esr_min"] = Figure(sp.R.value, sp.R.std, "ohm", float(grid[i]), ESR_MEASURED, sp.source)
-        sp = spot_readout(lo, reader)
-        out["d_at_f_min"] = Figure(sp.D.value, sp.D.std, "", lo, D_MEASURED, sp.source)
+        i = int(np.argmin(evaluator.impedance(grid).real))
+        sp = spot_readout(float(grid[i]), evaluator)
+        out["esr_min"] = Merit(sp.R.value, sp.R.std, "ohm", float(grid[i]), ESR_MEASURED, sp.source)
+        sp = spot_readout(lo, evaluator)
+        out["d_at_f_min"] = Merit(sp.D.value, sp.D.std, "", lo, D_MEASURED, sp.source)
         if refinement is not None:
             circuit = refinement.circuit
             fn = lambda p: float(circuit.model_d(p, np.array([lo]))[0])  # noqa: E731
-            out["d_model_at_f_min"] = Figure(fn(refinement.values), refinement.std_of(fn), "", lo, D_MODEL, "circuit")
-    return Figures(**out)
+            out["d_model_at_f_min"] = Merit(fn(refinement.values), refinement.std_of(fn), "", lo, D_MODEL, "circuit")
+    return Merits(**out)
 
 
 @dataclass(frozen=True)
@@ -627,7 +633,7 @@ class Curves:
     f_hz : numpy.ndarray
         The grid (41 points, log-spaced over the band, by default).
     esr_ohm : numpy.ndarray
-        ``Re Z`` of the measured impedance (see `MeasuredReader`).
+        ``Re Z`` of the measured impedance (see `ModelEvaluator`).
     x_ohm : numpy.ndarray
         ``Im Z`` of the measured impedance.
     q_measured : numpy.ndarray
@@ -660,24 +666,24 @@ class Curves:
         }
 
 
-def curves_of(reader: MeasuredReader, n: int = 41) -> Curves:
+def curves_of(evaluator: ModelEvaluator, n: int = 41) -> Curves:
     """Return Q(f), ESR(f), D(f) of the measured part and of the model.
 
     Parameters
     ----------
-    reader : MeasuredReader
+    evaluator : ModelEvaluator
         Which model to read where (measured curves).
     n : int
         Number of log-spaced frequencies over the band.
     """
-    lo, hi = reader.band
+    lo, hi = evaluator.band
     f = np.geomspace(lo, hi, n)
-    z = reader.impedance(f)
+    z = evaluator.impedance(f)
     with np.errstate(divide="ignore", invalid="ignore"):
         q = np.where(z.real > 0, np.abs(z.imag) / z.real, np.nan)
         d = np.where(z.imag != 0, z.real / np.abs(z.imag), np.nan)
     q_model = d_model = None
-    ref = reader.refinement
+    ref = evaluator.refinement
     if ref is not None:
         if ref.circuit.family == "inductor":
             q_model = ref.circuit.model_q(ref.values, f)

@@ -1,1 +1,19 @@
-"""outputs."""
+"""Outputs: results in, files and text out; presentation only, no computation.
+
+Enters: an `Identification` or a `StepResult` (and a `Sweep` for the info
+view).  Leaves: text and tables for the terminal, plots, SPICE netlists,
+Touchstone files (through `zfit.io._touchstone_export`) and one-page HTML
+reports, all committed by one writer.  Every number comes from the result;
+the passive realisation of a rational model is `Identification.realisation`
+(`zfit.fit._realisation`).
+
+Modules
+-------
+_views         result -> text and tables: terminal summaries, the ``zfit.info/1`` dict, the response CSV, page notation
+_result_plots  which plots a result gets, from its traces
+_plots         the matplotlib drawing
+_netlist       SPICE subcircuit text of a circuit or a realised rational model
+_pages         the report's content (sections, tables, plots)
+_report        rendering a report as self-contained HTML
+_outputs       `write_outputs`: the one writer of every file kind
+"""

@@ -136,7 +136,8 @@ class Report:
     generated: str = field(default_factory=lambda: _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC"))
 
 
-_CSS = """
+#: The report pages' style sheet (the demo's index page uses it too).
+PAGE_CSS = """
 @page { margin: 8mm 10mm; }
 * { box-sizing: border-box; }
 html { font-family: "DejaVu Sans", "Liberation Sans", Arial, Helvetica, sans-serif; font-size: 9pt;
@@ -274,7 +275,7 @@ def report_html(report: Report) -> str:
         '<meta name="viewport" content="width=device-width, initial-scale=1"/>',
         f'<meta name="generator" content="zfit {_esc(__version__)}"/>',
         f"<title>{_esc(report.title)}</title>",
-        f"<style>{_CSS}</style>",
+        f"<style>{PAGE_CSS}</style>",
         "</head>",
         "<body>",
         "<header>",

@@ -1,0 +1,171 @@
+"""The valid band of identification: where the chosen circuit holds, and its refit there.
+
+A circuit's band of validity is the longest run of points where its
+residual is within the noise (`zfit.identification._criteria.valid_mask`,
+compared with the rational model's over sliding windows).  Where that is
+not nearly the whole band, the circuit is refitted over sub-bands (the
+valid run found, the band below each further resonance of the rational
+model, the upper or lower part of the band, and the widest band from either
+end found by bisection) and the widest valid band wins; the rational model
+stays the description of the full band.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from .._errors import FitError
+from ._candidates import circuit_bic
+from ._criteria import longest_run, valid_mask
+
+if TYPE_CHECKING:
+    from ..data._sweep import Sweep
+    from ..fit._lsq import Observation, Refinement
+    from ..fit._vectfit import RationalModel
+    from ._candidates import Choice
+
+__all__ = ["ValidBand", "valid_band"]
+
+
+@dataclass(frozen=True)
+class ValidBand:
+    """The circuit reported and the band where it holds.
+
+    Attributes
+    ----------
+    chosen : Refinement
+        The circuit fit (refitted over a sub-band where that is wider).
+    energy : numpy.ndarray
+        Its ``|normalised residual|^2`` at every sweep point.
+    start, stop : int
+        Index range of the valid band (``start == stop`` where none).
+    fitted_mask : numpy.ndarray of bool or None
+        The points it was fitted to (None: all).
+    """
+
+    chosen: Refinement
+    energy: np.ndarray
+    start: int
+    stop: int
+    fitted_mask: np.ndarray | None = None
+
+    def inside(self, n: int) -> np.ndarray:
+        """Return the mask of the valid band over `n` points."""
+        m = np.zeros(n, bool)
+        m[self.start:self.stop] = True
+        return m
+
+
+def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray | None,
+               rational: RationalModel | None, margin: float) -> ValidBand:
+    """Return the band where the chosen circuit holds, refitting it over a sub-band where that is wider.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The measurement.
+    obs : Observation
+        The sweep as the circuits see it.
+    picked : Choice
+        The circuit chosen over the full band.
+    e_rat : numpy.ndarray or None
+        The rational model's ``|normalised residual|^2`` (the noise level it reaches).
+    rational : RationalModel or None
+        The rational model (its resonances bound the sub-bands tried).
+    margin : float
+        BIC difference the optional element must win by in a sub-band.
+    """
+    from ..fit._circuits import circuits_of
+    from ..fit._lsq import refine
+
+    family, chosen, prior = picked.family, picked.chosen, picked.prior
+    band = sweep.band_hz
+
+    def residual_energy(ref):
+        return np.abs(obs.normalized(ref.impedance(sweep.f_hz))) ** 2
+
+    e_c = residual_energy(chosen)
+    i0, i1 = longest_run(valid_mask(e_c, e_rat))
+    fitted_mask = None
+    k = chosen.circuit.n_params
+    n = sweep.n_points
+    min_pts = max(10, 4 * k + 2)
+    if (i1 - i0) < 0.97 * n:
+        base, full = circuits_of(family)
+
+        def sub_fit(circuit, mask, seed=None):
+            sub = obs.subset(mask)
+            starts = ([] if seed is None else [seed]) + circuit.starts(sub.f_hz, sub.z_ohm, sub.sigma_ohm, rational)
+            try:
+                ref = refine(circuit, sub, starts, prior=prior, n_best=2)
+            except FitError:
+                return None
+            e = residual_energy(ref)
+            return ref, e, longest_run(valid_mask(e, e_rat)), mask
+
+        logf = np.log(sweep.f_hz)
+        span = logf[-1] - logf[0]
+        masks = []
+        if i1 - i0 >= min_pts:
+            m = np.zeros(n, bool)
+            m[i0:i1] = True
+            masks.append(m)
+        if rational is not None:
+            fr = np.sort(np.abs(np.asarray(rational.poles)[np.asarray(rational.poles).imag > 0])) / (2 * math.pi)
+            fr = fr[(fr > band[0]) & (fr < band[1])]
+            for fa, fb in zip(fr[:-1], fr[1:]):
+                masks.append(sweep.f_hz <= math.sqrt(fa * fb))
+        for frac in (0.75, 0.5):
+            masks.append(logf <= logf[0] + frac * span)
+            masks.append(logf >= logf[-1] - frac * span)
+        best = None
+
+        def consider(got):
+            nonlocal best
+            if got is not None and (best is None or (got[2][1] - got[2][0], got[3].sum()) > (best[2][1] - best[2][0], best[3].sum())):
+                best = got
+
+        for m in masks:
+            if m.sum() >= min_pts:
+                consider(sub_fit(base, m))
+        # The widest band from either end over which the circuit, fitted
+        # there, stays within the noise: a bisection on the other end.
+        for from_bottom in (True, False):
+            good, lo_n, hi_n = None, min_pts, n - 1
+            while hi_n - lo_n > max(2, n // 64):
+                mid = (lo_n + hi_n) // 2
+                m = np.zeros(n, bool)
+                if from_bottom:
+                    m[:mid] = True
+                else:
+                    m[n - mid:] = True
+                got = sub_fit(chosen.circuit, m)
+                if got is not None and valid_mask(got[1], e_rat)[m].mean() >= 0.97:
+                    good, lo_n = got, mid
+                else:
+                    hi_n = mid
+            consider(good)
+        if best is not None and (best[2][1] - best[2][0]) > (i1 - i0):
+            # Refit over the valid run found, and decide the optional element there.
+            j0, j1 = best[2]
+            m = np.zeros(n, bool)
+            m[j0:j1] = True
+            if m.sum() >= min_pts:
+                got_b = sub_fit(base, m, best[0].values) or best
+                got_f = sub_fit(full, m, np.append(got_b[0].values, np.max(np.abs(sweep.z_ohm)) * 10)
+                                if family == "inductor" else None)
+                pick = got_b
+                if got_f is not None:
+                    rows_m = 2 * int(m.sum())
+                    if circuit_bic(got_f[0], rows_m) < circuit_bic(got_b[0], rows_m) - margin:
+                        pick = got_f
+                if (pick[2][1] - pick[2][0]) >= (best[2][1] - best[2][0]):
+                    best = pick
+            chosen, e_c, (i0, i1), fitted_mask = best
+    if i1 <= i0:
+        i0, i1 = 0, 0
+    return ValidBand(chosen, e_c, i0, i1, fitted_mask)

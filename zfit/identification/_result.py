@@ -1,0 +1,341 @@
+"""The result of an identification and its JSON contract, ``zfit.identify/1``.
+
+`Identification` holds what `zfit.identify` found: the circuit and its
+parameter estimates (`ParameterMap`), the rational model, the SRF, the
+figures of merit, the fit quality and the candidates compared; ``to_dict``
+writes the ``zfit.identify/1`` object (docs/identify.md), the one place its
+keys are spelled.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass
+from functools import cached_property
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from ._merit import SRF, Curves, Estimate, ParameterEstimate, Merits, SpotReadout, _num
+
+if TYPE_CHECKING:
+    from ..data._sweep import Sweep
+    from ..fit._circuits import Circuit
+    from ..fit._lsq import Refinement
+    from ..fit._realisation import Realisation
+    from ..fit._vectfit import RationalModel
+
+__all__ = ["Identification", "FitQuality", "Candidate", "ParameterMap", "SCHEMA"]
+
+#: Identifier of the JSON contract.
+SCHEMA = "zfit.identify/1"
+
+
+class ParameterMap(Mapping[str, ParameterEstimate]):
+    """An immutable, picklable mapping of parameter key to `ParameterEstimate`.
+
+    Parameters
+    ----------
+    items : iterable of (str, ParameterEstimate)
+        The entries, in the circuit's order.
+    """
+
+    __slots__ = ("_items", "_index")
+
+    def __init__(self, items=()):
+        items = tuple((str(k), v) for k, v in items)
+        object.__setattr__(self, "_items", items)
+        object.__setattr__(self, "_index", {k: i for i, (k, _) in enumerate(items)})
+
+    def __setattr__(self, name, value):
+        raise AttributeError("ParameterMap is immutable")
+
+    def __getitem__(self, key):
+        return self._items[self._index[key]][1]
+
+    def __iter__(self):
+        return (k for k, _ in self._items)
+
+    def __len__(self):
+        return len(self._items)
+
+    def __repr__(self):
+        return f"ParameterMap({dict(self._items)!r})"
+
+    def __reduce__(self):
+        return (ParameterMap, (self._items,))
+
+    def values_si(self) -> dict:
+        """Return ``{key: value}`` in SI units (what `circuit_impedance` takes)."""
+        return {k: v.value for k, v in self._items}
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One circuit that was fitted while choosing the model.
+
+    Attributes
+    ----------
+    topology : str
+        The circuit.
+    n_params : int
+        Its number of parameters.
+    bic : float
+        Its Bayesian information criterion on the fitted points.
+    rms_normalized_residual : float
+        RMS of the normalised residual.
+    chosen : bool
+        Whether it is the reported circuit.
+    """
+
+    topology: str
+    n_params: int
+    bic: float
+    rms_normalized_residual: float
+    chosen: bool = False
+
+    def to_dict(self) -> dict:
+        """Return the JSON object of the candidate."""
+        return {
+            "topology": self.topology, "n_params": int(self.n_params), "bic": _num(self.bic),
+            "rms_normalized_residual": _num(self.rms_normalized_residual), "chosen": bool(self.chosen),
+        }
+
+
+@dataclass(frozen=True)
+class FitQuality:
+    """How well the reported model describes the sweep.
+
+    Attributes
+    ----------
+    rms_normalized_residual : float
+        RMS over the fitted points of ``|Z_model - Z| / sigma`` (taken on S
+        for analyser data, see `domain`): about 1 when only noise is left.
+    points : int
+        Number of points the reported model was fitted to.
+    f_min_hz, f_max_hz : float
+        The band of the sweep.
+    valid_band_hz : tuple of float
+        The band where the model's residual is within the noise.
+    fitted_band_hz : tuple of float
+        The band the reported values were fitted over.
+    reduced_chi_square : float
+        Chi-square per degree of freedom of the fit.
+    domain : {'S', 'Z'}
+        Whether residuals were taken on the measured S-parameter or on Z.
+    criterion : str
+        The model-choice criterion (``"BIC"``).
+    rational_rms_normalized_residual : float or None
+        The same RMS for the rational model over the full band.
+    rational_poles : int or None
+        Its number of poles (besides an origin pole).
+    worse_than_rational : bool
+        Whether the circuit describes the full band worse than the rational
+        model by the criterion.
+    starts : int
+        Starting points ranked for the refinement of the reported circuit.
+    """
+
+    rms_normalized_residual: float
+    points: int
+    f_min_hz: float
+    f_max_hz: float
+    valid_band_hz: tuple[float, float]
+    fitted_band_hz: tuple[float, float]
+    reduced_chi_square: float
+    domain: str
+    criterion: str = "BIC"
+    rational_rms_normalized_residual: float | None = None
+    rational_poles: int | None = None
+    worse_than_rational: bool = False
+    starts: int = 0
+
+    def to_dict(self) -> dict:
+        """Return the ``fit`` object of the JSON contract."""
+        return {
+            "rms_normalized_residual": _num(self.rms_normalized_residual),
+            "points": int(self.points),
+            "f_min_hz": float(self.f_min_hz),
+            "f_max_hz": float(self.f_max_hz),
+            "valid_band_hz": [_num(self.valid_band_hz[0]), _num(self.valid_band_hz[1])],
+            "fitted_band_hz": [_num(self.fitted_band_hz[0]), _num(self.fitted_band_hz[1])],
+            "reduced_chi_square": _num(self.reduced_chi_square),
+            "domain": self.domain,
+            "criterion": self.criterion,
+            "rational_rms_normalized_residual": _num(self.rational_rms_normalized_residual),
+            "rational_poles": None if self.rational_poles is None else int(self.rational_poles),
+            "worse_than_rational": bool(self.worse_than_rational),
+            "starts": int(self.starts),
+        }
+
+
+@dataclass(frozen=True)
+class Identification:
+    """The result of `identify`.
+
+    Attributes
+    ----------
+    sweep : Sweep
+        The measurement.
+    model : {'inductor', 'capacitor', 'rational'}
+        The model reported.
+    topology : str
+        The circuit's descriptive name (or ``"rational model with N poles"``).
+    parameters : ParameterMap
+        Key -> `ParameterEstimate` (empty for the rational model).
+    rational : RationalModel or None
+        The vector-fitting model of the full band (None only if it failed).
+    srf : SRF
+        The self-resonant frequency and where it lies.
+    fit : FitQuality
+        Residuals, points, band, valid band.
+    spot : tuple of SpotReadout
+        Readouts at the frequencies asked for.
+    warnings : tuple of str
+        What the user should know about this result.
+    figures : Merits
+        The figures of merit: Q peak, ESR, D, |Z| at resonance.
+    curves : Curves or None
+        Q(f), ESR(f), D(f) on a log grid over the band, measured and model.
+    candidates : tuple of Candidate
+        The circuits compared while choosing the model.
+    correlation : numpy.ndarray or None
+        Correlation matrix of the parameters, in `parameters` order.
+    rdc : Estimate or None
+        The measured DC resistance that constrained R_s or ESR.
+    refinement : Refinement or None
+        The circuit fit itself (values, log-covariance), for further use.
+    """
+
+    sweep: Sweep
+    model: str
+    topology: str
+    parameters: ParameterMap
+    rational: RationalModel | None
+    srf: SRF
+    fit: FitQuality
+    spot: tuple[SpotReadout, ...] = ()
+    warnings: tuple[str, ...] = ()
+    figures: Merits = Merits()
+    curves: Curves | None = None
+    candidates: tuple[Candidate, ...] = ()
+    correlation: np.ndarray | None = None
+    rdc: Estimate | None = None
+    refinement: Refinement | None = None
+
+    def __post_init__(self):
+        if self.correlation is not None:
+            c = np.array(self.correlation, float)
+            c.flags.writeable = False
+            object.__setattr__(self, "correlation", c)
+
+    @property
+    def circuit(self) -> Circuit | None:
+        """The fitted `Circuit`, or None for the rational model."""
+        return None if self.refinement is None else self.refinement.circuit
+
+    @cached_property
+    def realisation(self) -> Realisation:
+        """The rational model realised as a passive R-L-C network (computed once, on first use).
+
+        Raises
+        ------
+        ZfitInputError
+            When there is no rational model.
+        SynthesisError
+            When it cannot be realised with non-negative elements
+            (`zfit.fit._realisation.passive_realisation`).
+        """
+        from .._errors import ZfitInputError
+        from ..fit._realisation import passive_realisation
+
+        if self.rational is None:
+            raise ZfitInputError("there is no rational model to realise as a network")
+        return passive_realisation(self.rational, self.sweep)
+
+    def impedance(self, f_hz) -> np.ndarray:
+        """Return the reported model's impedance (ohm) at `f_hz`.
+
+        The equivalent circuit's, or the rational model's when ``model`` is
+        ``"rational"``.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        f = np.asarray(f_hz, dtype=float)
+        if self.refinement is not None:
+            return self.refinement.impedance(f)
+        return self.rational.impedance(f)
+
+    def q_model(self, f_hz) -> np.ndarray | None:
+        """Return the inductor model's ``omega L / R_s`` at `f_hz` (None otherwise).
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        if self.model != "inductor":
+            return None
+        return self.circuit.model_q(self.refinement.values, np.asarray(f_hz, dtype=float))
+
+    def to_dict(self) -> dict:
+        """Return the ``zfit.identify/1`` JSON object (see docs/identify.md).
+
+        Floats are numbers in SI units; a missing value is null, never a
+        string.
+        """
+        from .._version import __version__
+
+        corr = None
+        if self.correlation is not None and len(self.parameters):
+            corr = {
+                "keys": list(self.parameters),
+                "matrix": [[_num(v) for v in row] for row in self.correlation],
+            }
+        return {
+            "schema": SCHEMA,
+            "zfit_version": __version__,
+            "source": str(self.sweep.source),
+            "connection": self.sweep.connection,
+            "model": self.model,
+            "topology": self.topology,
+            "parameters": {k: v.to_dict() for k, v in self.parameters.items()},
+            "correlation": corr,
+            "srf": self.srf.to_dict(),
+            "figures": self.figures.to_dict(),
+            "curves": None if self.curves is None else self.curves.to_dict(),
+            "fit": self.fit.to_dict(),
+            "candidates": [c.to_dict() for c in self.candidates],
+            "rational": _rational_dict(self.rational),
+            "rdc": None if self.rdc is None else self.rdc.to_dict(),
+            "spot": [s.to_dict() for s in self.spot],
+            "warnings": list(self.warnings),
+            "notes": list(self.sweep.notes),
+        }
+
+
+def _rational_dict(rm):
+    if rm is None:
+        return None
+    poles = np.asarray(rm.poles, complex)
+    res = np.asarray(rm.residues, complex)
+    return {
+        "poles_rad_per_s": [[float(p.real), float(p.imag)] for p in poles],
+        "residues": [[float(r.real), float(r.imag)] for r in res],
+        "constant_ohm": float(rm.constant),
+        "proportional_h": float(rm.proportional),
+        "origin_residue": float(rm.origin_residue),
+        "rms_normalized_residual": _num(getattr(rm, "rms_normalized_residual", None)),
+        "passive": bool(_passive(rm)),
+    }
+
+
+def _passive(rm) -> bool:
+    try:
+        return bool(rm.is_passive)
+    except (AttributeError, ValueError, ArithmeticError):
+        return True
+

@@ -1,0 +1,378 @@
+"""Views: a result as text and tables, in the notation of a page or of a terminal.
+
+What the command line prints (`identification_summary`, `step_summary`,
+`info_lines`), the ``zfit.info/1`` object of a sweep (`info_dict`), the
+frequency response of a step as CSV (`response_csv`), and the notation the
+report pages use (`pretty`, `pretty_std`, `dimensionless`, `percent_std`).
+Nothing here computes a figure: every number comes from the result.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import numpy as np
+
+from .._units import format_eng, format_value_std
+
+__all__ = [
+    "pretty",
+    "pretty_std",
+    "dimensionless",
+    "percent_std",
+    "estimate_text",
+    "relative_text",
+    "band_text",
+    "micro",
+    "identification_summary",
+    "step_summary",
+    "INFO_SCHEMA",
+    "info_dict",
+    "info_lines",
+    "response_csv",
+]
+
+
+def _pretty_unit(unit: str) -> str:
+    return {"ohm": "Ω", "deg": "°"}.get(unit, unit)
+
+
+def micro(text: str) -> str:
+    """Return `text` with the micro prefix as the micro sign."""
+    # format_eng writes micro as ASCII "u"; on a page it is the micro sign.
+    return re.sub(r"(?<=\d)u(?=\b|\s|$)", "µ", text)
+
+
+def pretty(value, unit: str = "", digits: int = 4) -> str:
+    """Return a value in engineering notation for a page: ``4.7 µH``, ``25 mΩ``.
+
+    Parameters
+    ----------
+    value : float or None
+        In SI units.
+    unit : str
+        ``"H"``, ``"F"``, ``"ohm"``, ``"Hz"``, ``"deg"`` or empty.
+    digits : int
+        Significant digits.
+    """
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return "n/a"
+    text = format_eng(value, "", digits)
+    u = _pretty_unit(unit)
+    m = re.match(r"^(-?[\d.]+(?:e[+-]?\d+)?)([a-zA-Z]?)$", text)
+    if m:
+        text = f"{m.group(1)} {m.group(2).replace('u', 'µ')}{u}".rstrip()
+    elif u:
+        text = f"{text} {u}"
+    return micro(text)
+
+
+def pretty_std(value, std, unit: str = "") -> str:
+    """Return ``value ± std unit`` for a page (GUM rounding, one prefix).
+
+    Parameters
+    ----------
+    value : float or None
+        The estimate in SI units.
+    std : float or None
+        Its standard uncertainty; None prints the value with "(no uncertainty)".
+    unit : str
+        Unit symbol.
+    """
+    if std is None or not np.isfinite(std) or std <= 0:
+        return pretty(value, unit) + ("" if std is not None and std == 0 else " (no uncertainty)")
+    text = format_value_std(value, std, "")
+    u = _pretty_unit(unit)
+    m = re.match(r"^(-?[\d.]+)([a-zA-Z]?) ± ([\d.]+)\2$", text)
+    if m:
+        # One prefix for both: "23.21505 ± 0.00032 MHz".
+        return f"{m.group(1)} ± {m.group(3)} {m.group(2).replace('u', 'µ')}{u}".rstrip()
+    return micro(f"{text} {u}".rstrip())
+
+
+def estimate_text(e) -> str:
+    """Return an `Estimate` as ``value ± std unit`` for a page."""
+    return pretty_std(e.value, e.std, e.unit)
+
+
+def relative_text(e) -> str:
+    """Return the relative uncertainty of an `Estimate` in % or ppm."""
+    if e.std is None or not e.value:
+        return "n/a"
+    r = abs(e.std / e.value)
+    return f"{100 * r:.2g} %" if r >= 1e-4 else f"{1e6 * r:.2g} ppm"
+
+
+def band_text(b) -> str:
+    """Return a band ``(lo, hi)`` in Hz as ``lo to hi`` for a page."""
+    if b is None or b[0] is None or b[1] is None:
+        return "n/a"
+    return f"{pretty(b[0], 'Hz')} to {pretty(b[1], 'Hz')}"
+
+
+def dimensionless(e) -> str:
+    """Q or D with its uncertainty, without SI prefixes (a D of 0.0176, not 17.6m)."""
+    if e is None or e.value is None:
+        return "n/a"
+    v, u = float(e.value), e.std
+    if not u or not math.isfinite(u) or u <= 0:
+        return f"{v:.4g}"
+    if 1.0 <= abs(v) < 1e4 or (1e-3 <= abs(v) < 1.0 and u >= 1e-7):
+        decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
+        return f"{v:.{decimals}f} ± {u:.{decimals}f}"
+    # A common power of ten (a multiple of 3) for both, the uncertainty to two
+    # digits and the value to the same place (GUM, JCGM 100:2008, 7.2.6).
+    e = int(math.floor(math.log10(abs(v) if v else u) / 3.0)) * 3
+    m, mu = v / 10.0**e, u / 10.0**e
+    decimals = min(max(0, 1 - int(math.floor(math.log10(mu)))), 9)
+    return f"({m:.{decimals}f} ± {mu:.{decimals}f})e{e}"
+
+
+def percent_std(v, u) -> str:
+    """A percentage with its uncertainty, both to the uncertainty's second digit (GUM 7.2.6); ``n/a`` for None."""
+    if v is None:
+        return "n/a"
+    if not u or not math.isfinite(u) or u <= 0:
+        return f"{v:.3g} %"
+    decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
+    return f"{v:.{decimals}f} ± {u:.{decimals}f} %"
+
+
+# ------------------------------------------------------------ terminal ---
+
+
+def identification_summary(result) -> list[str]:
+    """Return the readable table of an identification, line by line.
+
+    Parameters
+    ----------
+    result : Identification
+        What `zfit.identify` returned.
+    """
+    fit = result.fit
+    out = [
+        f"part:       {result.sweep.source}  ({result.sweep.connection}, {result.sweep.n_points} points, "
+        f"{format_eng(fit.f_min_hz, 'Hz')} to {format_eng(fit.f_max_hz, 'Hz')})",
+        f"model:      {result.model}: {result.topology}",
+    ]
+    if len(result.parameters):
+        out.append("parameters (value ± standard uncertainty):")
+        for key, est in result.parameters.items():
+            text = est.unresolved_text() if hasattr(est, "unresolved_text") else None
+            if text is not None:
+                # A number that is only noise is not printed.
+                out.append(f"  {key:<7}{text}")
+                continue
+            rel = ""
+            if est.std is not None and est.value:
+                rel = f"  ({100 * est.std / abs(est.value):.2g} %)"
+            out.append(f"  {key:<7}{format_value_std(est.value, est.std, est.unit)}{rel}")
+    if result.rdc is not None:
+        out.append(f"  (DC resistance given: {format_value_std(result.rdc.value, result.rdc.std, 'ohm')})")
+    srf = result.srf
+    if srf.where == "none":
+        out.append("SRF:        none (the reactance does not cross zero)")
+    else:
+        val = format_value_std(srf.value_hz, srf.std_hz, "Hz")
+        if srf.where == "in-band":
+            out.append(f"SRF:        {val}  (in band)")
+        elif srf.where == "above-band":
+            out.append(f"SRF:        above {format_eng(srf.bound_hz, 'Hz')} (top of the band); the {srf.source} puts it at {val}")
+        else:
+            out.append(f"SRF:        below {format_eng(srf.bound_hz, 'Hz')} (bottom of the band); the {srf.source} puts it at {val}")
+    merit = result.figures
+    if merit.z_at_srf is not None:
+        out.append(f"|Z| at SRF: {format_value_std(merit.z_at_srf.value, merit.z_at_srf.std, 'ohm')}")
+    if merit.q_peak is not None:
+        out.append(
+            f"Q peak:     {format_value_std(merit.q_peak.value, merit.q_peak.std)} at {format_eng(merit.q_peak.f_hz, 'Hz')}"
+            f"  [{merit.q_peak.definition}]"
+        )
+        if merit.q_model_at_q_peak is not None:
+            q = merit.q_model_at_q_peak
+            out.append(f"            {format_value_std(q.value, q.std)} there  [{q.definition}]")
+    if merit.esr_min is not None:
+        out.append(f"ESR min:    {format_value_std(merit.esr_min.value, merit.esr_min.std, 'ohm')} at {format_eng(merit.esr_min.f_hz, 'Hz')}")
+    if merit.d_at_f_min is not None:
+        d = merit.d_at_f_min
+        out.append(f"D:          {format_value_std(d.value, d.std)} at {format_eng(d.f_hz, 'Hz')}  [{d.definition}]")
+        if merit.d_model_at_f_min is not None:
+            dm = merit.d_model_at_f_min
+            out.append(f"            {format_value_std(dm.value, dm.std)} there  [{dm.definition}]")
+    band = fit.valid_band_hz
+    whole = band[0] == fit.f_min_hz and band[1] == fit.f_max_hz
+    out.append(
+        f"fit:        normalised RMS residual {fit.rms_normalized_residual:.3g} over {fit.points} points "
+        f"(1 = noise level; residuals on {fit.domain})"
+    )
+    if fit.rational_rms_normalized_residual is not None:
+        out.append(f"            rational model: {fit.rational_poles} poles, residual {fit.rational_rms_normalized_residual:.3g}")
+    if result.model != "rational":
+        if whole:
+            out.append("            the circuit holds over the whole band")
+        else:
+            out.append(f"            valid band {format_eng(band[0], 'Hz')} to {format_eng(band[1], 'Hz')}")
+    if result.spot:
+        out.append("spot readouts (from the " + ", ".join(sorted({s.source for s in result.spot})) + " model):")
+        out.append(f"  {'f':>10}  {'R':>22}  {'X':>22}  {'L_eff / C_eff':>24}  {'Q':>16}  {'D':>16}")
+        for sp in result.spot:
+            eff = sp.L_eff if sp.X.value >= 0 else sp.C_eff
+            out.append(
+                f"  {format_eng(sp.f_hz, 'Hz'):>10}  {format_value_std(sp.R.value, sp.R.std, 'ohm'):>22}  "
+                f"{format_value_std(sp.X.value, sp.X.std, 'ohm'):>22}  {format_value_std(eff.value, eff.std, eff.unit):>24}  "
+                f"{format_value_std(sp.Q.value, sp.Q.std):>16}  {format_value_std(sp.D.value, sp.D.std):>16}"
+                + ("" if sp.in_band else "  (outside the band)")
+            )
+    return out
+
+
+def step_summary(result) -> list[str]:
+    """Return the readable table of a step result, in engineering notation.
+
+    Parameters
+    ----------
+    result : StepResult
+        What `zfit.analyse_capture` returned.
+    """
+    def vs(v, s, unit):
+        return "n/a" if v is None else format_value_std(v, s, unit)
+
+    chans = result.output_name if result.input_name is None else f"{result.input_name} -> {result.output_name}"
+    out = [
+        f"capture:      {result.source}  ({chans}; {result.n_samples} samples at {format_eng(result.sample_rate_hz, 'Sa/s')})",
+        f"edges:        {result.edges} ({result.edges_rising} rising, {result.edges_falling} falling)",
+        f"levels:       {format_eng(result.levels_v[0], 'V')} / {format_eng(result.levels_v[1], 'V')} (output)"
+        # A histogram mode has no simple standard uncertainty; the samples' spread says how well it is known.
+        + f" [settled samples spread {format_eng(result.levels_noise_v[0], digits=2)} / "
+          f"{format_eng(result.levels_noise_v[1], 'V rms', digits=2)}]"
+        + ("" if result.input_levels_v is None else
+           f";  {format_eng(result.input_levels_v[0], 'V')} / {format_eng(result.input_levels_v[1], 'V')} (input)"),
+        f"10-90 %:      {vs(result.transition_10_90_s, result.transition_10_90_std_s, 's')}",
+        f"overshoot:    {percent_std(result.overshoot_pct, result.overshoot_std_pct)}",
+        f"time const.:  {vs(result.time_constant_s, result.time_constant_std_s, 's')}"
+        + (f"  [{result.time_constant_method}]" if result.time_constant_s is not None else ""),
+        f"  cross-check {vs(result.midpoint_time_constant_s, result.midpoint_time_constant_std_s, 's')}  [low-to-midpoint time / ln 2]",
+    ]
+    r = result.ringing
+    if r is None:
+        out.append("ringing:      none found")
+    else:
+        out.append(f"ringing:      {format_value_std(r.frequency_hz, r.frequency_std_hz, 'Hz')}  "
+                   f"(natural {format_value_std(r.natural_hz, r.natural_std_hz, 'Hz')}, damping ratio {r.damping_ratio:.3g})")
+    c = result.stray_capacitance
+    if c is not None:
+        out.append(f"stray C:      {format_value_std(c.value_f, c.std_f, 'F')}  [{c.method}]")
+        if c.inductance_h is not None:
+            out.append(f"  and L       {format_value_std(c.inductance_h, c.inductance_std_h, 'H')}  "
+                       f"(with the added C it rings at {format_eng(c.added_ringing_hz, 'Hz')})")
+    lo, hi = result.usable_band_hz
+    resp = result.response
+    out.append(f"usable band:  {format_eng(lo, 'Hz')} to {format_eng(hi, 'Hz')}  "
+               f"({resp.n_averages} segment(s) averaged, bins of {format_eng(1.0 / resp.segment_s, 'Hz')})")
+    if result.identification is not None:
+        out.append(f"impedance with the {format_eng(result.shunt_ohm, 'ohm')} sense resistor:")
+        out.extend("  " + line for line in identification_summary(result.identification))
+    # The notes say why a figure is n/a (no settled states, no slow edge to fit).
+    out.extend(f"note:         {n}" for n in result.notes)
+    return out
+
+
+def response_csv(result) -> str:
+    """Return the frequency response of a step result as CSV text.
+
+    Columns: ``f_hz``, ``mag_db``, ``phase_deg``, ``mag_db_std``,
+    ``phase_std_deg`` (standard uncertainties), ``coherence`` and ``usable``
+    (1 inside the usable band).
+
+    Parameters
+    ----------
+    result : StepResult
+        What `zfit.analyse_capture` returned.
+    """
+    r = result.response
+    cols = np.column_stack([r.f_hz, r.magnitude_db(), r.phase_deg(), r.magnitude_db_std(), r.phase_std_deg(),
+                            r.coherence, r.usable.astype(float)])
+    lines = [
+        f"# zfit step response of {result.source}: H = V_out/V_in ({r.method})",
+        f"# usable band {format_eng(r.band_hz[0], 'Hz', 6)} to {format_eng(r.band_hz[1], 'Hz', 6)}; "
+        "uncertainties are standard (k=1)",
+        "f_hz,mag_db,phase_deg,mag_db_std,phase_std_deg,coherence,usable",
+    ]
+    for row in cols:
+        lines.append(",".join(
+            "inf" if not np.isfinite(v) else f"{v:.9g}" for v in row[:-1]) + f",{int(row[-1])}")
+    return "\n".join(lines) + "\n"
+
+
+#: Version tag of the ``--json`` output.
+INFO_SCHEMA = "zfit.info/1"
+
+
+def info_dict(sweep) -> dict:
+    """Return the ``zfit.info/1`` JSON object describing `sweep`.
+
+    Keys: ``schema``, ``source``, ``data_format``, ``connection``,
+    ``reference_ohm`` (null for impedance data), ``points``, ``f_min_hz``,
+    ``f_max_hz``, ``z_min_ohm``, ``z_min_at_hz``, ``z_max_ohm``,
+    ``z_max_at_hz``, ``noise_model`` (text), ``noise`` (``{"on": "S"|"Z",
+    "rel": float, "floor": float}`` or null), ``sigma_rel_median``,
+    ``sigma_rel_max``, ``notes`` (list of str), ``warnings`` (list of str).
+
+    Parameters
+    ----------
+    sweep : Sweep
+        What `zfit.read_sweep` returned.
+    """
+    from ..io._sweep_file import conditioning_note
+
+    mag = np.abs(sweep.z_ohm)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        rel = sweep.sigma_ohm / mag
+    i_min, i_max = int(np.argmin(mag)), int(np.argmax(mag))
+    warning = conditioning_note(sweep)
+    noise = None
+    if sweep.noise is not None:
+        noise = {"on": "S" if sweep.s_param is not None else "Z", "rel": sweep.noise.rel, "floor": sweep.noise.floor}
+    return {
+        "schema": INFO_SCHEMA,
+        "source": sweep.source,
+        "data_format": sweep.data_format,
+        "connection": sweep.connection,
+        "reference_ohm": sweep.reference_ohm,
+        "points": sweep.n_points,
+        "f_min_hz": sweep.band_hz[0],
+        "f_max_hz": sweep.band_hz[1],
+        "z_min_ohm": float(mag[i_min]),
+        "z_min_at_hz": float(sweep.f_hz[i_min]),
+        "z_max_ohm": float(mag[i_max]),
+        "z_max_at_hz": float(sweep.f_hz[i_max]),
+        "noise_model": sweep.noise_model,
+        "noise": noise,
+        "sigma_rel_median": float(np.median(rel)),
+        "sigma_rel_max": float(np.max(rel)),
+        "sigma_rel_max_at_hz": float(sweep.f_hz[int(np.argmax(rel))]),
+        "notes": list(sweep.notes),
+        "warnings": [] if warning is None else [warning],
+    }
+
+
+def info_lines(d: dict) -> list[str]:
+    """Return the human-readable lines of ``zfit info`` for an `info_dict`."""
+    ref = "n/a (impedance data)" if d["reference_ohm"] is None else format_eng(d["reference_ohm"], "ohm")
+    rows = [
+        ("file", d["source"]),
+        ("format", d["data_format"]),
+        ("connection", d["connection"]),
+        ("reference", ref),
+        ("points", str(d["points"])),
+        ("band", f"{format_eng(d['f_min_hz'], 'Hz')} .. {format_eng(d['f_max_hz'], 'Hz')}"),
+        ("|Z| range", f"{format_eng(d['z_min_ohm'], 'ohm')} at {format_eng(d['z_min_at_hz'], 'Hz')}"
+                      f" .. {format_eng(d['z_max_ohm'], 'ohm')} at {format_eng(d['z_max_at_hz'], 'Hz')}"),
+        ("noise model", d["noise_model"]),
+        ("sigma/|Z|", f"median {100 * d['sigma_rel_median']:.3g} %, worst {100 * d['sigma_rel_max']:.3g} % "
+                      f"at {format_eng(d['sigma_rel_max_at_hz'], 'Hz')}"),
+    ]
+    rows += [("note", n) for n in d["notes"]]
+    width = max(len(k) for k, _ in rows)
+    return [f"{k:<{width}}  {v}" for k, v in rows]
