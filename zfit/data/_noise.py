@@ -81,7 +81,12 @@ class NoiseEstimate:
 def local_sigma(f_hz, values) -> np.ndarray:
     """Return the standard deviation of the noise on `values`, point by point.
 
-    At each point, a polynomial of degree 3 in ``log f`` is fitted by least
+    The scatter is measured twice, on the values and on their logarithm
+    (``ln|X| + j arg X``, whose noise is ``dX / X``: a power law ``f^n`` is a
+    straight line there, so sparse tables of capacitors and inductors are
+    followed where a polynomial in X itself is not); at each point the
+    smaller of the two is kept, the one whose smoother followed the data
+    better.  In each domain, at each point, a polynomial of degree 3 in ``log f`` is fitted by least
     squares to its 8 nearest neighbours (the point itself left out) and
     predicts the point; the residual ``r``, divided by ``sqrt(1 + h)``
     (``h`` the variance of the prediction in units of the noise variance),
@@ -115,9 +120,19 @@ def local_sigma(f_hz, values) -> np.ndarray:
     """
     x = np.log(np.asarray(f_hz, dtype=float))
     y = np.asarray(values, dtype=complex)
+    if x.size < 2 * _HALF + 1:
+        raise ValueError(f"local_sigma needs at least {2 * _HALF + 1} points, got {x.size}")
+    sigma = _scatter(x, y)
+    mag = np.abs(y)
+    if np.all(mag > 0):
+        logs = mag * _scatter(x, np.log(mag) + 1j * np.unwrap(np.angle(y)))
+        sigma = np.fmin(sigma, logs)
+    return sigma
+
+
+def _scatter(x: np.ndarray, y: np.ndarray) -> np.ndarray:
+    """Robust local sigma of `y` about a local cubic in `x` (see `local_sigma`)."""
     n = x.size
-    if n < 2 * _HALF + 1:
-        raise ValueError(f"local_sigma needs at least {2 * _HALF + 1} points, got {n}")
     # Neighbour windows (shifted inwards at the ends), centre left out.
     lo = np.clip(np.arange(n) - _HALF, 0, n - 2 * _HALF - 1)
     idx = lo[:, None] + np.arange(2 * _HALF + 1)[None, :]
@@ -149,9 +164,10 @@ def fitted_noise(f_hz, values, on: str) -> NoiseEstimate | None:
 
     The two terms ``rel`` and ``floor`` of ``sigma = rel * |X| + floor`` are
     fitted, non-negative, to `local_sigma` by least squares on the relative
-    misfit ``(model - sigma_i) / sigma_i``; points more than three times
-    above the first fit (where the local cubic could not follow the data)
-    are then left out and the fit repeated.
+    misfit ``(model - sigma_i) / model`` (iterated from a first pass
+    weighted by ``1 / sigma_i``); points more than three times above the
+    model (where the local fit could not follow the data) are left out of
+    the next pass.
 
     Parameters
     ----------
@@ -186,15 +202,21 @@ def fitted_noise(f_hz, values, on: str) -> NoiseEstimate | None:
         return None
     # A scale for the floor column keeps the two columns of like size.
     tiny = float(np.median(sig[ok]))
+    weight = 1.0 / sig
     coef = None
-    for _ in range(3):
-        a = np.column_stack([mag[ok] / sig[ok], tiny / sig[ok]])
-        coef, _res = nnls(a, np.ones(int(ok.sum())))
+    for _ in range(6):
+        # Relative misfit against the model of the last pass (against the
+        # estimates themselves at first): weighting by 1/sigma_i would pull
+        # the fit towards the estimates that came out low.
+        a = np.column_stack([mag[ok], np.full(int(ok.sum()), tiny)]) * weight[ok, None]
+        coef, _res = nnls(a, sig[ok] * weight[ok])
         model = coef[0] * mag + coef[1] * tiny
-        inlier = ok & (sig < 3.0 * model)
-        if inlier.sum() < MIN_POINTS_ESTIMATE // 2 or np.array_equal(inlier, ok):
+        if not np.all(model[ok] > 0):
             break
-        ok = inlier
+        weight = 1.0 / model
+        inlier = np.isfinite(sig) & (sig > 0) & (sig < 3.0 * model)
+        if inlier.sum() >= MIN_POINTS_ESTIMATE // 2:
+            ok = inlier
     rel, floor = float(coef[0]), float(coef[1] * tiny)
     if not (rel > 0 or floor > 0):
         return None

@@ -159,7 +159,7 @@ def _noise_for(rows, values, on: str, given: InstrumentNoise | None, default: In
         return est.noise, est, (
             f"noise estimated from the data ({est.points} points): sigma({on}) = {est.rel:.3g} * |{on}| + "
             f"{est.floor:.3g}{'' if on == 'S' else ' ohm'}",)
-    why = (f"only {rows.f_hz.size} points, fewer than {MIN_POINTS_ESTIMATE}, to estimate the noise from"
+    why = (f"only {rows.f_hz.size} points (fewer than {MIN_POINTS_ESTIMATE}): too few to estimate the noise from the data"
            if rows.f_hz.size < MIN_POINTS_ESTIMATE else
            "the data scatter less than any instrument does (smoothed or simulated?)")
     return default, NoiseEstimate(SOURCE_DEFAULT, default.rel, default.floor, on, band), (

@@ -28,7 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from .._errors import ZfitInputError
-from ._text import file_text
+from ._text import file_text, is_number
 
 __all__ = ["TouchstoneData", "read_touchstone", "looks_like_touchstone"]
 
@@ -81,17 +81,10 @@ def looks_like_touchstone(text: str) -> bool:
             continue
         if s.startswith("#"):
             toks = s[1:].lower().split()
-            return all(t in _UNITS or t in _PARAMS or t in _FORMATS or t == "r" or _is_number(t) for t in toks)
+            return all(t in _UNITS or t in _PARAMS or t in _FORMATS or t == "r" or is_number(t) for t in toks)
         return bool(_KEYWORD.match(s)) and s.lower().startswith("[version]")
     return False
 
-
-def _is_number(tok: str) -> bool:
-    try:
-        float(tok)
-    except ValueError:
-        return False
-    return True
 
 
 @dataclass
@@ -119,7 +112,7 @@ def _parse_option_line(body: str, path: Path, line: int) -> _Options:
             opt.fmt = t
         elif t == "r":
             values = []
-            while i + 1 < len(toks) and _is_number(toks[i + 1]):
+            while i + 1 < len(toks) and is_number(toks[i + 1]):
                 values.append(float(toks[i + 1]))
                 i += 1
             if not values:
@@ -335,7 +328,7 @@ def _bad_token(path: Path, data, idx):
     """Raise for the first token that is not a number (error path only)."""
     for j, b in enumerate(data):
         for tok in b.split():
-            if not _is_number(tok):
+            if not is_number(tok):
                 hint = " (Touchstone separates numbers by spaces, not commas or semicolons)" if ("," in tok or ";" in tok) else ""
                 raise ZfitInputError(f"{tok!r} is not a number{hint}", path, int(idx[j]) + 1)
     raise ZfitInputError("data cannot be read as numbers", path)
