@@ -174,6 +174,39 @@ def _header(preamble: list[str], delim, ncols: int):
     return last, None
 
 
+def _start_increment(preamble: list[str], delim, ncols: int):
+    """Return (names, start, increment) of a two-line header that carries the time base, or None.
+
+    Some scopes write ``X,CH1,CH2,Start,Increment,`` over
+    ``Sequence,Volt,Volt,0,4e-08``: channel names with the start time and
+    the sample interval appended, the first column a sample index.
+    """
+    rows = [ln for ln in preamble if ln.strip()]
+    for a, b in zip(rows[:-1], rows[1:]):
+        top = [x.strip().strip('"').lower() for x in _split_line(a.strip(), delim)]
+        low = [x.strip().strip('"') for x in _split_line(b.strip(), delim)]
+        if "increment" not in top:
+            continue
+        k = top.index("increment")
+        if k >= len(low) or _parse_number(low[k]) is None:
+            continue
+        start = 0.0
+        if "start" in top and top.index("start") < len(low):
+            start = _parse_number(low[top.index("start")]) or 0.0
+        names = [x.strip().strip('"') for x in _split_line(a.strip(), delim)][:ncols]
+        if len(names) == ncols and _parse_number(low[k]) > 0:
+            return names, float(start), float(_parse_number(low[k]))
+    return None
+
+
+def _is_sample_index(t: np.ndarray, name: str | None) -> bool:
+    """Whether a first column counts samples (consecutive integers) rather than giving seconds."""
+    if name and re.search(r"[\(\[/_\s](s|sec|seconds?|ms|us|ns)[\)\]]?$", name.strip(), re.IGNORECASE):
+        return False  # a time column in seconds that happens to step by 1 s
+    head = t[: 1 << 12]
+    return bool(head.size > 1 and np.all(np.diff(head) == 1.0) and np.all(head == np.round(head)))
+
+
 def _line_offsets(head: bytes, n_lines: int) -> int:
     pos = 0
     for _ in range(n_lines):
@@ -317,6 +350,9 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
     preamble = lines[:start]
     meta = _metadata(preamble, delim)
     names, _units = _header(preamble, delim, ncols)
+    layout = _start_increment(preamble, delim, ncols)
+    if layout is not None and names is None:
+        names = layout[0]
     notes = []
     if delim is None:
         notes.append("columns separated by white space")
@@ -330,6 +366,8 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
         if rate is not None and rate[1] > 0:
             meta_dt = (rate[0], 1.0 / rate[1])
     meta_t0 = _meta_value(meta, _T0_KEYS)
+    if layout is not None:
+        meta_dt, meta_t0 = ("Increment", layout[2]), ("Start", layout[1])
 
     tcol = None
     guessed = False
@@ -390,7 +428,17 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
         if d0.size and np.all(np.abs(d0 - step_) < 0.01 * step_):
             tcol = 0
     t0 = 0.0
-    if tcol is not None:
+    if tcol is not None and _is_sample_index(cols[tcol], names[tcol]):
+        step_ = dt_given if dt_given is not None else (meta_dt[1] if meta_dt is not None else None)
+        if step_ is None:
+            raise ZfitInputError(
+                f"column {tcol + 1} ({names[tcol]!r}) counts samples (0, 1, 2, ...) rather than time, and the file "
+                "gives no sample interval; give the sample interval (dt)", path, start + 1)
+        origin = meta_t0[1] if (meta_t0 is not None and dt_given is None) else 0.0
+        dt, t0 = float(step_), origin + float(cols[tcol][0]) * float(step_)
+        notes.append(f"column {tcol + 1} ({names[tcol]!r}) is a sample index; sample interval {format_eng(dt, 's', 6)} "
+                     + ("given by the caller" if dt_given is not None else f"from the header's {meta_dt[0]!r}"))
+    elif tcol is not None:
         if guessed and not np.all(np.diff(cols[tcol][: 1 << 12]) >= 0):
             raise ZfitInputError("no time column (column 1 does not increase) and no sample interval in the header; "
                                  "give the sample interval (dt)", path)
