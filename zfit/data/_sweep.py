@@ -256,6 +256,7 @@ def cleaned_rows(f_hz, z_ohm, sigma_ohm=None, *, source="", connection="impedanc
 
 
 def _merged_repeats(f, z, sig, s, ln, source, notes):
+    """Sorted rows with each run of one frequency made one row (see `cleaned_rows`)."""
     start = np.flatnonzero(np.concatenate([[True], np.diff(f) != 0]))
     group = np.cumsum(np.concatenate([[True], np.diff(f) != 0])) - 1
     count = np.diff(np.append(start, f.size))
@@ -271,13 +272,12 @@ def _merged_repeats(f, z, sig, s, ln, source, notes):
     # measurement: dropped, with a warning (the file was assembled by hand?).
     identical = (count > 1) & (spread <= 1e-12 * np.abs(zm))
     merged = (count > 1) & ~identical
-    extra_lines = ln[~np.concatenate([[True], np.diff(f) != 0])]
     if identical.any():
         dup_lines = [int(x) for x, g in zip(ln, group) if identical[g]]
         firsts = {int(ln[i]) for i in start[identical]}
         dropped = [x for x in dup_lines if x not in firsts]
         shown = ", ".join(str(x) for x in dropped[:5]) + (" ..." if len(dropped) > 5 else "")
-        msg = f"{len(dropped)} repeated frequencies dropped (line {shown}); identical copies of the row before"
+        msg = f"{len(dropped)} repeated frequencies dropped (line {shown}); identical copies of an earlier row"
         notes.append(msg)
         warnings.warn(f"{source}: {msg}", MeasurementWarning, stacklevel=4)
     if merged.any():
@@ -288,7 +288,6 @@ def _merged_repeats(f, z, sig, s, ln, source, notes):
             f"repeats, their spread (largest {100 * float(np.max(spread[merged] / np.abs(zm[merged]))):.2g} % of |Z|) "
             "added to the uncertainty"
         )
-    del extra_lines
     sm = mean(s)
     sigm = None if sig is None else np.sqrt(np.bincount(group, sig**2, start.size) / count + spread**2)
     return f[start], zm, sigm, sm, ln[start], spread
