@@ -214,8 +214,16 @@ def test_monte_carlo_sigma(tmp_path, connection):
 def test_two_port_without_connection_names_the_three(tmp_path):
     from zfit import ZfitInputError
 
+    # Clear data: the connection is taken from them, with a note.
+    sw = read_sweep(DATA / "v1_series_ma_mhz.s2p")
+    assert sw.connection == "series-thru"
+    assert any("looks like series-thru" in n for n in sw.notes)
+    # Ambiguous data (S21 = S11 = 0.5: neither identity holds): refused, naming the three.
+    lines = ["# MHz S RI R 50"] + [f"{1 + k} 0.3 0.1 0.5 0 0.5 0 0.3 0.1" for k in range(20)]
+    path = tmp_path / "odd.s2p"
+    path.write_text("\n".join(lines) + "\n")
     with pytest.raises(ZfitInputError) as err:
-        read_sweep(DATA / "v1_series_ma_mhz.s2p")
+        read_sweep(path)
     text = str(err.value)
-    for word in ("reflection", "shunt-thru", "series-thru", "S11 + S21 = 1", "looks like series-thru"):
+    for word in ("reflection", "shunt-thru", "series-thru", "S11 + S21 = 1", "fits neither closely"):
         assert word in text

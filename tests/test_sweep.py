@@ -37,17 +37,48 @@ def test_make_sweep_names_line_of_nan():
         make_sweep(f, z, s, source="x.csv", lines=np.arange(10, 30))
 
 
-def test_make_sweep_rejects_active_one_port():
+def test_make_sweep_flags_active_points_and_keeps_them():
     f, z, s = _arrays()
-    z[7] = -1.0 + 0j
-    with pytest.raises(ZfitInputError, match="not a passive one-port"):
-        make_sweep(f, z, s, source="x.csv")
+    z[7] = -1.0 + 0j  # Re Z = -1 ohm against sigma = 1 mohm: active beyond any noise
+    with pytest.warns(MeasurementWarning, match=r"1 of 20 points look active \(Re Z < 0 beyond their uncertainty\) "
+                      r"at 29.76k? ?Hz: a calibration residual or a phase error"):
+        sw = make_sweep(f, z, s, source="x.csv")
+    assert sw.n_points == 20 and sw.active.sum() == 1 and sw.active[7]
+    assert sw.z_ohm[7] == -1.0 and sw.sigma_ohm[7] == 1e-3  # kept, with its uncertainty
+    assert any("look active" in n for n in sw.notes)
 
 
-def test_make_sweep_needs_ten_points():
-    f, z, s = _arrays(9)
-    with pytest.raises(ZfitInputError, match="only 9 frequency points"):
-        make_sweep(f, z, s, source="x.csv")
+def test_make_sweep_refuses_only_when_every_point_is_active():
+    f, z, s = _arrays()
+    with pytest.raises(ZfitInputError, match="every point looks active .* nothing passive to identify"):
+        make_sweep(f, -z.real + 1j * z.imag, s, source="x.csv")
+
+
+def test_make_sweep_needs_two_points():
+    f, z, s = _arrays(2)
+    assert make_sweep(f, z, s, source="x.csv").n_points == 2
+    with pytest.raises(ZfitInputError, match=r"only 1 distinct frequency point\(s\); at least 2"):
+        make_sweep(f[:1], z[:1], s[:1], source="x.csv")
+
+
+def test_make_sweep_copies_the_callers_arrays():
+    f, z, s = _arrays()
+    sw = make_sweep(f, z, s, source="x.csv")
+    assert f.flags.writeable and z.flags.writeable and not sw.z_ohm.flags.writeable
+    z[0] = 99.0
+    assert sw.z_ohm[0] != 99.0
+
+
+def test_make_sweep_merges_repeats_with_their_spread():
+    f, z, s = _arrays()
+    # A segmented sweep: the join frequency measured twice, 1 % apart.
+    f2, z2, s2 = np.insert(f, 10, f[10]), np.insert(z, 10, z[10] * 1.01), np.insert(s, 10, s[10])
+    sw = make_sweep(f2, z2, s2, source="x.csv")
+    assert sw.n_points == 20
+    # Mean of the two, spread = rms distance from the mean = |dz|/2 (definition).
+    np.testing.assert_allclose(sw.z_ohm[10], z[10] * 1.005, rtol=1e-12)
+    np.testing.assert_allclose(sw.sigma_ohm[10], np.hypot(1e-3, 0.005 * abs(z[10])), rtol=1e-12)
+    assert any("1 repeated frequencies (1 extra row(s), at" in n and "merged" in n for n in sw.notes)
 
 
 @pytest.mark.parametrize("connection", ["reflection", "shunt-thru", "series-thru"])

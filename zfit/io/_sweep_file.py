@@ -11,11 +11,14 @@ from pathlib import Path
 
 import numpy as np
 
+from dataclasses import replace
+
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise, conditioning_warning, impedance_from_s, sigma_z_from_s
 from .._errors import ZfitInputError
-from ..data._sweep import Sweep, make_sweep
+from ..data._noise import MIN_POINTS_ESTIMATE, SOURCE_DEFAULT, SOURCE_GIVEN, NoiseEstimate, fitted_noise
+from ..data._sweep import Sweep, cleaned_rows, sweep_from_rows
 
-__all__ = ["read_sweep", "default_noise", "sweep_kind", "conditioning_note",
+__all__ = ["read_sweep", "default_noise", "sweep_kind", "conditioning_note", "two_port_connection",
            "S_NOISE_DEFAULT", "TABLE_NOISE_DEFAULT", "TOUCHSTONE_EXTENSIONS", "TABLE_EXTENSIONS"]
 
 #: Default noise on a measured S-parameter: 1e-3 relative (about 0.009 dB and
@@ -28,6 +31,12 @@ S_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-5)
 #: basic accuracy of bench impedance analysers and LCR meters) plus 0.1 mohm
 #: (residual of a compensated short).  Common practice, not a datasheet value.
 TABLE_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-4)
+
+#: Below this relative scatter the data are smoother than any instrument
+#: measures (1e-5 is 0.0001 dB and 0.0006 degrees): simulated, averaged to
+#: the last digit, or smoothed, and their scatter says nothing of the
+#: accuracy; the default noise model is kept.
+MIN_CREDIBLE_REL = 1e-5
 
 #: Touchstone extensions and their port count (the letter names the
 #: parameter type in 1.x: S, Y, Z, G or H; ".ts" is for version 2.0).
@@ -98,26 +107,32 @@ def read_sweep(path, connection: str | None = None, *, noise: InstrumentNoise | 
         uses S11), ``.ts`` (Touchstone 2.0, one or two ports), or a table
         (``.csv``, ``.tsv``, ``.txt``, ``.dat``, ``.prn``, ``.tab``).
     connection : {'reflection', 'shunt-thru', 'series-thru'}, optional
-        How the analyser saw the part.  Implied for one-port files; required
-        for two-port files; must be None (or ``'impedance'``) for tables.
+        How the analyser saw the part.  Implied for one-port files; for
+        two-port files, taken from the data when they say clearly which
+        transmission connection it is (`two_port_connection`, with a note);
+        must be None (or ``'impedance'``) for tables.
     noise : InstrumentNoise, optional
         Noise of the measurement (on S for Touchstone files, on Z for
-        tables); None takes `default_noise`.
+        tables).  None: estimated from the scatter of the data
+        (`zfit.data._noise.fitted_noise`), or `default_noise` when the sweep
+        has too few points or no scatter; `Sweep.noise_estimate` says which.
     columns : str, optional
         Column mapping of a table (see `zfit.io._table.parse_columns`).
 
     Returns
     -------
     Sweep
-        With `sigma_ohm` propagated from `noise` through the connection
-        formula (first order, ``|dZ/dS| sigma_S``), the reference impedance
-        and a description of the data format.
+        Cleaned (`zfit.data._sweep.cleaned_rows`: sorted, repeats merged,
+        active points flagged), with `sigma_ohm` propagated from the noise
+        model through the connection formula (first order,
+        ``|dZ/dS| sigma_S``), the reference impedance and a description of
+        the data format.
 
     Raises
     ------
     ZfitInputError
         Naming the file and line for anything that cannot be read as a
-        passive one-port sweep.
+        one-port sweep.
 
     References
     ----------
@@ -129,11 +144,26 @@ def read_sweep(path, connection: str | None = None, *, noise: InstrumentNoise | 
     kind = sweep_kind(path)
     if not path.is_file():
         raise ZfitInputError("no such file" if not path.exists() else "is not a file", path)
-    if noise is None:
-        noise = default_noise(path)
     if kind == "touchstone":
         return _sweep_from_touchstone(path, connection, noise, columns)
     return _sweep_from_table(path, connection, noise, columns)
+
+
+def _noise_for(rows, values, on: str, given: InstrumentNoise | None, default: InstrumentNoise):
+    """The noise model of cleaned rows: given, else estimated, else the default (with a note)."""
+    band = (float(rows.f_hz[0]), float(rows.f_hz[-1]))
+    if given is not None:
+        return given, NoiseEstimate(SOURCE_GIVEN, given.rel, given.floor, on, band), ()
+    est = fitted_noise(rows.f_hz, values, on)
+    if est is not None and est.rel + est.floor / max(float(np.median(np.abs(values))), 1e-300) >= MIN_CREDIBLE_REL:
+        return est.noise, est, (
+            f"noise estimated from the data ({est.points} points): sigma({on}) = {est.rel:.3g} * |{on}| + "
+            f"{est.floor:.3g}{'' if on == 'S' else ' ohm'}",)
+    why = (f"only {rows.f_hz.size} points (fewer than {MIN_POINTS_ESTIMATE}): too few to estimate the noise from the data"
+           if rows.f_hz.size < MIN_POINTS_ESTIMATE else
+           "the data scatter less than any instrument does (smoothed or simulated?)")
+    return default, NoiseEstimate(SOURCE_DEFAULT, default.rel, default.floor, on, band), (
+        f"{why}: the default noise model is used (give --noise-rel/--noise-floor for the instrument's)",)
 
 
 def _head(path: Path) -> str:
@@ -142,6 +172,8 @@ def _head(path: Path) -> str:
     if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
         # UTF-16 text (Windows bench software): decode it, a cut last character aside.
         return raw[: len(raw) // 2 * 2].decode("utf-16", errors="replace")
+    if raw[:3] == b"\xef\xbb\xbf":
+        raw = raw[3:]  # UTF-8 byte-order mark (Windows editors)
     return raw.decode("latin-1")
 
 
@@ -193,7 +225,7 @@ def _check_is_touchstone(path: Path) -> None:
     raise ZfitInputError("no data: the file is empty or only comments", path)
 
 
-def _sweep_from_touchstone(path: Path, connection, noise: InstrumentNoise, columns) -> Sweep:
+def _sweep_from_touchstone(path: Path, connection, noise: InstrumentNoise | None, columns) -> Sweep:
     from ._touchstone import read_touchstone
 
     if columns is not None:
@@ -201,6 +233,7 @@ def _sweep_from_touchstone(path: Path, connection, noise: InstrumentNoise, colum
     _check_is_touchstone(path)
     ext = path.suffix.lower()
     data = read_touchstone(path, TOUCHSTONE_EXTENSIONS[ext])
+    notes = list(data.notes)
     if data.n_ports == 1:
         if connection not in (None, "reflection"):
             raise ZfitInputError(
@@ -210,11 +243,14 @@ def _sweep_from_touchstone(path: Path, connection, noise: InstrumentNoise, colum
         s = data.s[:, 0, 0]
     elif data.n_ports == 2:
         if connection is None:
-            raise ZfitInputError(
-                "a two-port file needs --connection: " + _CONNECTION_HELP + "; to tell them apart: a series part "
-                "gives S11 + S21 = 1, a shunt part S21 - S11 = 1" + _connection_hint(data.s),
-                path,
-            )
+            connection, evidence = two_port_connection(data.s)
+            if connection is None:
+                raise ZfitInputError(
+                    "a two-port file needs --connection: " + _CONNECTION_HELP + "; to tell them apart: a series part "
+                    "gives S11 + S21 = 1, a shunt part S21 - S11 = 1" + evidence,
+                    path,
+                )
+            notes.append(f"connection {connection} taken from the data ({evidence}); give --connection to override")
         if connection not in NA_CONNECTIONS:
             raise ZfitInputError(f"unknown connection {connection!r}; use {_CONNECTION_HELP}", path)
         s = data.s[:, 0, 0] if connection == "reflection" else data.s[:, 1, 0]
@@ -233,23 +269,26 @@ def _sweep_from_touchstone(path: Path, connection, noise: InstrumentNoise, colum
         raise ZfitInputError(f"{what}: the impedance is infinite", path, int(data.lines[i]))
     with np.errstate(all="ignore"):
         z = impedance_from_s(s, connection, z0)
-        sigma = sigma_z_from_s(s, connection, z0, noise)
+    rows = cleaned_rows(data.f_hz, z, source=str(path), connection=connection, lines=data.lines, notes=notes,
+                        s_param=s)
+    s = rows.s_param
+    noise, record, more = _noise_for(rows, s, "S", noise, S_NOISE_DEFAULT)
+    with np.errstate(all="ignore"):
+        # Repeats are merged on S: the impedance of the mean S.
+        rows = replace(rows, z_ohm=impedance_from_s(s, connection, z0), notes=rows.notes + more)
+        sigma = np.hypot(sigma_z_from_s(s, connection, z0, noise), rows.spread_ohm)
     port = "S11" if connection == "reflection" else "S21"
-    return make_sweep(
-        data.f_hz, z, sigma,
-        source=str(path),
-        connection=connection,
-        lines=data.lines,
-        notes=data.notes,
-        s_param=s,
+    return sweep_from_rows(
+        rows, sigma,
         reference_ohm=z0,
         data_format=data.data_format + f"; {port} used",
-        noise_model=noise.describe("S") + f", carried to Z through the {connection} formula",
+        noise_model=noise.describe("S") + f", carried to Z through the {connection} formula ({record.source})",
         noise=noise,
+        noise_estimate=record,
     )
 
 
-def _sweep_from_table(path: Path, connection, noise: InstrumentNoise, columns) -> Sweep:
+def _sweep_from_table(path: Path, connection, noise: InstrumentNoise | None, columns) -> Sweep:
     from ._table import read_table
     from ._touchstone import looks_like_touchstone
 
@@ -262,30 +301,50 @@ def _sweep_from_table(path: Path, connection, noise: InstrumentNoise, columns) -
             "is a Touchstone file although its extension says table: rename it .s1p or .s2p", path
         )
     data = read_table(path, columns)
-    z = data.z_ohm
+    rows = cleaned_rows(data.f_hz, data.z_ohm, source=str(path), connection="impedance", lines=data.lines,
+                        notes=data.notes)
+    noise, record, more = _noise_for(rows, rows.z_ohm, "Z", noise, TABLE_NOISE_DEFAULT)
+    rows = replace(rows, notes=rows.notes + more)
     with np.errstate(all="ignore"):
-        sigma = noise.sigma(z)
-    return make_sweep(
-        data.f_hz, z, sigma,
-        source=str(path),
-        connection="impedance",
-        lines=data.lines,
-        notes=data.notes,
+        sigma = np.hypot(noise.sigma(rows.z_ohm), rows.spread_ohm)
+    return sweep_from_rows(
+        rows, sigma,
         data_format=data.data_format,
-        noise_model=noise.describe("Z"),
+        noise_model=noise.describe("Z") + f" ({record.source})",
         noise=noise,
+        noise_estimate=record,
     )
 
 
-def _connection_hint(s) -> str:
+def two_port_connection(s) -> tuple[str | None, str]:
+    """Return the transmission connection a two-port measurement shows, and the evidence.
+
+    A part in series between two matched ports has ``S11 + S21 = 1``; a part
+    from the through line to ground has ``S21 - S11 = 1`` (both from the
+    ABCD matrices of a series impedance and a shunt admittance, Pozar 2012,
+    Table 4.1).  The connection is named when the median misfit of one
+    identity is below 0.05 and below a fifth of the other's.
+
+    Parameters
+    ----------
+    s : array_like of complex, shape (n, 2, 2)
+        The two-port S-parameters.
+
+    Returns
+    -------
+    connection : {'series-thru', 'shunt-thru'} or None
+        None when the data fit neither identity clearly.
+    evidence : str
+        The misfits, in words, for a note or an error message.
+    """
     s11, s21 = s[:, 0, 0], s[:, 1, 0]
     series = float(np.median(np.abs(s11 + s21 - 1)))
     shunt = float(np.median(np.abs(s21 - s11 - 1)))
     if series < 0.05 and series < 0.2 * shunt:
-        return f" (this file: |S11 + S21 - 1| ~ {series:.2g}, it looks like series-thru)"
+        return "series-thru", f"|S11 + S21 - 1| ~ {series:.2g} where |S21 - S11 - 1| ~ {shunt:.2g}: it looks like series-thru"
     if shunt < 0.05 and shunt < 0.2 * series:
-        return f" (this file: |S21 - S11 - 1| ~ {shunt:.2g}, it looks like shunt-thru)"
-    return " (this file fits neither closely: check the fixture)"
+        return "shunt-thru", f"|S21 - S11 - 1| ~ {shunt:.2g} where |S11 + S21 - 1| ~ {series:.2g}: it looks like shunt-thru"
+    return None, f" (this file: |S11 + S21 - 1| ~ {series:.2g}, |S21 - S11 - 1| ~ {shunt:.2g}, it fits neither closely: check the fixture)"
 
 
 def conditioning_note(sweep: Sweep) -> str | None:

@@ -38,7 +38,7 @@ from pathlib import Path
 import numpy as np
 
 from .._errors import ZfitInputError
-from ._text import file_text
+from ._text import file_text, is_number
 
 __all__ = ["TableData", "read_table", "parse_columns", "QUANTITIES", "PAIRS"]
 
@@ -274,13 +274,6 @@ def _split_items(text: str):
 # ------------------------------------------------------------------ reading
 
 
-def _is_number(tok: str) -> bool:
-    try:
-        float(tok)
-    except ValueError:
-        return False
-    return True
-
 
 def _fields(line: str, delim: str | None) -> list[str]:
     if delim is None:
@@ -355,7 +348,7 @@ def read_table(path, columns: str | None = None) -> TableData:
         dc = d != "," and any("," in t for t in toks)
         if dc:
             toks = [t.replace(",", ".") for t in toks]
-        if len(toks) >= 2 and all(_is_number(t) for t in toks):
+        if len(toks) >= 2 and all(is_number(t) for t in toks):
             first, delim, dname, decimal_comma = k, d, name, dc
             break
     if first is None:
@@ -488,7 +481,7 @@ def _locate_bad_row(path, rows, idx, delim):
         if len(toks) != n0:
             raise ZfitInputError(f"{len(toks)} columns where the first data row has {n0}", path, int(idx[j]) + 1)
         for t in toks:
-            if not _is_number(t):
+            if not is_number(t):
                 what = "an empty field" if t == "" else f"{t!r} is not a number"
                 raise ZfitInputError(f"{what} (in a data row)", path, int(idx[j]) + 1)
     raise ZfitInputError("the data rows cannot be read as numbers", path, int(idx[0]) + 1)

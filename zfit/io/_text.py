@@ -6,7 +6,7 @@ from pathlib import Path
 
 from .._errors import ZfitInputError
 
-__all__ = ["file_text"]
+__all__ = ["file_text", "is_number"]
 
 
 def file_text(path: Path, kind: str) -> str:
@@ -41,3 +41,24 @@ def file_text(path: Path, kind: str) -> str:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError:
         return raw.decode("latin-1")
+
+
+def is_number(token: str, decimal_comma: bool = False) -> bool:
+    """Return whether a field of a text file reads as a number.
+
+    Parameters
+    ----------
+    token : str
+        The field; surrounding blanks and double quotes (spreadsheet exports)
+        are ignored.
+    decimal_comma : bool
+        Read a comma as the decimal mark (``4,7e-6``).
+    """
+    t = token.strip().strip('"')
+    if decimal_comma:
+        t = t.replace(",", ".")
+    try:
+        float(t)
+    except ValueError:
+        return False
+    return True

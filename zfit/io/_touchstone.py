@@ -28,8 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from .._errors import ZfitInputError
-from ._text import file_text
-from .._units import format_eng
+from ._text import file_text, is_number
 
 __all__ = ["TouchstoneData", "read_touchstone", "looks_like_touchstone"]
 
@@ -82,17 +81,10 @@ def looks_like_touchstone(text: str) -> bool:
             continue
         if s.startswith("#"):
             toks = s[1:].lower().split()
-            return all(t in _UNITS or t in _PARAMS or t in _FORMATS or t == "r" or _is_number(t) for t in toks)
+            return all(t in _UNITS or t in _PARAMS or t in _FORMATS or t == "r" or is_number(t) for t in toks)
         return bool(_KEYWORD.match(s)) and s.lower().startswith("[version]")
     return False
 
-
-def _is_number(tok: str) -> bool:
-    try:
-        float(tok)
-    except ValueError:
-        return False
-    return True
 
 
 @dataclass
@@ -120,7 +112,7 @@ def _parse_option_line(body: str, path: Path, line: int) -> _Options:
             opt.fmt = t
         elif t == "r":
             values = []
-            while i + 1 < len(toks) and _is_number(toks[i + 1]):
+            while i + 1 < len(toks) and is_number(toks[i + 1]):
                 values.append(float(toks[i + 1]))
                 i += 1
             if not values:
@@ -187,7 +179,8 @@ def read_touchstone(path, n_ports: int | None = None) -> TouchstoneData:
     ZfitInputError
         With the file and line, for anything the file does not do as the
         specification says: unknown options, bad numbers, rows of the wrong
-        length, frequencies that are not increasing, missing data.
+        length, missing data.  Frequencies out of order or repeated are
+        kept as they are: `zfit.data._sweep.cleaned_rows` sorts and merges.
 
     References
     ----------
@@ -305,7 +298,6 @@ def _v1_result(path, opt, values, row_lines, n_ports, r0, notes) -> TouchstoneDa
     if n_ports == 2:
         # 1.x two-port order is X11 X21 X12 X22: column-major.
         m = m.transpose(0, 2, 1)
-    _check_increasing(path, f, row_lines)
     extra = ""
     if opt.param != "s":
         # 1.x Z and Y data are normalised to R (spec 1.1, "Option line"):
@@ -336,7 +328,7 @@ def _bad_token(path: Path, data, idx):
     """Raise for the first token that is not a number (error path only)."""
     for j, b in enumerate(data):
         for tok in b.split():
-            if not _is_number(tok):
+            if not is_number(tok):
                 hint = " (Touchstone separates numbers by spaces, not commas or semicolons)" if ("," in tok or ";" in tok) else ""
                 raise ZfitInputError(f"{tok!r} is not a number{hint}", path, int(idx[j]) + 1)
     raise ZfitInputError("data cannot be read as numbers", path)
@@ -377,20 +369,6 @@ def _numbers_wrapped(path, data, idx, counts, per_row, n_ports):
     except ValueError:
         _bad_token(path, data, idx)
     return flat.reshape(-1, per_row), idx[pos] + 1
-
-
-def _check_increasing(path: Path, f: np.ndarray, row_lines: np.ndarray) -> None:
-    # The specification requires increasing frequencies; a decreasing one in a
-    # two-port 1.x file would otherwise be taken for the start of noise data.
-    bad = np.flatnonzero(np.diff(f) <= 0)
-    if bad.size:
-        i = int(bad[0]) + 1
-        what = "repeats" if f[i] == f[i - 1] else "is below"
-        raise ZfitInputError(
-            f"frequency {format_eng(f[i], 'Hz', 9)} {what} the previous row's {format_eng(f[i - 1], 'Hz', 9)}; Touchstone data must be in increasing frequency",
-            path,
-            int(row_lines[i]),
-        )
 
 
 def _scan_v2(path: Path, body: list[str]):
@@ -473,7 +451,6 @@ def _read_v2(path: Path, body: list[str]) -> TouchstoneData:
             raise ZfitInputError(
                 f"[Number of Frequencies] says {n_expected} but the network data has {values.shape[0]} rows", path, nline
             )
-    _check_increasing(path, values[:, 0] * _UNITS[opt.unit], row_lines)
     if "reference" in keys:
         rline = keys["reference"][0]
         j = rline - 1
@@ -530,9 +507,10 @@ def _skrf_touchstone(path: Path):
 
     source = str(path)
     with open(path, "rb") as fh:
-        utf16 = fh.read(2) in (b"\xff\xfe", b"\xfe\xff")
-    if utf16:
-        # scikit-rf guesses among 8-bit encodings only: hand it the decoded text.
+        head = fh.read(3)
+    if head[:2] in (b"\xff\xfe", b"\xfe\xff") or head == b"\xef\xbb\xbf":
+        # scikit-rf guesses among 8-bit encodings only and takes a byte-order
+        # mark for text: hand it the decoded text.
         import io
 
         source = io.StringIO(file_text(path, "Touchstone text file"))

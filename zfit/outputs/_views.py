@@ -316,8 +316,11 @@ def info_dict(sweep) -> dict:
     ``reference_ohm`` (null for impedance data), ``points``, ``f_min_hz``,
     ``f_max_hz``, ``z_min_ohm``, ``z_min_at_hz``, ``z_max_ohm``,
     ``z_max_at_hz``, ``noise_model`` (text), ``noise`` (``{"on": "S"|"Z",
-    "rel": float, "floor": float}`` or null), ``sigma_rel_median``,
-    ``sigma_rel_max``, ``notes`` (list of str), ``warnings`` (list of str).
+    "rel": float, "floor": float, "source": "given"|"estimated from the
+    data"|"default", "f_min_hz", "f_max_hz": the band of the estimate,
+    "points": the points it used}`` or null), ``sigma_rel_median``,
+    ``sigma_rel_max``, ``active_points`` (points flagged as looking active),
+    ``notes`` (list of str), ``warnings`` (list of str).
 
     Parameters
     ----------
@@ -334,6 +337,9 @@ def info_dict(sweep) -> dict:
     noise = None
     if sweep.noise is not None:
         noise = {"on": "S" if sweep.s_param is not None else "Z", "rel": sweep.noise.rel, "floor": sweep.noise.floor}
+        if sweep.noise_estimate is not None:
+            est = sweep.noise_estimate.to_dict()
+            noise.update(source=est["source"], f_min_hz=est["f_min_hz"], f_max_hz=est["f_max_hz"], points=est["points"])
     return {
         "schema": INFO_SCHEMA,
         "source": sweep.source,
@@ -352,6 +358,7 @@ def info_dict(sweep) -> dict:
         "sigma_rel_median": float(np.median(rel)),
         "sigma_rel_max": float(np.max(rel)),
         "sigma_rel_max_at_hz": float(sweep.f_hz[int(np.argmax(rel))]),
+        "active_points": int(np.count_nonzero(sweep.active)),
         "notes": list(sweep.notes),
         "warnings": [] if warning is None else [warning],
     }
@@ -370,6 +377,8 @@ def info_lines(d: dict) -> list[str]:
         ("|Z| range", f"{format_eng(d['z_min_ohm'], 'ohm')} at {format_eng(d['z_min_at_hz'], 'Hz')}"
                       f" .. {format_eng(d['z_max_ohm'], 'ohm')} at {format_eng(d['z_max_at_hz'], 'Hz')}"),
         ("noise model", d["noise_model"]),
+        *([("noise", f"{d['noise']['source']}, over {format_eng(d['noise']['f_min_hz'], 'Hz')} .. "
+                     f"{format_eng(d['noise']['f_max_hz'], 'Hz')}")] if d["noise"] and "source" in d["noise"] else []),
         ("sigma/|Z|", f"median {100 * d['sigma_rel_median']:.3g} %, worst {100 * d['sigma_rel_max']:.3g} % "
                       f"at {format_eng(d['sigma_rel_max_at_hz'], 'Hz')}"),
     ]
