@@ -30,34 +30,47 @@ INFO_FILES = (
 )
 
 
-def _normalised(text: str, folder: Path) -> str:
+def _normalised(text: str, sweeps: Path) -> str:
     import zfit
 
-    for root in (str(DEMO), str(folder)):
+    for root in (str(sweeps),):
         text = text.replace(root + os.sep, "<dir>/").replace(root, "<dir>")
     text = re.sub(r'("zfit_version": )"[^"]*"', r'\1"<version>"', text)
     return text.replace(f"zfit {zfit.__version__}", "zfit <version>")
 
 
 def contract_outputs(folder: Path) -> dict[str, str]:
-    """Return {file name: normalised text} of the demo's contract outputs."""
+    """Return {file name: normalised text} of the demo's contract outputs.
+
+    The demo files are copied to a folder whose path has the same length on
+    every machine (``/tmp/zfit-contract-XXXXXXXX``): a netlist header wraps
+    the source path at a fixed width, so the path's length must not vary.
+    """
+    import shutil
+    import tempfile
+
     from zfit.cli._app import app
 
     runner = CliRunner()
     old = os.getcwd()
-    os.chdir(folder)
+    sweeps = Path(tempfile.mkdtemp(prefix="zfit-contract-", dir="/tmp"))
     try:
-        r = runner.invoke(app, ["demo", "--out", "demo"])
+        for p in DEMO.iterdir():
+            if p.is_file():
+                shutil.copy2(p, sweeps / p.name)
+        os.chdir(folder)
+        r = runner.invoke(app, ["demo", "--sweeps", str(sweeps), "--out", "demo"])
         assert r.exit_code == 0, r.output
         for name, options in INFO_FILES:
-            r = runner.invoke(app, ["info", str(DEMO / name), *options, "--json", f"info-{name}.json"])
+            r = runner.invoke(app, ["info", str(sweeps / name), *options, "--json", f"info-{name}.json"])
             assert r.exit_code == 0, r.output
+        out = {}
+        for path in sorted([*(folder / "demo").iterdir(), *folder.glob("info-*.json")]):
+            if path.suffix in (".json", ".cir", ".s1p"):
+                out[path.name] = _normalised(path.read_text(encoding="utf-8"), sweeps)
     finally:
         os.chdir(old)
-    out = {}
-    for path in sorted([*(folder / "demo").iterdir(), *folder.glob("info-*.json")]):
-        if path.suffix in (".json", ".cir", ".s1p"):
-            out[path.name] = _normalised(path.read_text(encoding="utf-8"), folder)
+        shutil.rmtree(sweeps, ignore_errors=True)
     return out
 
 
