@@ -1,0 +1,486 @@
+"""Figures read from the measurement itself, whatever model describes it.
+
+At every frequency: R, X, |Z|, phase, L_eff = X/omega (inductive) or
+C_eff = -1/(omega X) (capacitive), Q = |X|/R, D = R/|X| (ESR = R for a
+capacitor), each with its standard uncertainty propagated from the
+per-point noise of Z. The self-resonance where Im Z changes sign in band,
+and the low-frequency L or C, are read from the same data.
+
+Smoothing
+---------
+R and X are smoothed by a weighted local quadratic in ln f (a
+Savitzky-Golay-type local polynomial [1]_ with the tricube kernel and
+inverse-variance weights of local regression [2]_). The window is a span in
+log-frequency (``half_span_decades``, default 0.04 decade either side),
+widened where needed to hold at least two neighbours on each side, so that a
+linear sweep (dense at the top, sparse at the bottom) is smoothed over the
+same relative bandwidth everywhere. The estimate is linear in the data,
+``y_hat = sum a_i y_i``, so its variance ``sum a_i^2 s_i^2`` carries the
+variance reduction of the smoothing. Where the local quadratic does not hold
+(reduced chi-square of the window above 4: a resonance narrower than the
+window), the raw point and its raw uncertainty are used instead, so that the
+smoothing never trades noise for bias.
+
+Resolution
+----------
+A loss figure (R, ESR, D, 1/Q) whose value is below twice its standard
+uncertainty is below resolution: it is reported as an upper bound
+``max(value, 0) + 2 std``, never as a negative number.
+
+Self-resonance rule
+-------------------
+A sign change of the smoothed X counts as the self-resonance when (a) it
+has the family's direction (+ to - for an inductor's parallel resonance,
+- to + for a capacitor's series resonance); (b) the sign persists on
+``persist`` points on each side of the crossing and on each side at least
+one of them is beyond 3 standard uncertainties (not a crossing of X within
+its own noise); (c) |Z| there is above the low-frequency trend ``|R_0 + j omega L_0|``
+extrapolated to the crossing (inductor) or below ``|R_0 + 1/(j omega C_0)|``
+(capacitor), R_0, L_0, C_0 read at the low end. The contrast factor is 1,
+not more: a lossy part (a bead, an electrolytic whose ESR exceeds its
+reactance at resonance) has a genuine but flat resonance, and crossings
+made by noise or by a calibration offset near a short are already rejected
+by (b). The crossing is refined by a weighted quadratic fit of
+``Im(1/Z)`` (inductor) or ``Im Z`` (capacitor), both smooth and nearly
+linear through their zero, over up to three raw points each side; the
+root's uncertainty is propagated from the fit covariance through the slope.
+
+References
+----------
+.. [1] A. Savitzky and M. J. E. Golay, "Smoothing and differentiation of data
+   by simplified least squares procedures", Anal. Chem. 36(8), 1627-1639,
+   1964, doi:10.1021/ac60214a047.
+.. [2] W. S. Cleveland, "Robust locally weighted regression and smoothing
+   scatterplots", J. Amer. Statist. Assoc. 74(368), 829-836, 1979,
+   doi:10.1080/01621459.1979.10481038.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = [
+    "MeasuredValue",
+    "MeasuredFigures",
+    "MeasuredSRF",
+    "LowFrequencyValue",
+    "measured_figures",
+    "spot_figures",
+    "measured_srf",
+    "low_frequency_value",
+]
+
+_LN10 = math.log(10.0)
+_RESOLVED_K = 2.0  # a loss figure below 2 std is below resolution
+_NOISE_K = 3.0  # a reactance beyond 3 std is resolved
+_ZRATIO = 1.0  # |Z| at a resonance against the low-frequency trend
+
+
+@dataclass(frozen=True)
+class MeasuredValue:
+    """A figure read from the measurement, or an upper bound on it.
+
+    Attributes
+    ----------
+    name : str
+        What it is (``"R"``, ``"D"``, ``"L"``, ...).
+    unit : str
+        SI unit (``""`` for ratios).
+    value : float
+        The estimate (may be below zero for a loss figure that is not resolved;
+        use `upper_bound` then).
+    std : float
+        Its standard uncertainty.
+    resolved : bool
+        False when the figure is below resolution.
+    upper_bound : float or None
+        For an unresolved loss figure, ``max(value, 0) + 2 std``: report
+        'below resolution, < upper_bound'.
+    """
+
+    name: str
+    unit: str
+    value: float
+    std: float
+    resolved: bool = True
+    upper_bound: float | None = None
+
+
+def _loss_value(name, unit, value, std) -> MeasuredValue:
+    if np.isfinite(value) and value >= _RESOLVED_K * std:
+        return MeasuredValue(name, unit, float(value), float(std))
+    bound = max(float(value), 0.0) + _RESOLVED_K * float(std) if np.isfinite(value) else math.inf
+    return MeasuredValue(name, unit, float(value), float(std), False, bound)
+
+
+def _local_weights(x, s, x0, half_span, min_points=5):
+    """Return the weights a (y_hat(x0) = a @ y) of the local quadratic, and the window."""
+    d = np.abs(x - x0)
+    order = np.argsort(d)
+    # At least `min_points` points (two neighbours each side in the interior).
+    h = max(half_span, d[order[min(min_points - 1, x.size - 1)]] * 1.0001)
+    idx = np.nonzero(d <= h)[0]
+    u = (x[idx] - x0) / h
+    w = (1.0 - np.abs(u) ** 3) ** 3 + 1e-3  # tricube, never exactly zero at the edge
+    w = w / s[idx] ** 2
+    deg = min(2, idx.size - 1)
+    A = np.vander(u, deg + 1, increasing=True)
+    M = A.T @ (w[:, None] * A)
+    a = np.linalg.solve(M, (A * w[:, None]).T)[0]
+    return idx, a, A, w
+
+
+def _power_slope(x, y, s):
+    """Weighted log-log slope of |y| over the points, 0 where y changes sign or vanishes."""
+    if x.size < 2 or not (np.all(y > 0) or np.all(y < 0)):
+        return 0.0
+    wm = (y / s) ** 2
+    xm = np.sum(wm * x) / np.sum(wm)
+    den = np.sum(wm * (x - xm) ** 2)
+    return float(np.sum(wm * (x - xm) * np.log(np.abs(y))) / den) if den > 0 else 0.0
+
+
+def _smooth_part(x, y, s, x0, half_span, min_points):
+    """Return (y_hat, var, chi2, dof) of one real part at x0.
+
+    The data are first divided by their local power law ``(f/f0)^k`` (k the
+    weighted log-log slope over the window, held fixed; the factor is 1 at
+    f0), so that the quadratic has only the departure from it to follow: a
+    capacitor's 1/f or an inductor's f is then followed exactly even over
+    the sparse low end of a linear sweep.
+    """
+    idx0 = _local_weights(x, s, x0, half_span, min_points)[0]
+    k = _power_slope(x[idx0], y[idx0], s[idx0])
+    scale = np.exp(-k * (x - x0))
+    y, s = y * scale, s * scale
+    idx, a, A, w = _local_weights(x, s, x0, half_span, min_points)
+    var = float(np.sum(a**2 * s[idx] ** 2))
+    dof = idx.size - A.shape[1]
+    sw = np.sqrt(w)
+    coef = np.linalg.lstsq(A * sw[:, None], y[idx] * sw, rcond=None)[0]
+    chi2 = float(np.sum(((y[idx] - A @ coef) / s[idx]) ** 2))
+    return float(a @ y[idx]), var, chi2, dof
+
+
+def _smooth(x, r, xr, s_part, x0, half_span, min_points=5):
+    """Return (R_hat, X_hat, var) at x0 and the reduced chi-square of the window."""
+    rh, vr, cr, dof = _smooth_part(x, r, s_part, x0, half_span, min_points)
+    xh, vx, cx, _ = _smooth_part(x, xr, s_part, x0, half_span, min_points)
+    # R and X share the weights' support; the larger variance is stated for both (circular noise).
+    chi = (cr + cx) / (2 * dof) if dof > 0 else math.nan
+    return rh, xh, max(vr, vx), chi
+
+
+@dataclass(frozen=True)
+class MeasuredFigures:
+    """Per-frequency figures of the measured impedance (SI units).
+
+    Attributes
+    ----------
+    f_hz : numpy.ndarray
+        Frequencies.
+    r_ohm, x_ohm : numpy.ndarray
+        Smoothed resistance and reactance.
+    std_ohm : numpy.ndarray
+        Standard uncertainty of each of R and X (the same for both: the noise
+        of Z is circular).
+    smoothed : numpy.ndarray of bool
+        False where the local quadratic did not hold and the raw point is used.
+    half_span_decades : float
+        The smoothing half-window in decades.
+    source : str
+        Always ``"measurement"``.
+    """
+
+    f_hz: np.ndarray
+    r_ohm: np.ndarray
+    x_ohm: np.ndarray
+    std_ohm: np.ndarray
+    smoothed: np.ndarray
+    half_span_decades: float
+    source: str = "measurement"
+
+    @property
+    def omega(self) -> np.ndarray:
+        """Angular frequency, rad/s."""
+        return 2.0 * math.pi * self.f_hz
+
+    @property
+    def abs_z_ohm(self) -> np.ndarray:
+        """|Z| (its standard uncertainty is `std_ohm`)."""
+        return np.hypot(self.r_ohm, self.x_ohm)
+
+    @property
+    def phase_rad(self) -> np.ndarray:
+        """Phase of Z in radians."""
+        return np.arctan2(self.x_ohm, self.r_ohm)
+
+    @property
+    def phase_std_rad(self) -> np.ndarray:
+        """Standard uncertainty of the phase."""
+        return self.std_ohm / self.abs_z_ohm
+
+    @property
+    def l_eff_h(self) -> np.ndarray:
+        """X/omega where inductive (X > 0), NaN elsewhere."""
+        return np.where(self.x_ohm > 0, self.x_ohm / self.omega, np.nan)
+
+    @property
+    def l_eff_std_h(self) -> np.ndarray:
+        """Standard uncertainty of `l_eff_h`."""
+        return np.where(self.x_ohm > 0, self.std_ohm / self.omega, np.nan)
+
+    @property
+    def c_eff_f(self) -> np.ndarray:
+        """-1/(omega X) where capacitive (X < 0), NaN elsewhere."""
+        with np.errstate(divide="ignore"):
+            return np.where(self.x_ohm < 0, -1.0 / (self.omega * self.x_ohm), np.nan)
+
+    @property
+    def c_eff_std_f(self) -> np.ndarray:
+        """Standard uncertainty of `c_eff_f`."""
+        with np.errstate(divide="ignore"):
+            return np.where(self.x_ohm < 0, self.std_ohm / (self.omega * self.x_ohm**2), np.nan)
+
+    @property
+    def d(self) -> np.ndarray:
+        """Dissipation factor R/|X|."""
+        return self.r_ohm / np.abs(self.x_ohm)
+
+    @property
+    def d_std(self) -> np.ndarray:
+        """Standard uncertainty of `d` (first order)."""
+        return np.abs(self.d) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2)
+
+    @property
+    def q(self) -> np.ndarray:
+        """Quality factor |X|/R."""
+        return np.abs(self.x_ohm) / self.r_ohm
+
+    @property
+    def q_std(self) -> np.ndarray:
+        """Standard uncertainty of `q` (first order)."""
+        return np.abs(self.q) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2)
+
+    def resistance(self, i: int) -> MeasuredValue:
+        """R (= ESR of a capacitor) at point `i`, or its bound when below resolution."""
+        return _loss_value("R", "ohm", self.r_ohm[i], self.std_ohm[i])
+
+    def dissipation(self, i: int) -> MeasuredValue:
+        """D = R/|X| at point `i`, or its bound when below resolution."""
+        return _loss_value("D", "", self.d[i], self.d_std[i])
+
+
+def _arrays(f_hz, z_ohm, sigma_ohm):
+    f = np.asarray(f_hz, float)
+    z = np.asarray(z_ohm, complex)
+    s = np.broadcast_to(np.asarray(sigma_ohm, float), f.shape) / math.sqrt(2.0)  # per part
+    return f, z, np.asarray(s, float)
+
+
+def measured_figures(f_hz, z_ohm, sigma_ohm, half_span_decades: float = 0.04) -> MeasuredFigures:
+    """Return the smoothed per-frequency figures of a measured impedance.
+
+    Parameters
+    ----------
+    f_hz, z_ohm : array_like
+        Frequencies (increasing) and complex impedance.
+    sigma_ohm : array_like
+        Circular complex standard deviation of Z per point (`Sweep.sigma_ohm`).
+    half_span_decades : float
+        Half-width of the smoothing window in decades (widened to hold two
+        neighbours on each side).
+    """
+    f, z, s = _arrays(f_hz, z_ohm, sigma_ohm)
+    x = np.log(f)
+    h = half_span_decades * _LN10
+    out = np.empty((4, f.size))
+    ok = np.ones(f.size, bool)
+    for i in range(f.size):
+        rh, xh, var, chi = _smooth(x, z.real, z.imag, s, x[i], h)
+        if not np.isfinite(chi) or chi > 4.0:
+            rh, xh, var, ok[i] = z.real[i], z.imag[i], s[i] ** 2, False
+        out[:, i] = rh, xh, math.sqrt(var), 0.0
+    return MeasuredFigures(f, out[0], out[1], out[2], ok, float(half_span_decades))
+
+
+def spot_figures(f_hz, z_ohm, sigma_ohm, at_hz: float, half_span_decades: float = 0.04) -> dict:
+    """Return R, X, L_eff or C_eff, Q, D at one frequency in band by local interpolation.
+
+    Returns
+    -------
+    dict
+        ``{"f_hz", "R", "X", "L" or "C", "Q", "D"}``: MeasuredValue records
+        (R and D as bounds when below resolution).
+    """
+    f, z, s = _arrays(f_hz, z_ohm, sigma_ohm)
+    if not f[0] <= at_hz <= f[-1]:
+        raise ValueError(f"spot frequency {at_hz:g} Hz is outside the measured band {f[0]:g}..{f[-1]:g} Hz")
+    rh, xh, var, chi = _smooth(np.log(f), z.real, z.imag, s, math.log(at_hz), half_span_decades * _LN10)
+    if not np.isfinite(chi) or chi > 4.0:
+        # The smoothing window does not hold a local quadratic: interpolate through the
+        # three nearest points instead (no smoothing, no variance reduction).
+        rh, xh, var, _ = _smooth(np.log(f), z.real, z.imag, s, math.log(at_hz), 0.0, min_points=3)
+    sd = math.sqrt(var)
+    w = 2.0 * math.pi * at_hz
+    out = {"f_hz": float(at_hz), "R": _loss_value("R", "ohm", rh, sd), "X": MeasuredValue("X", "ohm", xh, sd)}
+    if xh > 0:
+        out["L"] = MeasuredValue("L", "H", xh / w, sd / w, abs(xh) > _NOISE_K * sd)
+    else:
+        out["C"] = MeasuredValue("C", "F", -1.0 / (w * xh), sd / (w * xh**2), abs(xh) > _NOISE_K * sd)
+    d = rh / abs(xh)
+    d_sd = abs(d) * sd * math.sqrt(1.0 / xh**2 + 1.0 / rh**2) if rh != 0 else sd / abs(xh)
+    out["D"] = _loss_value("D", "", d, d_sd)
+    out["Q"] = MeasuredValue("Q", "", 1.0 / d if d > 0 else math.inf, d_sd / d**2 if d > 0 else math.inf, out["D"].resolved)
+    return out
+
+
+@dataclass(frozen=True)
+class LowFrequencyValue:
+    """L (inductor) or C (capacitor) at the low end of the band.
+
+    Attributes
+    ----------
+    family : {'inductor', 'capacitor'} or None
+        From the sign of Im Z at low frequency; None when not resolved.
+    name : {'L', 'C'} or None
+    value, std : float
+        In H or F (NaN when not resolved).
+    f_hz : float
+        The frequency it holds at (the lowest frequency where X is resolved).
+    resolved : bool
+        False when X is within its noise over the low end ('not resolved').
+    """
+
+    family: str | None
+    name: str | None
+    value: float
+    std: float
+    f_hz: float
+    resolved: bool
+
+
+def low_frequency_value(f_hz, z_ohm, sigma_ohm, figures: MeasuredFigures | None = None) -> LowFrequencyValue:
+    """Return L or C at the low end of the band, or 'not resolved'.
+
+    The family is the sign of the smoothed X at the lowest frequency where it
+    is beyond 3 standard uncertainties, looked for in the lowest tenth of the
+    band in log-frequency; an inductive sweep is an inductor, a capacitive
+    one a capacitor.
+    """
+    fig = figures if figures is not None else measured_figures(f_hz, z_ohm, sigma_ohm)
+    f, x, sd = fig.f_hz, fig.x_ohm, fig.std_ohm
+    lim = math.exp(math.log(f[0]) + 0.1 * (math.log(f[-1]) - math.log(f[0])))
+    for i in np.nonzero(f <= max(lim, f[min(2, f.size - 1)]))[0]:
+        if abs(x[i]) > _NOISE_K * sd[i]:
+            w = 2.0 * math.pi * f[i]
+            if x[i] > 0:
+                return LowFrequencyValue("inductor", "L", x[i] / w, sd[i] / w, float(f[i]), True)
+            return LowFrequencyValue("capacitor", "C", -1.0 / (w * x[i]), sd[i] / (w * x[i] ** 2), float(f[i]), True)
+    return LowFrequencyValue(None, None, math.nan, math.nan, float(f[0]), False)
+
+
+@dataclass(frozen=True)
+class MeasuredSRF:
+    """The self-resonance read from the sign change of Im Z.
+
+    Attributes
+    ----------
+    value_hz, std_hz : float
+        The resonance and its standard uncertainty (NaN when not in band).
+    kind : {'parallel', 'series'}
+        Parallel for an inductor, series for a capacitor.
+    in_band : bool
+        False: no accepted crossing; `lower_bound_hz` is then the top of
+        the band ('above the measured band: lower bound only').
+    lower_bound_hz : float or None
+    rejected_hz : tuple of float
+        Sign changes seen and rejected by the rule (module docstring).
+    """
+
+    value_hz: float
+    std_hz: float
+    kind: str
+    in_band: bool
+    lower_bound_hz: float | None = None
+    rejected_hz: tuple = ()
+
+
+def _refined_root(f, y, sy, i):
+    """Root of a weighted quadratic (or line) fit of y(ln f) around the bracket (i, i+1)."""
+    lo, hi = max(0, i - 2), min(f.size, i + 4)
+    u0 = 0.5 * (math.log(f[i]) + math.log(f[i + 1]))
+    u = np.log(f[lo:hi]) - u0
+    deg = 2 if hi - lo >= 5 else 1
+    A = np.vander(u, deg + 1, increasing=True)
+    W = 1.0 / sy[lo:hi] ** 2
+    cov = np.linalg.inv(A.T @ (W[:, None] * A))
+    c = cov @ (A.T @ (W * y[lo:hi]))
+    roots = np.roots(c[::-1])
+    roots = roots[np.isreal(roots)].real
+    a, b = math.log(f[i]) - u0, math.log(f[i + 1]) - u0
+    inside = roots[(roots >= a - 1e-12) & (roots <= b + 1e-12)]
+    if inside.size == 0:  # fall back to the chord through the bracket
+        t = y[i] / (y[i] - y[i + 1])
+        r = a + t * (b - a)
+        dr = (b - a) * math.hypot((1 - t) * sy[i], t * sy[i + 1]) / abs(y[i] - y[i + 1])
+        return math.exp(u0 + r), math.exp(u0 + r) * dr
+    r = float(inside[0])
+    slope = sum(k * c[k] * r ** (k - 1) for k in range(1, deg + 1))
+    J = -np.array([r**k for k in range(deg + 1)]) / slope
+    dr = math.sqrt(float(J @ cov @ J))
+    return math.exp(u0 + r), math.exp(u0 + r) * dr
+
+
+def measured_srf(f_hz, z_ohm, sigma_ohm, persist: int = 3, figures: MeasuredFigures | None = None) -> MeasuredSRF:
+    """Return the self-resonance where Im Z changes sign in band, or a lower bound.
+
+    Parameters
+    ----------
+    f_hz, z_ohm, sigma_ohm : array_like
+        The sweep (sigma: circular complex standard deviation of Z).
+    persist : int
+        Points on each side over which the sign must persist.
+    figures : MeasuredFigures, optional
+        The smoothed figures, when already computed.
+    """
+    f, z, s = _arrays(f_hz, z_ohm, sigma_ohm)
+    fig = figures if figures is not None else measured_figures(f, z, np.sqrt(2.0) * s)
+    lf = low_frequency_value(f, z, None, figures=fig)
+    if not lf.resolved:
+        return MeasuredSRF(math.nan, math.nan, "parallel", False, float(f[-1]))
+    inductor = lf.family == "inductor"
+    kind = "parallel" if inductor else "series"
+    x, sd = fig.x_ohm, fig.std_ohm
+    r0 = fig.r_ohm[np.searchsorted(f, lf.f_hz)]
+    rejected = []
+    sign = 1.0 if inductor else -1.0
+    for i in np.nonzero((sign * x[:-1] > 0) & (sign * x[1:] <= 0))[0]:
+        before = slice(max(0, i - persist + 1), i + 1)
+        after = slice(i + 1, min(f.size, i + 1 + persist))
+        fc = math.sqrt(f[i] * f[i + 1])
+        wc = 2.0 * math.pi * fc
+        persists = (
+            np.all(sign * x[before] > 0)
+            and np.all(sign * x[after] < 0)
+            and np.any(np.abs(x[before]) > _NOISE_K * sd[before])
+            and np.any(np.abs(x[after]) > _NOISE_K * sd[after])
+        )
+        zc = 0.5 * (fig.abs_z_ohm[i] + fig.abs_z_ohm[i + 1])
+        if inductor:
+            contrast = zc > _ZRATIO * abs(complex(r0, wc * lf.value))
+        else:
+            contrast = zc < abs(complex(r0, -1.0 / (wc * lf.value))) / _ZRATIO
+        if not (persists and contrast):
+            rejected.append(float(fc))
+            continue
+        if inductor:  # Im(1/Z) is smooth through a parallel resonance; its sigma is sigma_Z/|Z|^2
+            y, sy = (1.0 / z).imag, s / np.abs(z) ** 2
+        else:
+            y, sy = z.imag, s
+        val, std = _refined_root(f, y, sy, int(i))
+        return MeasuredSRF(float(val), float(std), kind, True, None, tuple(rejected))
+    return MeasuredSRF(math.nan, math.nan, kind, False, float(f[-1]), tuple(rejected))
