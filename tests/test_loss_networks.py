@@ -8,7 +8,8 @@ import pytest
 from ngspice import run_ac
 from zfit.fit._loss_circuits import ConstantLossCapacitor, RelaxingCoreInductor, ResonantSections, SkinEffectInductor
 from zfit.fit._loss_networks import loss_network
-from zfit.outputs._netlist import netlist_impedance, spice_value
+from zfit.fit._realisation import network_impedance
+from zfit.outputs._netlist import spice_value
 
 CASES = [
     (SkinEffectInductor(), [22e-6, 0.04, 50e3, 8e-12], (100.0, 40e6)),
@@ -50,4 +51,4 @@ def test_ngspice_reproduces_the_network(circuit, p, band):
     )
     f, z = run_ac(lines, band[0], band[1], points_per_decade=20)
     # ngspice is the independent reference simulator; 0.1 % over the band (issue 12).
-    np.testing.assert_allclose(z, netlist_impedance(net.elements, f), rtol=1e-3)
+    np.testing.assert_allclose(z, network_impedance(net.elements, f), rtol=1e-3)

@@ -29,7 +29,7 @@ Fitted over the band where it is not:
 
 Each network's impedance is compared with the form on a fine grid over the
 band; `LossNetwork.max_rel_error` states the accuracy reached (target
-0.1 %). Elements are `NetlistElement` records between pins ``a`` and ``b``,
+0.1 %). Elements are `NetworkElement` records between pins ``a`` and ``b``,
 so that outputs/_netlist.py writes and checks them as any other netlist.
 
 References
@@ -48,7 +48,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import nnls
 
-from ..outputs._netlist import NetlistElement, netlist_impedance
+from ._realisation import NetworkElement, network_impedance
 from ._loss_circuits import ConstantLossCapacitor, RelaxingCoreInductor, ResonantSections, SkinEffectInductor
 
 __all__ = ["LossNetwork", "loss_network"]
@@ -62,7 +62,7 @@ class LossNetwork:
 
     Attributes
     ----------
-    elements : tuple of NetlistElement
+    elements : tuple of NetworkElement
         Between pins ``a`` and ``b`` and internal nodes ``n1, n2, ...``.
     band_hz : tuple of float
         The band it was made for.
@@ -95,7 +95,7 @@ class _Chain:
         for i, block in enumerate(self.blocks):
             for kind, value, role in block:
                 count[kind] += 1
-                out.append(NetlistElement(f"{kind}{count[kind]}", nodes[i], nodes[i + 1], float(value), role))
+                out.append(NetworkElement(f"{kind}{count[kind]}", nodes[i], nodes[i + 1], float(value), role))
         return out
 
 
@@ -144,7 +144,7 @@ def _constant_d_blocks(c, d, band):
 def _check(elements, circuit, p, band):
     f = np.geomspace(band[0], band[1], 1000)
     zf = circuit.impedance(np.asarray(p, float), f)
-    zn = netlist_impedance(elements, f)
+    zn = network_impedance(elements, f)
     return float(np.max(np.abs(zn - zf) / np.abs(zf)))
 
 
@@ -190,14 +190,14 @@ def loss_network(circuit, p, band_hz) -> LossNetwork:
         c_inf, branches = _constant_d_blocks(v["C"], v["D"], band)
         # The dielectric sits between n2 and b; each R_k-C_k branch has its own internal node d_k.
         esl = chain.elements()[-1]
-        elements = chain.elements()[:-1] + [NetlistElement(esl.name, esl.node_a, "n2", esl.value, esl.role)]
+        elements = chain.elements()[:-1] + [NetworkElement(esl.name, esl.node_a, "n2", esl.value, esl.role)]
         last_a, last_b = "n2", "b"
         if c_inf > 0:
-            elements.append(NetlistElement("C1", last_a, last_b, c_inf, "capacitance, instantaneous part"))
+            elements.append(NetworkElement("C1", last_a, last_b, c_inf, "capacitance, instantaneous part"))
         for k, (r, ck, t) in enumerate(branches, start=1):
             mid = f"d{k}"
-            elements.append(NetlistElement(f"R{100 + k}", last_a, mid, r, f"dielectric relaxation, tau {t:.4g} s"))
-            elements.append(NetlistElement(f"C{100 + k}", mid, last_b, ck, f"dielectric relaxation, tau {t:.4g} s"))
+            elements.append(NetworkElement(f"R{100 + k}", last_a, mid, r, f"dielectric relaxation, tau {t:.4g} s"))
+            elements.append(NetworkElement(f"C{100 + k}", mid, last_b, ck, f"dielectric relaxation, tau {t:.4g} s"))
         return LossNetwork(tuple(elements), band, _check(elements, circuit, p, band), False)
     elif isinstance(circuit, ResonantSections):
         chain.add(("R", v["R_dc"], "winding resistance"))
@@ -208,5 +208,5 @@ def loss_network(circuit, p, band_hz) -> LossNetwork:
         raise ValueError(f"no network for {getattr(circuit, 'topology', circuit)!r}")
     elements = chain.elements()
     if shunt_c is not None:
-        elements.append(NetlistElement("C900", "a", "b", shunt_c, "parallel (winding) capacitance C_p"))
+        elements.append(NetworkElement("C900", "a", "b", shunt_c, "parallel (winding) capacitance C_p"))
     return LossNetwork(tuple(elements), band, _check(elements, circuit, p, band), exact)
