@@ -38,7 +38,7 @@ import numpy as np
 
 from zfit.fit._circuits import circuit_impedance
 from zfit.data._connection import InstrumentNoise, impedance_from_s, sigma_z_from_s
-from zfit.data._simulate import measured_s
+from zfit.fit._simulate import measured_s
 from zfit._errors import MeasurementWarning
 from zfit.identification._pipeline import identify
 from zfit.data._sweep import make_sweep

@@ -17,7 +17,8 @@ import zfit
 from ngspice import run_ac
 from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import ZfitInputError
-from zfit.data._fixture import compensate_from_files, compensated, corrected_impedance, fixture_on_grid, port_extended
+from zfit.data._fixture import compensated, corrected_impedance, fixture_on_grid, port_extended
+from zfit.io._standards import compensate_from_files
 from zfit.data._sweep import make_sweep
 
 F0, F1, PPD = 1e3, 1e8, 30

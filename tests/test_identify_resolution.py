@@ -18,7 +18,7 @@ import pytest
 from typer.testing import CliRunner
 
 from ngspice import run_ac
-from zfit.data._simulate import simulated_sweep
+from zfit.fit._simulate import simulated_sweep
 from zfit.fit._circuits import circuit_impedance
 from zfit.data._connection import InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 from zfit._errors import MeasurementWarning

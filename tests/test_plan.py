@@ -20,7 +20,7 @@ from typer.testing import CliRunner
 from zfit.cli._app import app
 from zfit._errors import MeasurementWarning, ZfitInputError
 from zfit.identification._pipeline import identify
-from zfit.data._simulate import simulated_sweep
+from zfit.fit._simulate import simulated_sweep
 from zfit.identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, plan_measurement
 
 CAP = ("capacitor", {"C": 100e-9, "ESR": 5e-3, "ESL": 0.5e-9})

@@ -69,7 +69,7 @@ _EXPORTS = {
     "plan_measurement": "identification._plan",
     "Plan": "identification._plan",
     "port_extended": "data._fixture",
-    "compensate_from_files": "data._fixture",
+    "compensate_from_files": "io._standards",
     "corrected_impedance": "data._fixture",
     "resolution_limits": "fit._fisher",
     "ground_loop_warning": "identification._diagnostics",

@@ -47,7 +47,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .._errors import ZfitInputError
-from ._parameters import OPTIONAL_KEY, PARAMETER_KEYS, REQUIRED_KEYS, UNITS
+from .._parameters import OPTIONAL_KEY, PARAMETER_KEYS, REQUIRED_KEYS, UNITS
 
 __all__ = [
     "Circuit",

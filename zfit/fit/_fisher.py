@@ -36,7 +36,7 @@ import numpy as np
 
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise, s_from_impedance, sigma_z_from_s
 from .._units import format_eng
-from ._parameters import PARAMETER_KEYS, RESOLUTION_KIND
+from .._parameters import PARAMETER_KEYS, RESOLUTION_KIND
 
 __all__ = [
     "PARAMETER_KEYS",

@@ -3,7 +3,7 @@
 The part's equivalent circuit is simulated through each way of measuring it
 (network analyser in reflection, shunt-thru and series-thru, and an
 impedance-analyser table of stated accuracy) by the one simulated measurement
-(`zfit.data._simulate`), with the same noise model the readers give real
+(`zfit.fit._simulate`), with the same noise model the readers give real
 files (`zfit.data._connection.InstrumentNoise`), and identified
 by the same `zfit.identify`.  For each connection the plan gives the
 expected standard uncertainty of every parameter, its resolution limit
@@ -41,8 +41,8 @@ from types import MappingProxyType
 import numpy as np
 
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise
-from ..data._simulate import SIMULATED_CONNECTIONS, simulated_sweep
-from ..fit._parameters import OPTIONAL_KEY, REQUIRED_KEYS, UNITS
+from ..fit._simulate import SIMULATED_CONNECTIONS, simulated_sweep
+from .._parameters import OPTIONAL_KEY, REQUIRED_KEYS, UNITS
 from .._errors import FitError, ZfitInputError
 from .._units import format_eng
 

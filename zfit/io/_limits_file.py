@@ -35,7 +35,7 @@ from pathlib import Path
 
 from .._errors import ZfitInputError
 from .._units import format_eng, parse_quantity
-from ..fit._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
+from .._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
 
 __all__ = [
     "Limit",

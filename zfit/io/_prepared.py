@@ -72,7 +72,7 @@ def prepared_sweep(
     if load_value is not None and load is None:
         raise ZfitInputError("--load-value goes with --load (the measurement of that load standard)", path)
     if open_ is not None or short is not None or load is not None:
-        from ..data._fixture import compensate_from_files
+        from ._standards import compensate_from_files
 
         sweep = compensate_from_files(
             sweep,

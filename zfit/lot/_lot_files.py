@@ -12,7 +12,7 @@ import io
 from typing import Sequence
 
 from .._json import json_text
-from ..fit._parameters import PARAMETERS
+from .._parameters import PARAMETERS
 from ..io._limits_file import Limits, figure_name
 from ._part_summary import SPOT_READOUTS
 from ._rows import PartRow

@@ -2,7 +2,7 @@
 
 For tests, benchmarks and trying ``zfit batch`` without a bench.  The
 measurement itself (connection, noise) is the one simulator,
-`zfit.data._simulate`; this module only picks the file kind from each part's
+`zfit.fit._simulate`; this module only picks the file kind from each part's
 name and writes the text.
 """
 
@@ -16,7 +16,7 @@ import numpy as np
 
 from .._atomic import write_atomic
 from ..data._connection import InstrumentNoise
-from ..data._simulate import measured_impedance, measured_s, measured_two_port
+from ..fit._simulate import measured_impedance, measured_s, measured_two_port
 
 __all__ = ["SimulatedPart", "write_simulated_lot"]
 

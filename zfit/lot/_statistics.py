@@ -19,7 +19,7 @@ import math
 from dataclasses import dataclass
 from typing import Sequence
 
-from ..fit._parameters import PARAMETERS, UNITS
+from .._parameters import PARAMETERS, UNITS
 from ..io._limits_file import SPOT_UNITS, Limits
 from ._conformity import VERDICTS
 from ._rows import PartRow

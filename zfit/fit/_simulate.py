@@ -22,7 +22,7 @@ import math
 import numpy as np
 
 from .._errors import ZfitInputError
-from ._connection import NA_CONNECTIONS, InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
+from ..data._connection import NA_CONNECTIONS, InstrumentNoise, impedance_from_s, s_from_impedance, sigma_z_from_s
 
 __all__ = [
     "SIMULATED_CONNECTIONS",
@@ -163,8 +163,8 @@ def simulated_sweep(model, params, connection, f_hz, noise, reference_ohm=50.0, 
     Sweep
         Sigma computed from the (noisy) measured values, as a reader would.
     """
-    from ..fit._circuits import circuit_impedance
-    from ._sweep import Sweep
+    from ._circuits import circuit_impedance
+    from ..data._sweep import Sweep
 
     f = np.asarray(f_hz, dtype=float)
     z = np.asarray(circuit_impedance(model, params, f), dtype=complex)
