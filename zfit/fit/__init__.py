@@ -22,12 +22,21 @@ Rational models (relaxed vector fitting)
 Equivalent circuits
     _circuits      the circuits of inductors and capacitors (impedance,
                    derivatives, SRF, initial guesses)
-    _parameters    the parameter registry: names, units, bounds
+    _loss_circuits circuits with frequency-dependent losses: skin-effect
+                   winding, relaxing (Debye) core, constant loss tangent,
+                   parallel R-L-C sections (beads)
     _lsq           weighted nonlinear least squares with covariance (`refine`)
     _fisher        resolution limits from the Fisher information, the
-                   shunt-thru ground-loop warning
+                   measurement's sigma at a model impedance
+Passive networks
+    _realisation   a rational model as a passive R-L-C network (Foster form)
+    _loss_networks a loss model as a passive R-L-C network (exact or ladder)
+The forward model
+    _simulate      a circuit measured through a connection with the
+                   instrument's noise (the planner, the simulated lot, tests)
 
 The S<->Z conversions and their derivatives are not here but in
-`zfit.data._connection`; the choice between circuits is identification's
+`zfit.data._connection`; the parameter registry (names, units, bounds) is
+`zfit._parameters`; the choice between circuits is identification's
 (`zfit.identification`).
 """
