@@ -11,7 +11,6 @@ index page.
 
 from __future__ import annotations
 
-import html
 import json
 import time
 from dataclasses import dataclass
@@ -20,6 +19,7 @@ from typing import Optional
 
 import typer
 
+from ..outputs._demo_index import demo_headline, demo_index_html
 from ._common import app, echo, guarded, warn_line
 
 DEFAULT_OUT = "zfit-demo-output"
@@ -220,45 +220,6 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
     return result, ident, written, notes, _command(part, sweeps, out)
 
 
-def _index_html(rows, generated: str) -> str:
-    """The demo folder's index page: one line per part, linking its report."""
-    from ..outputs._report import PAGE_CSS  # the reports' own style, so the folder reads as one
-
-    esc = html.escape
-    body = []
-    for part, ident, headline, cmd in rows:
-        body.append(
-            f'<tr><td><a href="{esc(part.stem)}.html">{esc(part.title)}</a></td>'
-            f"<td>{esc(headline)}</td><td>{esc(part.story)}</td></tr>"
-        )
-    return (
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n<title>zfit demo</title>\n"
-        f"<style>{PAGE_CSS}</style>\n</head>\n<body>\n<header><h1>zfit demo: four parts from an invented bench</h1>"
-        f'<div class="sub">Generated {esc(generated)}; every file and part is invented (see demo_sweeps/README.md).</div>'
-        "</header>\n<main>\n<section class=\"full\"><h2>Parts</h2><table><thead><tr><th>part</th><th>result</th>"
-        "<th>what to look at</th></tr></thead><tbody>" + "".join(body) + "</tbody></table>"
-        "<p>Each part has its one-page report (.html), its plots (.png), the zfit JSON result (.json) and, where an "
-        "impedance was identified, a SPICE subcircuit (.cir); the analyser sweeps also a one-port Touchstone file "
-        "(.s1p) of the model.</p></section>\n"
-        "</main>\n</body>\n</html>\n"
-    )
-
-
-def _headline(part, result, ident) -> str:
-    from ..outputs._views import pretty_std
-
-    if ident is None:
-        return ""
-    p = ident.parameters
-    bits = [f"{k} = {pretty_std(p[k].value, p[k].std, p[k].unit)}" for k in ("L", "C") if k in p]
-    if ident.model == "rational":
-        bits.append(ident.topology)
-    srf = ident.srf
-    if srf is not None and srf.where == "in-band":
-        bits.append(f"SRF {pretty_std(srf.value_hz, srf.std_hz, 'Hz')}")
-    return ", ".join(bits)
-
-
 @app.command("demo")
 @guarded
 def demo_command(
@@ -316,7 +277,7 @@ def demo_command(
     from .._atomic import write_atomic
     from ..outputs._report import Report
 
-    write_atomic(folder / "index.html", _index_html(rows, Report("x").generated), force)
+    write_atomic(folder / "index.html", demo_index_html(rows, Report("x").generated), force)
     n_files += 1
     dt = time.perf_counter() - t0
     echo(f"zfit demo: {len(chosen)} parts, {n_files} files in {dt:.1f} s")
@@ -334,7 +295,7 @@ def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
         "lines": identification_summary(result) if part.kind == "sweep" else step_summary(result),
         "warnings": list(own) + [t for t in notes if not any(t.endswith(o) for o in own)],
         "written": [p.name for p in written],
-        "headline": _headline(part, result, ident),
+        "headline": demo_headline(ident),
     }
 
 
