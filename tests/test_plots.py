@@ -243,3 +243,17 @@ def test_bode_joins_only_the_usable_bins():
     np.testing.assert_array_equal(x, f[~usable])
     assert _xy(fig, "coherence")[1].size == f.size  # every bin's coherence is still shown
     _close(fig)
+
+
+@pytest.mark.parametrize("name", ["L_$1$.s1p", "cap $\\frac{a}{$.s2p", "odd$_{name}"])
+def test_file_names_with_dollar_signs_are_titles_not_maths(tmp_path, name):
+    # Issue 16: `$...$` in a file name broke --plot (matplotlib maths text).
+    # The title is drawn as the plain string (matplotlib Text.get_text returns it unchanged).
+    from zfit.outputs._plot_files import save_figure
+
+    f = np.geomspace(1e3, 1e6, 50)
+    z = 1 + 2j * np.pi * f * 1e-6
+    fig = plot_sweep(f, z, np.full(f.size, 1e-3), title=name)
+    assert fig._suptitle.get_text() == name
+    path = save_figure(fig, tmp_path / "p.png")
+    assert path.stat().st_size > 1000  # a PNG was rendered (the header alone is 8 bytes)

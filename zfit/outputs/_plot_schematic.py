@@ -141,5 +141,5 @@ def plot_schematic(tree, *, title: str = "", width_in: float = 3.4, height_in: f
     ax.set_ylim(y0 + top - (w + 0.7) * height_in / width_in, y0 + top)
     _fit_labels(fig, ax)
     if title:
-        ax.set_title(title, loc="left")
+        ax.set_title(title, loc="left", parse_math=False)  # the user's file name: plain text
     return fig

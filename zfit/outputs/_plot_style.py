@@ -202,8 +202,13 @@ def apply_layout(fig) -> None:
 
 
 def set_title(fig, text: str) -> None:
-    """A one-line title at the top left of the figure."""
-    fig.suptitle(text, x=0.01, y=0.995, ha="left", va="top", fontsize=9.5)
+    """A one-line title at the top left of the figure.
+
+    The title carries the user's file name: it is drawn as plain text, never
+    parsed as matplotlib's maths markup (a name like ``L_$1.s1p`` would
+    otherwise raise or be drawn as a formula).
+    """
+    fig.suptitle(text, x=0.01, y=0.995, ha="left", va="top", fontsize=9.5, parse_math=False)
     fig._zfit_layout["title"] = True
     apply_layout(fig)
 
