@@ -7,6 +7,8 @@ must not stop the lot, so an error becomes one line of its `PartOutcome`.
 
 from __future__ import annotations
 
+import os
+import threading
 import time
 from pathlib import Path
 from typing import Sequence
@@ -80,9 +82,27 @@ def identify_part(task: PartTask) -> PartOutcome:
     return PartOutcome(task.index, task.name, summary, error, tuple(seen), False, time.perf_counter() - t0)
 
 
+#: How often a worker looks whether its parent is still there, in seconds.
+_WATCH_PERIOD_S = 0.25
+
+
+def _watch_parent(parent: int) -> None:
+    # A parent killed with SIGKILL (or by the out-of-memory killer) cannot tell
+    # its workers; they would wait for work on their pipe forever.  When the
+    # parent dies, the worker is given to another process (init, a subreaper),
+    # so its parent pid changes: then it ends at once, without cleanup that
+    # could block on the dead parent's pipes.
+    while True:
+        time.sleep(_WATCH_PERIOD_S)
+        if os.getppid() != parent:
+            os._exit(1)
+
+
 def worker_init() -> None:
-    """Start a worker process: one BLAS thread (see `zfit.lot._threads`)."""
+    """Start a worker process: one BLAS thread (see `zfit.lot._threads`), and a
+    watchdog that ends the worker when its parent process is gone."""
     blas_threads(1)
+    threading.Thread(target=_watch_parent, args=(os.getppid(),), name="zfit-parent-watch", daemon=True).start()
 
 
 def identify_chunk(tasks: Sequence[PartTask]) -> list[PartOutcome]:
