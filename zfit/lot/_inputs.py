@@ -52,7 +52,7 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
     ----------
     inputs : sequence of str or os.PathLike
         Files, folders (searched recursively for `SWEEP_SUFFIXES`; hidden
-        entries and the output folders of earlier runs skipped) and glob
+        entries skipped) and glob
         patterns (``lot7/*.s1p``, ``**`` allowed).  The files a batch wrote
         (`batch_outputs`: ``summary.csv`` is a table too) are never taken.
     exclude : str or os.PathLike, optional

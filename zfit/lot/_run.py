@@ -22,8 +22,8 @@ from .._errors import ZfitInputError
 from ..io._limits_file import Limits
 from ._executors import import_all, preload_modules, run_tasks
 from ._inputs import expand_inputs, output_names
-from ._manifest import MANIFEST_NAME, manifest_text, read_manifest
 from ._lot_files import LOT_CSV_NAME, LOT_JSON_NAME, SUMMARY_NAME, lot_csv_text, lot_json_text, summary_csv_text
+from ._manifest import MANIFEST_NAME, manifest_text, read_manifest
 from ._progress import Progress, Quiet
 from ._reuse import input_key, read_options_digest, reusable_summary
 from ._rows import part_row
