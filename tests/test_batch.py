@@ -327,13 +327,15 @@ def test_inputs_as_files_folders_and_globs(lot, tmp_path):
         assert names.count("sweeps/L001.s1p") == 1
         assert [n for _, n in expand_inputs(["sweeps/L01[0-2].s1p"])] == [
             "sweeps/L010.s1p", "sweeps/L011.s1p", "sweeps/L012.s1p"]
-        # The output folder is never taken as input, nor an earlier run's output inside a folder input.
+        # An earlier run's own files are never taken as input (its summary.csv is a table too);
+        # the sweeps in or below the output folder are.
         (root / "sweeps" / "old_run").mkdir(exist_ok=True)
         (root / "sweeps" / "old_run" / "summary.csv").write_text("file,verdict\n")
         (root / "sweeps" / "old_run" / "lot.json").write_text('{\n  "schema": "zfit.batch-lot/1"\n}\n')
         assert len(expand_inputs(["sweeps"])) == 52
-        with pytest.raises(ZfitInputError, match="no sweep files found"):
-            expand_inputs(["sweeps"], exclude="sweeps")
+        assert len(expand_inputs(["sweeps"], exclude="sweeps")) == 52
+        with pytest.raises(ZfitInputError, match="old_run/summary.csv is written by zfit batch, not sweeps"):
+            expand_inputs(["sweeps/old_run"])
         with pytest.raises(ZfitInputError, match="no file matches"):
             expand_inputs(["sweeps/*.s9p"])
         with pytest.raises(ZfitInputError, match="no such file"):

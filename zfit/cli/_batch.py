@@ -48,7 +48,7 @@ def batch_command(
     load_value: LoadValueOpt = None,
     port_delay: PortDelayOpt = None,
     port_loss: PortLossOpt = None,
-    force: bool = typer.Option(False, "--force", help="Identify every part again, even where its result is newer than its sweep."),
+    force: bool = typer.Option(False, "--force", help="Identify every part again, even where its result is up to date, and replace files in --out that the batch did not write."),
     quiet: bool = typer.Option(False, "--quiet", "-q", help="No progress display."),
 ):
     """Identify every part in INPUTS, check each against --limits, and summarise the lot.
@@ -63,11 +63,15 @@ def batch_command(
     2 standard uncertainties: pass only when value +- 2 u lies inside the
     limits, fail when the value lies outside, indeterminate otherwise.
 
-    A rerun with the same --out skips parts whose result is newer than their
-    sweep; --force identifies them all again. One bad file is reported and
+    The batch writes over only its own files in --out (listed in its
+    .zfit-batch.json); another file in the way is refused without --force.
+    A rerun with the same --out skips parts whose sweep bytes and reading
+    options are those of their stored result; --force identifies them all
+    again. One bad file is reported and
     does not stop the run. Exit status: 0 when every part has a result and
     passes (or there are no limits), 1 when some part failed, is
-    indeterminate or has no result, 2 on bad usage.
+    indeterminate or has no result, 2 on bad usage or when an output file
+    cannot be written (the lot summary is printed first).
 
     Safety: discharge capacitors before connecting them to an analyser; for
     parts on mains or high voltage follow local codes and licensed practice.
@@ -105,6 +109,12 @@ def batch_command(
     echo(lot_text(result.lot))
     echo(f"{result.identified} identified, {result.skipped} up to date (skipped), {result.errors} error, "
          f"in {result.seconds:.1f} s ({result.workers})")
+    if result.unwritten:
+        from .._errors import ZfitInputError
+
+        # The summary above is what the run has; the file that could not be written is named.
+        more = f" (and {len(result.unwritten) - 1} more file(s))" if len(result.unwritten) > 1 else ""
+        raise ZfitInputError(result.unwritten[0] + more)
     echo(f"wrote {result.summary_path}, {result.lot_csv_path.name}, {result.lot_json_path.name}")
     v = result.lot.verdicts
     if v.get("error", 0) or v.get("fail", 0) or v.get("indeterminate", 0):

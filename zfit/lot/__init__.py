@@ -11,7 +11,8 @@ Modules, in the order of a run:
 
 ``_inputs``          the sweep files named by the inputs, and their output names
 ``_tasks``           `ReadOptions`, `PartTask`, `PartOutcome`: the work of one part, picklable
-``_reuse``           an up-to-date result of an earlier run, reused instead of redone
+``_manifest``        the files the batch owns in its output folder (``.zfit-batch.json``)
+``_reuse``           an up-to-date result of an earlier run (same content), reused instead of redone
 ``_worker``          one part: read, identify, write its JSON and plot, never raise
 ``_warning_routing`` warnings routed to the part whose thread raised them
 ``_threads``         one BLAS thread per worker (small problems, many processes)

@@ -9,9 +9,10 @@ from typing import Sequence
 
 from .._errors import ZfitInputError
 from ..io._sweep_file import TABLE_EXTENSIONS, TOUCHSTONE_EXTENSIONS
-from ._lot_files import LOT_JSON_NAME
+from ._lot_files import LOT_CSV_NAME, LOT_JSON_NAME, SUMMARY_NAME
+from ._manifest import MANIFEST_NAME, read_manifest
 
-__all__ = ["SWEEP_SUFFIXES", "expand_inputs", "output_names"]
+__all__ = ["SWEEP_SUFFIXES", "batch_outputs", "expand_inputs", "output_names"]
 
 #: File suffixes taken from a folder given as input: every kind the readers read.
 SWEEP_SUFFIXES = (*TOUCHSTONE_EXTENSIONS, *TABLE_EXTENSIONS)
@@ -25,6 +26,25 @@ def _is_batch_output(folder: Path) -> bool:
         return False
 
 
+def batch_outputs(folder) -> set[Path]:
+    """Return the files of a batch's output folder that are the batch's own (resolved paths).
+
+    Those its manifest lists, and the summary files of a folder whose
+    ``lot.json`` is a batch's (also of a run before manifests were kept).
+    """
+    folder = Path(folder)
+    own: set[Path] = set()
+    if (folder / MANIFEST_NAME).is_file():
+        try:
+            own |= {(folder / name).resolve() for name in read_manifest(folder).files}
+        except ZfitInputError:
+            pass
+        own.add((folder / MANIFEST_NAME).resolve())
+    if _is_batch_output(folder):
+        own |= {(folder / n).resolve() for n in (SUMMARY_NAME, LOT_CSV_NAME, LOT_JSON_NAME)}
+    return own
+
+
 def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
     """Return the sweep files named by `inputs`, sorted and without repeats.
 
@@ -32,10 +52,12 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
     ----------
     inputs : sequence of str or os.PathLike
         Files, folders (searched recursively for `SWEEP_SUFFIXES`; hidden
-        entries and the output folders of earlier runs skipped) and glob
-        patterns (``lot7/*.s1p``, ``**`` allowed).
+        entries skipped) and glob
+        patterns (``lot7/*.s1p``, ``**`` allowed).  The files a batch wrote
+        (`batch_outputs`: ``summary.csv`` is a table too) are never taken.
     exclude : str or os.PathLike, optional
-        A folder whose content is never taken (the output folder).
+        The output folder of this run: its own files are never taken, the
+        sweeps in it are (it may lie above the inputs).
 
     Returns
     -------
@@ -48,12 +70,18 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
     ZfitInputError
         When an input names nothing that exists, or no sweep file is found.
     """
-    ex = None if exclude is None else Path(exclude).resolve()
+    own: set[Path] = set() if exclude is None else batch_outputs(exclude)
+    looked: set[Path] = set()
+    passed_over: list[str] = []
     found: dict[Path, str] = {}
 
     def take(path: Path, name: str):
         resolved = path.resolve()
-        if ex is not None and (resolved == ex or ex in resolved.parents):
+        if resolved.parent not in looked:
+            looked.add(resolved.parent)
+            own.update(batch_outputs(resolved.parent))
+        if resolved in own:
+            passed_over.append(Path(name).as_posix())
             return
         found.setdefault(resolved, Path(name).as_posix())
 
@@ -62,9 +90,6 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
         p = Path(text)
         if p.is_dir():
             for root, dirs, files in os.walk(p):
-                if LOT_JSON_NAME in files and _is_batch_output(Path(root)):
-                    dirs[:] = []  # an earlier run's output folder: its CSVs are not sweeps
-                    continue
                 dirs[:] = sorted(d for d in dirs if not d.startswith("."))
                 for fn in sorted(files):
                     if not fn.startswith(".") and Path(fn).suffix.lower() in SWEEP_SUFFIXES:
@@ -82,9 +107,13 @@ def expand_inputs(inputs: Sequence, exclude=None) -> list[tuple[Path, str]]:
         else:
             raise ZfitInputError("no such file or folder", text)
     if not found:
-        raise ZfitInputError(
-            f"no sweep files found in {', '.join(os.fspath(i) for i in inputs)} "
-            f"(looked for {', '.join(SWEEP_SUFFIXES)})")
+        where = ", ".join(os.fspath(i) for i in inputs)
+        if passed_over:
+            shown = ", ".join(passed_over[:3]) + (f" and {len(passed_over) - 3} more" if len(passed_over) > 3 else "")
+            raise ZfitInputError(
+                f"no sweep files found in {where}: {shown} {'is' if len(passed_over) == 1 else 'are'} "
+                f"written by zfit batch, not sweeps")
+        raise ZfitInputError(f"no sweep files found in {where} (looked for {', '.join(SWEEP_SUFFIXES)})")
     return sorted(((p, n) for p, n in found.items()), key=lambda pn: (pn[1], str(pn[0])))
 
 

@@ -35,6 +35,12 @@ _SPOT_KEYS = (*SPOT_READOUTS, "ESR")
 #: The summary files of a run, in its output folder.
 SUMMARY_NAME, LOT_CSV_NAME, LOT_JSON_NAME = "summary.csv", "lot.csv", "lot.json"
 
+#: When a capability figure describes the measurement rather than the process, as lot.json states it.
+MEASUREMENT_LIMITED_RULE = (
+    "true when std <= u_rms: the lot's spread is not larger than the measurement uncertainty of each part, "
+    "so Cp and Cpk are limited by the measurement, not the process (AIAG MSA 4th ed.; ISO 22514-7)"
+)
+
 #: The decision rule in words, as lot.json states it.
 DECISION_RULE = (
     "guarded acceptance (JCGM 106:2012, 8.3.2): pass when value +- k u lies inside the limits, "
@@ -117,12 +123,18 @@ def summary_csv_text(rows: Sequence[PartRow], limits: Limits | None = None, at: 
 
 
 _LOT_FIELDS = ("quantity", "unit", "limits", "lower", "upper", "n", "pass", "fail", "indeterminate",
-               "mean", "std", "min", "max", "u_rms", "Cp", "Cpk", "ppm_out")
+               "mean", "std", "min", "max", "u_rms", "Cp", "Cpk", "ppm_out", "limited_by_measurement")
 
 
 def _stat_values(q: QuantityStats) -> list:
     return [q.name, q.unit, q.limit_text, q.lower, q.upper, q.n, q.n_pass, q.n_fail, q.n_indeterminate,
-            q.mean, q.std, q.min, q.max, q.u_rms, q.cp, q.cpk, q.ppm_out]
+            q.mean, q.std, q.min, q.max, q.u_rms, q.cp, q.cpk, q.ppm_out, q.measurement_limited]
+
+
+def _cell(x) -> str:
+    if isinstance(x, bool):
+        return "true" if x else "false"  # as lot.json writes it
+    return _num(x) if isinstance(x, float) or x is None else x
 
 
 def lot_csv_text(lot: LotSummary) -> str:
@@ -137,7 +149,7 @@ def lot_csv_text(lot: LotSummary) -> str:
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(_LOT_FIELDS)
     for q in lot.quantities:
-        w.writerow([_num(x) if isinstance(x, float) or x is None else x for x in _stat_values(q)])
+        w.writerow([_cell(x) for x in _stat_values(q)])
     return buf.getvalue()
 
 
@@ -161,6 +173,7 @@ def lot_json_text(lot: LotSummary) -> str:
         "limits_file": lot.limits_path or None,
         "capability": "Cp = (USL-LSL)/(6 s), Cpk = min(USL-mean, mean-LSL)/(3 s), s = sample std of the lot "
                       "(Montgomery 2013, 8.3; ISO 22514-2)",
+        "limited_by_measurement": MEASUREMENT_LIMITED_RULE,
         "quantities": [{k: clean(v) for k, v in zip(_LOT_FIELDS, _stat_values(q))} for q in lot.quantities],
     }
     return json_text(doc)
@@ -199,4 +212,8 @@ def lot_text(lot: LotSummary) -> str:
             lines.append("  ".join(c.ljust(wd) if i < 2 else c.rjust(wd) for i, (c, wd) in enumerate(zip(row, widths))).rstrip())
         lines.append("Cpk = min(USL - mean, mean - LSL) / (3 s), normal distribution, s = lot std "
                      "(Montgomery 2013, 8.3; ISO 22514-2); u_rms = RMS measurement uncertainty")
+    for q in lot.quantities:
+        if q.cpk is not None and q.measurement_limited:
+            lines.append(f"Cpk of {q.name} limited by the measurement uncertainty, not the process "
+                         f"(lot std {format_eng(q.std, q.unit)} <= u_rms {format_eng(q.u_rms, q.unit)})")
     return "\n".join(lines)

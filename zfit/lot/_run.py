@@ -9,6 +9,7 @@ they are byte-identical whichever way the work was spread.
 
 from __future__ import annotations
 
+import hashlib
 import os
 import time
 import warnings
@@ -22,8 +23,9 @@ from ..io._limits_file import Limits
 from ._executors import import_all, preload_modules, run_tasks
 from ._inputs import expand_inputs, output_names
 from ._lot_files import LOT_CSV_NAME, LOT_JSON_NAME, SUMMARY_NAME, lot_csv_text, lot_json_text, summary_csv_text
+from ._manifest import MANIFEST_NAME, manifest_text, read_manifest
 from ._progress import Progress, Quiet
-from ._reuse import reusable_summary
+from ._reuse import input_key, read_options_digest, reusable_summary
 from ._rows import part_row
 from ._statistics import LotSummary, lot_summary
 from ._tasks import PartOutcome, PartTask, ReadOptions
@@ -57,6 +59,9 @@ class BatchResult:
     workers : str
         How the work was run (``in-process``, ``2 local processes``, a
         Dask scheduler's address).
+    unwritten : tuple of str
+        One line per output file that could not be written (a full disk),
+        naming the file; the other files were written.
     """
 
     rows: tuple
@@ -70,6 +75,7 @@ class BatchResult:
     errors: int
     seconds: float
     workers: str
+    unwritten: tuple = ()
 
 
 def run_batch(
@@ -114,7 +120,8 @@ def run_batch(
     plot_format : {'png', 'svg'}
         Its file type.
     force : bool
-        Identify every part again, even where an up-to-date result exists.
+        Identify every part again, even where an up-to-date result exists,
+        and replace files in the output folder that the batch did not write.
     progress : Progress or False, optional
         Progress display; default a `Progress` on standard error, False for none.
 
@@ -127,6 +134,9 @@ def run_batch(
     ------
     ZfitInputError
         When the inputs name nothing, or the Dask scheduler cannot be reached.
+    OutputExistsError
+        When a file the run would write is in the output folder and is not the
+        batch's own (`zfit.lot._manifest`), and `force` is false.
     """
     t0 = time.perf_counter()
     n_jobs = jobs if jobs is not None else (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
@@ -151,21 +161,38 @@ def run_batch(
             i, str(path), name, str(base.with_name(base.name + ".json")),
             str(base.with_name(base.name + "." + plot_format)) if plot else None, model, freqs, read))
     out.mkdir(parents=True, exist_ok=True)
+    manifest = read_manifest(out, force)
+    digest = read_options_digest(read)
+    keys = {t.index: input_key(t.path, digest) for t in tasks}
+
+    outcomes: dict[int, PartOutcome] = {}
+    todo = []
+    for t in tasks:
+        stored = reusable_summary(t, keys[t.index], manifest, force)
+        if stored is None:
+            todo.append(t)
+        else:
+            outcomes[t.index] = PartOutcome(t.index, t.name, stored, skipped=True)
+    summary_paths = (out / SUMMARY_NAME, out / LOT_CSV_NAME, out / LOT_JSON_NAME)
+    claimed = [*summary_paths, *(p for t in todo for p in t.output_paths())]
+    if not force:
+        # The batch replaces only what it wrote: anything else in the way is the user's.
+        manifest.refuse_foreign(claimed)
+    # Claimed before the work starts, so that the files of an interrupted run
+    # stay the batch's own (and are redone) on a rerun.  A file of the user's
+    # that --force lets the run replace is not claimed: it is the batch's once
+    # written, and is never removed.
+    manifest.claim([p for p in claimed if not os.path.lexists(p) or manifest.owns(p)])
+    manifest_path = out / MANIFEST_NAME
+    write_atomic(manifest_path, manifest_text(manifest), force=True)
 
     if progress is None:
         progress = Progress(len(tasks))
     elif progress is False:
         progress = Quiet()
-    outcomes: dict[int, PartOutcome] = {}
-    todo = []
-    for t in tasks:
-        stored = reusable_summary(t, force)
-        if stored is None:
-            todo.append(t)
-        else:
-            outcomes[t.index] = PartOutcome(t.index, t.name, stored, skipped=True)
     if outcomes:
         progress.skip(len(outcomes))
+    by_index = {t.index: t for t in tasks}
 
     def on_done(outs):
         bad = 0
@@ -174,6 +201,15 @@ def run_batch(
             if o.error is not None:
                 bad += 1
                 progress.message(f"zfit: error: {o.error}")
+                # No result: no file of the part's may stay beside its 'error' row.
+                manifest.remove_owned(by_index[o.index].output_paths())
+            else:
+                task = by_index[o.index]
+                for path, sha in o.written:
+                    manifest.record(path, sha, keys[o.index] if path == task.json_path else None)
+                # A figure this part no longer has (another model than last time) goes.
+                done = {path for path, _ in o.written}
+                manifest.remove_owned(p for p in task.output_paths() if p not in done)
         progress.update(len(outs), bad)
 
     # The workers route warnings to their parts (see `zfit.lot._warning_routing`); in
@@ -188,15 +224,37 @@ def run_batch(
     try:
         with warnings.catch_warnings():
             workers = run_tasks(todo, cluster, n_jobs, on_done, progress)
+    except BaseException:
+        # Interrupted: keep what is done, so that a rerun resumes from it.
+        _write_quietly(manifest_path, manifest_text(manifest))
+        raise
     finally:
         restore_blas_threads(blas)
 
     rows = tuple(part_row(outcomes[t.index], limits) for t in tasks)
     lot = lot_summary(rows, limits)
-    summary = write_atomic(out / SUMMARY_NAME, summary_csv_text(rows, limits, at=tuple(float(f) for f in at)), force=True)
-    lot_csv = write_atomic(out / LOT_CSV_NAME, lot_csv_text(lot), force=True)
-    lot_json = write_atomic(out / LOT_JSON_NAME, lot_json_text(lot), force=True)
+    texts = (summary_csv_text(rows, limits, at=tuple(float(f) for f in at)), lot_csv_text(lot), lot_json_text(lot))
+    unwritten = []
+    for path, text in zip(summary_paths, texts):
+        # One file that cannot be written (a full disk) must not cost the others.
+        try:
+            write_atomic(path, text, force=True)
+        except ZfitInputError as exc:
+            unwritten.append(exc.one_line())
+        else:
+            manifest.record(path, hashlib.sha256(text.encode("utf-8")).hexdigest())
+    try:
+        write_atomic(manifest_path, manifest_text(manifest), force=True)
+    except ZfitInputError as exc:
+        unwritten.append(exc.one_line())
     skipped = sum(1 for o in outcomes.values() if o.skipped)
     errors = sum(1 for r in rows if r.error is not None)
-    return BatchResult(rows, lot, out, summary, lot_csv, lot_json, len(tasks) - skipped - errors, skipped,
-                       errors, time.perf_counter() - t0, workers)
+    return BatchResult(rows, lot, out, *summary_paths, len(tasks) - skipped - errors, skipped,
+                       errors, time.perf_counter() - t0, workers, tuple(unwritten))
+
+
+def _write_quietly(path, text) -> None:
+    try:
+        write_atomic(path, text, force=True)
+    except ZfitInputError:
+        pass

@@ -11,6 +11,14 @@ with the lot's sample standard deviation ``s`` (one-sided limits use the
 one side that exists).  With no rational subgroups, ``s`` is the overall
 spread, which ISO 22514-2 calls a *performance* index (Ppk); it includes
 the measurement's own uncertainty, so the figure is conservative.
+
+A capability index describes the process only when the measurement resolves
+the part-to-part spread.  The rule used here (common practice of
+measurement-system capability, AIAG *Measurement Systems Analysis*, 4th
+ed., 2010, and ISO 22514-7:2021): when the lot's sample standard deviation
+``s`` is not larger than the RMS of the parts' standard uncertainties
+``u_rms``, the observed spread is what the measurement alone would give, and
+the Cpk is *limited by the measurement*, not a property of the process.
 """
 
 from __future__ import annotations
@@ -24,7 +32,35 @@ from ..io._limits_file import SPOT_UNITS, Limits
 from ._conformity import VERDICTS
 from ._rows import PartRow
 
-__all__ = ["QuantityStats", "LotSummary", "process_capability", "lot_summary"]
+__all__ = ["QuantityStats", "LotSummary", "process_capability", "limited_by_measurement", "lot_summary"]
+
+
+def limited_by_measurement(std: float | None, u_rms: float | None) -> bool | None:
+    """Return whether the lot's spread is not resolved by the measurement: ``std <= u_rms``.
+
+    Parameters
+    ----------
+    std : float or None
+        Sample standard deviation of the lot.
+    u_rms : float or None
+        RMS of the parts' standard uncertainties.
+
+    Returns
+    -------
+    bool or None
+        True when the part-to-part spread is not larger than the measurement
+        uncertainty of each part (the capability then describes the
+        measurement, not the process); None when either is unknown.
+
+    References
+    ----------
+    AIAG, Measurement Systems Analysis, 4th ed., 2010 (the measurement must
+    resolve the process variation); ISO 22514-7:2021, Capability of
+    measurement processes.
+    """
+    if std is None or u_rms is None or not (math.isfinite(std) and math.isfinite(u_rms)):
+        return None
+    return bool(std <= u_rms)
 
 
 def process_capability(mean: float, std: float, lower: float | None, upper: float | None) -> tuple:
@@ -100,6 +136,9 @@ class QuantityStats:
     ppm_out : float or None
         Expected fraction outside the limits of a normal distribution with
         this mean and std, in parts per million.
+    measurement_limited : bool or None
+        Whether `std` is not larger than `u_rms` (see `limited_by_measurement`):
+        then Cp and Cpk say how good the measurement is, not the process.
     """
 
     name: str
@@ -119,6 +158,7 @@ class QuantityStats:
     cp: float | None
     cpk: float | None
     ppm_out: float | None
+    measurement_limited: bool | None = None
 
 
 @dataclass(frozen=True)
@@ -210,6 +250,7 @@ def lot_summary(rows: Sequence[PartRow], limits: Limits | None = None) -> LotSum
         stats.append(QuantityStats(
             name, lim.unit if lim is not None else _unit_of(name), lower, upper,
             lim.text if lim is not None else "", int(a.size), n_pass, n_fail, n_ind, mean, std,
-            float(a.min()) if a.size else None, float(a.max()) if a.size else None, u_rms, cp, cpk, ppm))
+            float(a.min()) if a.size else None, float(a.max()) if a.size else None, u_rms, cp, cpk, ppm,
+            limited_by_measurement(std, u_rms)))
     return LotSummary(len(rows), verdicts, tuple(stats), limits.path if limits else "",
                       limits.guard_band_k if limits else None)

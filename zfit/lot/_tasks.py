@@ -3,10 +3,15 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from pathlib import Path
 
 from ._part_summary import PartSummary
 
-__all__ = ["ReadOptions", "PartTask", "PartOutcome"]
+__all__ = ["ReadOptions", "PartTask", "PartOutcome", "PLOT_EXTRAS"]
+
+#: The figures of ``zfit identify --plot`` beyond the first, as file-name suffixes
+#: (``<part>-q.png`` of an inductor, ``<part>-esr-d.png`` of a capacitor).
+PLOT_EXTRAS = ("q", "esr-d")
 
 
 @dataclass(frozen=True)
@@ -76,6 +81,14 @@ class PartTask:
     at: tuple = ()
     read: ReadOptions = field(default_factory=ReadOptions)
 
+    def output_paths(self) -> tuple:
+        """Return every file the part may write: its JSON, and its plots when asked."""
+        paths = [self.json_path]
+        if self.plot_path is not None:
+            p = Path(self.plot_path)
+            paths += [self.plot_path, *(str(p.with_name(f"{p.stem}-{x}{p.suffix}")) for x in PLOT_EXTRAS)]
+        return tuple(paths)
+
 
 @dataclass(frozen=True)
 class PartOutcome:
@@ -96,6 +109,8 @@ class PartOutcome:
         Whether an up-to-date result was reused.
     seconds : float
         Time spent on the part.
+    written : tuple of (str, str)
+        The files written and the SHA-256 of their bytes.
     """
 
     index: int
@@ -105,3 +120,4 @@ class PartOutcome:
     warnings: tuple = ()
     skipped: bool = False
     seconds: float = 0.0
+    written: tuple = ()

@@ -7,6 +7,9 @@ must not stop the lot, so an error becomes one line of its `PartOutcome`.
 
 from __future__ import annotations
 
+import hashlib
+import os
+import threading
 import time
 from pathlib import Path
 from typing import Sequence
@@ -56,17 +59,24 @@ def identify_part(task: PartTask) -> PartOutcome:
     from .._atomic import write_atomic
     from ..identification._pipeline import identify
 
+    from ._manifest import file_sha256
+
     t0 = time.perf_counter()
     summary = error = None
+    written = []
     with collect_warnings() as caught:
         try:
             sweep = _read_sweep(task)
             ident = identify(sweep, model=task.model, at=task.at)
-            write_atomic(task.json_path, json_text(ident.to_dict()), force=True)
+            raw = json_text(ident.to_dict()).encode("utf-8")
+            write_atomic(task.json_path, raw, force=True)
+            # The batch owns what it wrote (`zfit.lot._manifest`): the hash of these bytes.
+            written.append((task.json_path, hashlib.sha256(raw).hexdigest()))
             if task.plot_path is not None:
                 from ..outputs._outputs import write_outputs
 
-                write_outputs(ident, plot=task.plot_path, force=True)
+                for p in write_outputs(ident, plot=task.plot_path, force=True):
+                    written.append((str(p), file_sha256(p)))
             summary = part_summary(ident)
         except Exception as exc:  # one bad part must not stop the lot
             summary, error = None, _one_line(exc, task)
@@ -77,12 +87,31 @@ def identify_part(task: PartTask) -> PartOutcome:
         w = w[len(task.name) + 2:] if w.startswith(task.name + ": ") else w
         if w not in seen:
             seen.append(w)
-    return PartOutcome(task.index, task.name, summary, error, tuple(seen), False, time.perf_counter() - t0)
+    return PartOutcome(task.index, task.name, summary, error, tuple(seen), False, time.perf_counter() - t0,
+                       tuple(written) if error is None else ())
+
+
+#: How often a worker looks whether its parent is still there, in seconds.
+_WATCH_PERIOD_S = 0.25
+
+
+def _watch_parent(parent: int) -> None:
+    # A parent killed with SIGKILL (or by the out-of-memory killer) cannot tell
+    # its workers; they would wait for work on their pipe forever.  When the
+    # parent dies, the worker is given to another process (init, a subreaper),
+    # so its parent pid changes: then it ends at once, without cleanup that
+    # could block on the dead parent's pipes.
+    while True:
+        time.sleep(_WATCH_PERIOD_S)
+        if os.getppid() != parent:
+            os._exit(1)
 
 
 def worker_init() -> None:
-    """Start a worker process: one BLAS thread (see `zfit.lot._threads`)."""
+    """Start a worker process: one BLAS thread (see `zfit.lot._threads`), and a
+    watchdog that ends the worker when its parent process is gone."""
     blas_threads(1)
+    threading.Thread(target=_watch_parent, args=(os.getppid(),), name="zfit-parent-watch", daemon=True).start()
 
 
 def identify_chunk(tasks: Sequence[PartTask]) -> list[PartOutcome]:
