@@ -110,3 +110,34 @@ def test_demo_index_promises_only_the_files_written(tmp_path):
     assert not list(out.glob("*.s1p")) and (out / "L-0233_4m7H_capture.cir").is_file()
     index = (out / "index.html").read_text()
     assert "the analyser sweeps also a one-port Touchstone file (.s1p) of the model" in index
+
+
+def test_demo_lot_and_plan(tmp_path):
+    # Issue 15: the demo runs the whole job, a lot against limits and a plan too.
+    # The demo's invented lot (zfit/cli/_demo.py): C-0342-007 is 82 nF against 100 nF +-5 %
+    # (below 95 nF), C-0342-011 has 40 mohm ESR against a 15 mohm maximum; the other ten sit
+    # well inside both limits (C within about 4 % at 1.2 % spread, ESR near 8 mohm).
+    from zfit.cli import _demo
+
+    folder = tmp_path / "o"
+    folder.mkdir()
+    import contextlib
+    import io
+
+    buf = io.StringIO()
+    with contextlib.redirect_stdout(buf):
+        _demo._demo_lot(folder, force=False)
+        _demo._demo_plan()
+    text = buf.getvalue()
+    rows = {r["file"].rsplit("/", 1)[-1]: r for r in _csv_rows(folder / "lot" / "summary.csv")}
+    assert len(rows) == 12
+    assert {k for k, r in rows.items() if r["verdict"] != "pass"} == {"C-0342-007.s2p", "C-0342-011.s2p"}
+    assert "C = 82n F below min 95n F" in text and "lot: 12 parts: 10 pass, 2 fail" in text
+    assert "recommended: " in text
+
+
+def _csv_rows(path):
+    import csv
+
+    with open(path, newline="", encoding="utf-8") as fh:
+        return list(csv.DictReader(fh))

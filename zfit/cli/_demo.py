@@ -251,6 +251,7 @@ def demo_command(
     if missing:
         raise ZfitInputError(f"demo files missing from {src}: {', '.join(missing)}")
     chosen = PARTS
+    whole_job = not part
     if part:
         known = {p.stem: p for p in PARTS}
         bad = [name for name in part if name not in known]
@@ -274,6 +275,9 @@ def demo_command(
         echo()
         n_files += len(job["written"])
         rows.append((part, None, job["headline"], job["command"]))
+    if whole_job:  # the whole job: a lot against limits, and a plan before the next part is measured
+        n_files += _demo_lot(folder, force)
+        _demo_plan()
     from .._atomic import write_atomic
     from ..outputs._report import Report
 
@@ -282,6 +286,69 @@ def demo_command(
     dt = time.perf_counter() - t0
     echo(f"zfit demo: {len(chosen)} parts, {n_files} files in {dt:.1f} s")
     echo(f"results in {folder}{'/' if not str(folder).endswith('/') else ''}  (open {folder / 'index.html'})")
+
+
+#: The demo lot: twelve invented 100 nF capacitors of one reel, measured shunt-thru,
+#: against the incoming-inspection limits below (C-0342-007 was mixed in from
+#: another reel; C-0342-011 has a poor termination).
+LOT_LIMITS = """\
+model = "capacitor"
+
+[limit.C]
+nominal = "100n"
+tolerance_percent = 5
+
+[limit.ESR]
+max = "15m"
+"""
+
+
+def _demo_lot(folder: Path, force: bool) -> int:
+    """Write the invented lot, run ``zfit batch`` on it, print its summary; return the file count."""
+    import numpy as np
+
+    from ..io._limits_file import parse_limits
+    from ..lot._lot_files import lot_text
+    from ..lot._run import run_batch
+    from ..lot._simulated_lot import SimulatedPart, write_simulated_lot
+    from ..lot._tasks import ReadOptions
+
+    rng = np.random.default_rng(342)
+    parts = [SimulatedPart(f"C-0342-{i:03d}.s2p", "capacitor",
+                           {"C": 100e-9 * (1 + rng.normal(0, 0.012)), "ESR": 8e-3 * (1 + rng.normal(0, 0.08)),
+                            "ESL": 0.9e-9 * (1 + rng.normal(0, 0.03))}) for i in range(12)]
+    parts[7] = SimulatedPart("C-0342-007.s2p", "capacitor", {"C": 82e-9, "ESR": 9e-3, "ESL": 0.9e-9})
+    parts[11] = SimulatedPart("C-0342-011.s2p", "capacitor", {"C": 99e-9, "ESR": 40e-3, "ESL": 0.9e-9})
+    lot = folder / "lot"
+    write_simulated_lot(lot / "sweeps", parts, np.geomspace(1e4, 3e8, 201), seed=342, connection="shunt-thru")
+    from .._atomic import write_atomic
+
+    limits_path = write_atomic(lot / "limits.toml", LOT_LIMITS, force=True)
+    cmd = f"zfit batch {lot / 'sweeps'} --out {lot} --limits {limits_path} --connection shunt-thru"
+    echo("=== lot  C-0342: twelve 100 nF capacitors of one reel against incoming-inspection limits")
+    echo("    (a lot: a verdict per part with guarded acceptance, the lot's statistics and Cpk)")
+    echo(f"$ {cmd}")
+    result = run_batch([lot / "sweeps"], lot, limits=parse_limits(LOT_LIMITS, str(limits_path)),
+                       read=ReadOptions(connection="shunt-thru"), jobs=1, force=force, progress=False)
+    for row in result.rows:
+        if row.verdict in ("fail", "indeterminate"):
+            echo(f"{row.name}: {row.verdict}: " + "; ".join(row.reasons))
+        elif row.verdict == "error":
+            echo(f"{row.name}: error: {row.error}")
+    echo(lot_text(result.lot))
+    echo(f"wrote {lot}/ (summary.csv, lot.csv, lot.json and a JSON per part)")
+    echo()
+    return len(parts) + 1 + sum(1 for p in lot.iterdir() if p.is_file() and not p.name.startswith("."))
+
+
+def _demo_plan() -> None:
+    """Print the plan for the next part on the bench: which connection suits a 10 uH inductor."""
+    from ..identification._plan import format_plan, plan_measurement
+
+    echo("=== plan  before the next part is on the bench: a 10 µH inductor with 5 pF stray C")
+    echo("$ zfit plan inductor --L 10u --R_s 50m --C_p 5p")
+    echo(format_plan(plan_measurement("inductor", {"L": 10e-6, "R_s": 50e-3, "C_p": 5e-12})))
+    echo()
 
 
 def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
