@@ -90,3 +90,36 @@ def test_a_write_that_fails_names_the_file_not_the_temporary(tmp_path):
                 write_atomic(folder / "out.json", "x")
     finally:
         folder.chmod(0o700)
+
+
+def test_write_all_atomic_writes_all_or_none(tmp_path, monkeypatch):
+    # Issue 16 (item 5): a failure after the first output must not leave a partial set.
+    import zfit._atomic as atomic
+    from zfit._atomic import write_all_atomic
+    from zfit._errors import ZfitInputError
+
+    (tmp_path / "old.json").write_text("old result")
+    (tmp_path / "plot.png").mkdir()
+    with pytest.raises(ZfitInputError, match=r"plot\.png: is a folder"):
+        write_all_atomic([(tmp_path / "old.json", "new"), (tmp_path / "part.cir", "x"), (tmp_path / "plot.png", b"")],
+                         force=True)
+    assert (tmp_path / "old.json").read_text() == "old result" and not (tmp_path / "part.cir").exists()
+    # A disk that fills while the third file is staged: nothing is renamed into place, no temporary stays.
+    real = atomic.os.fsync
+    calls = []
+
+    def fsync(fd):
+        calls.append(fd)
+        if len(calls) == 3:
+            raise OSError(28, "No space left on device")
+        return real(fd)
+
+    monkeypatch.setattr(atomic.os, "fsync", fsync)
+    with pytest.raises(ZfitInputError, match=r"c\.html: cannot write: No space left on device$"):
+        write_all_atomic([(tmp_path / "old.json", "new"), (tmp_path / "part.cir", "x"), (tmp_path / "c.html", "y")],
+                         force=True)
+    monkeypatch.setattr(atomic.os, "fsync", real)
+    assert (tmp_path / "old.json").read_text() == "old result"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["old.json", "plot.png"]  # no temporaries left
+    paths = write_all_atomic([(tmp_path / "old.json", "new result"), (tmp_path / "part.cir", "* netlist\n")], force=True)
+    assert [p.name for p in paths] == ["old.json", "part.cir"] and (tmp_path / "old.json").read_text() == "new result"

@@ -9,7 +9,7 @@ from pathlib import Path
 
 from ._errors import OutputExistsError, ZfitInputError
 
-__all__ = ["write_atomic", "check_writable"]
+__all__ = ["write_atomic", "write_all_atomic", "check_writable"]
 
 
 def _umask() -> int:
@@ -113,3 +113,66 @@ def _replace_with(path: Path, raw: bytes) -> None:
         except FileNotFoundError:
             pass
         raise
+
+
+def write_all_atomic(items, force: bool = False) -> list[Path]:
+    """Write several files as one: all of them, or none.
+
+    Every file is first written to a temporary beside it; only when all are
+    on disk are they renamed into place, so a failure while writing (no
+    space left, a refused path) leaves none of the new files and every old
+    one as it was.  A device, FIFO or socket is written in place at the end,
+    a symbolic link's target is replaced (as `write_atomic` does).
+
+    Parameters
+    ----------
+    items : sequence of (path, str or bytes)
+        The files and their contents; text is written as UTF-8.
+    force : bool
+        Whether existing files may be replaced (checked for all before any
+        is written).
+
+    Returns
+    -------
+    list of pathlib.Path
+        The paths written, in the order given.
+    """
+    staged = []  # (given, target, temporary or None, raw)
+    for path, data in items:
+        given = check_writable(path, force)
+        target = Path(os.path.realpath(given)) if given.is_symlink() else given
+        staged.append((given, target, None, data.encode("utf-8") if isinstance(data, str) else bytes(data)))
+    temps = []
+    try:
+        for k, (given, target, _, raw) in enumerate(staged):
+            if _special(target):
+                continue
+            try:
+                target.parent.mkdir(parents=True, exist_ok=True)
+                fd, tmp = tempfile.mkstemp(prefix="." + target.name + ".", suffix=".part", dir=target.parent)
+                temps.append(tmp)
+                os.chmod(tmp, 0o666 & ~_umask())
+                with os.fdopen(fd, "wb") as fh:
+                    fh.write(raw)
+                    fh.flush()
+                    os.fsync(fh.fileno())
+            except OSError as exc:
+                raise ZfitInputError(f"cannot write: {exc.strerror or exc}", given) from None
+            staged[k] = (given, target, tmp, raw)
+        for given, target, tmp, raw in staged:
+            try:
+                if tmp is None:
+                    with open(target, "wb") as fh:
+                        fh.write(raw)
+                else:
+                    os.replace(tmp, target)
+                    temps.remove(tmp)
+            except OSError as exc:
+                raise ZfitInputError(f"cannot write: {exc.strerror or exc}", given) from None
+    finally:
+        for tmp in temps:
+            try:
+                os.unlink(tmp)
+            except FileNotFoundError:
+                pass
+    return [given for given, _, _, _ in staged]

@@ -185,15 +185,13 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
             out["--touchstone"] = f"{part.stem}.s1p"
     written = []
     from .._atomic import write_atomic
-    from .._json import json_text
 
-    written.append(write_atomic(folder / out["--json"], json_text(result.to_dict()), force))
     try:
         written += write_outputs(
             result, plot=folder / out["--plot"], report=folder / out["--report"],
             netlist=folder / out["--netlist"] if "--netlist" in out else None,
             touchstone=folder / out["--touchstone"] if "--touchstone" in out else None,
-            force=force, command=_quoted(_command(part, sweeps, out)),
+            force=force, command=_quoted(_command(part, sweeps, out)), json_path=folder / out["--json"],
         )
     except SynthesisError as exc:
         # The demo shows the refusal as a user meets it, then writes what can be written.
@@ -202,7 +200,7 @@ def _run_part(part: DemoPart, sweeps: Path, folder: Path, force: bool):
         written += write_outputs(
             result, plot=folder / out["--plot"], report=folder / out["--report"],
             touchstone=folder / out["--touchstone"] if "--touchstone" in out else None,
-            force=force, command=_quoted(_command(part, sweeps, out)),
+            force=force, command=_quoted(_command(part, sweeps, out)), json_path=folder / out["--json"],
         )
     if ident is not None and ident.model != "rational" and ident.rational is not None:
         lo, hi = ident.fit.valid_band_hz

@@ -92,14 +92,17 @@ def step_command(
     if not to_stdout:
         for line in step_summary(result):
             echo(line)
-    if plot is not None or netlist is not None or report is not None:
+    files = plot is not None or netlist is not None or report is not None
+    # The JSON belongs to the set of files written together (all or none), unless it goes to standard output.
+    json_in_set = files and json_path is not None and not to_stdout
+    if files:
         from ..outputs._outputs import write_outputs
 
         for path in write_outputs(result, plot=plot, netlist=netlist, report=report, force=force,
-                                  command=command_line()):
+                                  command=command_line(), json_path=json_path if json_in_set else None):
             say(f"wrote {path}")
 
-    if json_path is not None:
+    if json_path is not None and not json_in_set:
         emit_json(result.to_dict(), json_path, force, say)
     if response is not None:
         write_atomic(response, response_csv(result), force)

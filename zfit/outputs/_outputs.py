@@ -98,6 +98,7 @@ def write_outputs(
     command=None,
     netlist_kind: str = "auto",
     touchstone_reference_ohm: float = 50.0,
+    json_path=None,
 ) -> list[Path]:
     """Write the outputs asked for, each atomically; return the paths written.
 
@@ -127,11 +128,15 @@ def write_outputs(
         Which model the netlist holds (see `identification_netlist`).
     touchstone_reference_ohm : float
         Reference impedance of the Touchstone file.
+    json_path : path, optional
+        The result's JSON (``to_dict()``), written with the other files as
+        one set.
 
     Returns
     -------
     list of pathlib.Path
-        Every file written, in order.
+        Every file written, in order; all of them or none (a failure
+        while writing leaves none of the new files).
 
     Raises
     ------
@@ -141,7 +146,7 @@ def write_outputs(
     ZfitInputError
         On an extension that does not say what to write.
     """
-    from .._atomic import write_atomic
+    from .._atomic import write_all_atomic
 
     step = _is_step(result)
     ident = result if not step else _step_identification(result)
@@ -179,9 +184,13 @@ def write_outputs(
             out.append((path, _touchstone_payload(ident, touchstone_grid, touchstone_reference_ohm)))
         elif kind == "report":
             out.append((path, None))  # filled below, once the netlist is known
+    if json_path is not None:
+        from .._json import json_text
+
+        out.insert(0, (check_output_path(json_path, force), json_text(result.to_dict())))
     for path, _ in out:
         check_output_path(path, force)
-    written = []
+    staged = []
     for path, data in out:
         if data is None:
             from ._report import report_html
@@ -191,8 +200,10 @@ def write_outputs(
             data = report_html(rep)
         if callable(data):
             data = data()
-        written.append(write_atomic(path, data, force))
-    return written
+        staged.append((path, data))
+    # All files or none: a failure while writing (a full disk) leaves no
+    # partial set, the JSON without its netlist say.
+    return write_all_atomic(staged, force)
 
 
 def _touchstone_payload(ident, grid, r0):
