@@ -241,6 +241,10 @@ def identify(
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
     at, rdc, rdc_std = _checked_options(sweep, model, at, rdc, rdc_std)
+    from ._few_points import FEW_POINTS, few_point_identification
+
+    if sweep.n_points < FEW_POINTS and model != "rational":
+        return _finish(*few_point_identification(sweep, model, at, rdc, rdc_std))
     band = sweep.band_hz
     obs = Observation.from_sweep(sweep)
     rows_full = 2 * sweep.n_points
