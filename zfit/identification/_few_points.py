@@ -169,10 +169,12 @@ def few_point_identification(sweep: Sweep, model: str, at, rdc: float | None, rd
     FitError
         When not even the series circuit can be fitted.
     """
-    from ..fit._lsq import Observation, Prior, refine
+    from ..fit._lsq import Observation, refine
+    from ._candidates import rdc_prior
     from ._criteria import bic
+    from ._diagnostics import parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates, resolution_of
-    from ._merit import SRF, ModelEvaluator, srf_of_circuit
+    from ._merit import SRF, Estimate, ModelEvaluator, srf_of_circuit
     from ._pipeline import readings
     from ._rational import looks_capacitive
     from ._result import Candidate, FitQuality, Identification, ParameterMap
@@ -182,7 +184,7 @@ def few_point_identification(sweep: Sweep, model: str, at, rdc: float | None, rd
     n = sweep.n_points
     rows = 2 * n
     band = sweep.band_hz
-    prior = None if rdc is None else Prior("R_s" if family == "inductor" else "ESR", rdc, rdc_std)
+    prior = rdc_prior(family, rdc, rdc_std)
     series_circuit = _SeriesCircuit(family)
     full = circuits_of(family)[0]
     third_key = full.keys[2]
@@ -235,7 +237,11 @@ def few_point_identification(sweep: Sweep, model: str, at, rdc: float | None, rd
         )
     else:
         est = parameter_estimates(chosen, sweep)
+        notes.extend(parameter_notes(est, rdc))
         srf = srf_of_circuit(chosen, band)
+    pull = rdc_note(chosen, prior, rdc)
+    if pull is not None:
+        notes.append(pull)
     evaluator = ModelEvaluator(band, rational=None, refinement=chosen)
     read, spot_notes = readings(family, srf, evaluator, at, "extrapolated from the circuit")
     notes.extend(spot_notes)
@@ -256,7 +262,7 @@ def few_point_identification(sweep: Sweep, model: str, at, rdc: float | None, rd
     result = Identification(
         sweep=sweep, model=family, topology=topology, parameters=est, rational=None, srf=srf, fit=fit,
         spot=read.spot, figures=read.merit, curves=read.curves, candidates=candidates, correlation=corr,
-        rdc=None if rdc is None else _rdc_estimate(rdc, rdc_std), refinement=chosen,
+        rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"), refinement=chosen,
     )
     return result, notes
 
@@ -268,9 +274,3 @@ def _padded_correlation(series: Refinement) -> np.ndarray:
     c = np.eye(3)
     c[:2, :2] = correlation_of(series)
     return c
-
-
-def _rdc_estimate(rdc, rdc_std):
-    from ._merit import Estimate
-
-    return Estimate(rdc, rdc_std, "ohm")

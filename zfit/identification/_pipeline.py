@@ -237,12 +237,12 @@ def identify(
     from ._criteria import bic
     from ._diagnostics import adequacy_note, ground_loop_warning, parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates
+    from ._few_points import FEW_POINTS, few_point_identification
     from ._merit import srf_of_circuit
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
     at, rdc, rdc_std = _checked_options(sweep, model, at, rdc, rdc_std)
-    from ._few_points import FEW_POINTS, few_point_identification
-
+    # Too few points for vector fitting and windowed bands: what they resolve, by least squares alone.
     if sweep.n_points < FEW_POINTS and model != "rational":
         return _finish(*few_point_identification(sweep, model, at, rdc, rdc_std))
     band = sweep.band_hz
