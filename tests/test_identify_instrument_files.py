@@ -186,3 +186,29 @@ def test_reduced_chi_square_scaling_stays_on_top_of_a_given_noise_model(tmp_path
     for key in ("L", "R_s", "C_p"):
         assert wrong.parameters[key].value == pytest.approx(right.parameters[key].value, rel=1e-6)
         assert wrong.parameters[key].std == pytest.approx(right.parameters[key].std, rel=1e-4)
+
+
+def test_linear_shunt_thru_sweep_of_a_capacitor_above_its_srf_for_most_points(tmp_path, rng):
+    # 10 uF, 10 mohm, 1 nH: SRF = 1/(2 pi sqrt(ESL C)) = 1.59 MHz.  A linear sweep from 10 kHz to 100 MHz has
+    # 98 % of its points above the SRF (inductive); the family is still read from the bottom of the band.
+    from zfit.identification._rational import looks_capacitive
+
+    C, ESR, ESL = 10e-6, 0.01, 1e-9
+    srf = 1 / (2 * math.pi * math.sqrt(C * ESL))
+    out = {}
+    for name, f in (("log", np.geomspace(1e4, 1e8, 801)), ("linear", np.linspace(1e4, 1e8, 801))):
+        z = inst.capacitor_z(f, C, ESR, ESL)
+        s21, s11 = 2 * z / (2 * z + inst.Z0), -inst.Z0 / (2 * z + inst.Z0)  # shunt part: Pozar 2012, Table 4.1
+        n = lambda s: inst.circular_noise(rng, 1e-3 * np.abs(s) + 1e-5)  # noqa: E731
+        path = inst.write_s2p(tmp_path / f"{name}.s2p", f, s11 + n(s11), s21 + n(s21))
+        result, notes = _identified(path)
+        assert looks_capacitive(result.sweep)
+        assert any("connection shunt-thru taken from the data" in t for t in notes)
+        p = result.parameters
+        assert result.topology == "series C-ESR-ESL"
+        assert p["C"].value == pytest.approx(C, rel=0.02)  # the 2 % on C
+        assert p["ESR"].value == pytest.approx(ESR, rel=0.15)  # the 15 % on ESR (shunt-thru resolves it)
+        assert result.srf.value_hz == pytest.approx(srf, rel=0.005)  # the 0.5 % on the SRF
+        out[name] = result
+    for key in ("C", "ESR", "ESL"):
+        assert _disagreement(out["log"], out["linear"], key) < 3  # independent noise: 3 combined sigma
