@@ -16,7 +16,7 @@ import numpy as np
 
 from ._connection import InstrumentNoise
 
-__all__ = ["NoiseEstimate", "local_sigma", "fitted_noise", "MIN_POINTS_ESTIMATE",
+__all__ = ["NoiseEstimate", "local_sigma", "fitted_noise", "noise_block", "MIN_POINTS_ESTIMATE",
            "SOURCE_GIVEN", "SOURCE_ESTIMATED", "SOURCE_DEFAULT"]
 
 #: With fewer points the local fits have no neighbours to spare: the
@@ -221,3 +221,26 @@ def fitted_noise(f_hz, values, on: str) -> NoiseEstimate | None:
     if not (rel > 0 or floor > 0):
         return None
     return NoiseEstimate(SOURCE_ESTIMATED, rel, floor, on, (float(f[0]), float(f[-1])), int(ok.sum()))
+
+
+def noise_block(sweep) -> dict | None:
+    """Return the ``noise`` block of the JSON outputs for `sweep` (``zfit info`` and ``zfit identify``).
+
+    ``{"on": "S"|"Z", "rel", "floor"}``, with ``source`` ('given',
+    'estimated from the data' or 'default'), the band of the estimate
+    (``f_min_hz``, ``f_max_hz``) and the ``points`` it used when the sweep
+    records where its model came from (`Sweep.noise_estimate`); None when
+    the sweep carries its own sigma without a model.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        The measurement.
+    """
+    if sweep.noise is None:
+        return None
+    block = {"on": "S" if sweep.s_param is not None else "Z", "rel": sweep.noise.rel, "floor": sweep.noise.floor}
+    if sweep.noise_estimate is not None:
+        est = sweep.noise_estimate.to_dict()
+        block.update(source=est["source"], f_min_hz=est["f_min_hz"], f_max_hz=est["f_max_hz"], points=est["points"])
+    return block

@@ -11,8 +11,9 @@ Modules
 _pipeline     `identify`: the named stages, options -> rational -> candidates -> choice -> valid band -> merit -> result
 _rational     the rational model of the full band, its score, its refit with the noise at the circuit
 _candidates   the circuits of each family and the choice between them by the BIC
-_band         the valid band of the chosen circuit and its refit over a sub-band
-_criteria     the BIC and the test of a valid band
+_band         the valid band of the chosen circuit (in log-frequency span) and its refit over a sub-band
+_criteria     the BIC and the test of a valid band; log-frequency cells and spans
+_few_points   sweeps of 2-9 points (LCR-meter tables): what they resolve, without vector fitting
 _estimates    parameter estimates with uncertainties, resolution floors, correlation
 _merit        SRF, Q, D, ESR, spot readouts, curves; `ModelEvaluator` (which model is read where)
 _traces       the figures of merit at every sweep point (what a plot draws)

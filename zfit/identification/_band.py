@@ -1,7 +1,8 @@
 """The valid band of identification: where the chosen circuit holds, and its refit there.
 
-A circuit's band of validity is the longest run of points where its
-residual is within the noise (`zfit.identification._criteria.valid_mask`,
+A circuit's band of validity is the widest run of points (in log-frequency
+span, so that a linear sweep is judged as a log sweep of the same part) where
+its residual is within the noise (`zfit.identification._criteria.valid_mask`,
 compared with the rational model's over sliding windows).  Where that is
 not nearly the whole band, the circuit is refitted over sub-bands (the
 valid run found, the band below each further resonance of the rational
@@ -20,7 +21,7 @@ import numpy as np
 
 from .._errors import FitError
 from ._candidates import circuit_bic
-from ._criteria import longest_run, valid_mask
+from ._criteria import log_cells, longest_run, span_of, valid_mask
 
 if TYPE_CHECKING:
     from ..data._sweep import Sweep
@@ -28,7 +29,7 @@ if TYPE_CHECKING:
     from ..fit._vectfit import RationalModel
     from ._candidates import Choice
 
-__all__ = ["ValidBand", "valid_band"]
+__all__ = ["ValidBand", "valid_band", "band_decades", "widest_family_band"]
 
 
 @dataclass(frozen=True)
@@ -60,6 +61,12 @@ class ValidBand:
         return m
 
 
+def band_decades(f_hz, start: int, stop: int) -> tuple[float, float]:
+    """Return the decades of points ``start:stop`` and of the whole sweep (log-frequency cells summed)."""
+    cells = log_cells(f_hz) / math.log(10.0)
+    return span_of(cells, start, stop), float(cells.sum())
+
+
 def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray | None,
                rational: RationalModel | None, margin: float) -> ValidBand:
     """Return the band where the chosen circuit holds, refitting it over a sub-band where that is wider.
@@ -88,13 +95,32 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
     def residual_energy(ref):
         return np.abs(obs.normalized(ref.impedance(sweep.f_hz))) ** 2
 
+    f = sweep.f_hz
+    n = sweep.n_points
+    cells = log_cells(f)
+    total = float(cells.sum())
+
+    def run_of(e):
+        return longest_run(valid_mask(e, e_rat, f), cells)
+
+    # Spans in mean cells, to 0.01: on an evenly log-spaced sweep these are
+    # point counts, and runs of equal count tie whatever the rounding of the
+    # printed frequencies (the first found wins, as by points).
+    cell = total / n
+
+    def width(run):
+        return round(span_of(cells, run[0], run[1]) / cell, 2)
+
+    def weight(mask):
+        return round(float(cells[mask].sum()) / cell, 2)
+
     e_c = residual_energy(chosen)
-    i0, i1 = longest_run(valid_mask(e_c, e_rat))
+    i0, i1 = run_of(e_c)
     fitted_mask = None
     k = chosen.circuit.n_params
-    n = sweep.n_points
+    # A count of points, not a span: the equations a fit needs.
     min_pts = max(10, 4 * k + 2)
-    if (i1 - i0) < 0.97 * n:
+    if width((i0, i1)) < 0.97 * n:
         base, full = circuits_of(family)
 
         def sub_fit(circuit, mask, seed=None):
@@ -105,7 +131,7 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
             except FitError:
                 return None
             e = residual_energy(ref)
-            return ref, e, longest_run(valid_mask(e, e_rat)), mask
+            return ref, e, run_of(e), mask
 
         logf = np.log(sweep.f_hz)
         span = logf[-1] - logf[0]
@@ -126,7 +152,8 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
 
         def consider(got):
             nonlocal best
-            if got is not None and (best is None or (got[2][1] - got[2][0], got[3].sum()) > (best[2][1] - best[2][0], best[3].sum())):
+            if got is not None and (best is None or (width(got[2]), weight(got[3])) >
+                                    (width(best[2]), weight(best[3]))):
                 best = got
 
         for m in masks:
@@ -136,7 +163,9 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
         # there, stays within the noise: a bisection on the other end.
         for from_bottom in (True, False):
             good, lo_n, hi_n = None, min_pts, n - 1
-            while hi_n - lo_n > max(2, n // 64):
+            # Down to a 64th of the band's log span (and 2 points).
+            while hi_n - lo_n > 2 and (span_of(cells, lo_n, hi_n) if from_bottom
+                                       else span_of(cells, n - hi_n, n - lo_n)) > total / 64:
                 mid = (lo_n + hi_n) // 2
                 m = np.zeros(n, bool)
                 if from_bottom:
@@ -144,12 +173,12 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
                 else:
                     m[n - mid:] = True
                 got = sub_fit(chosen.circuit, m)
-                if got is not None and valid_mask(got[1], e_rat)[m].mean() >= 0.97:
+                if got is not None and cells[m][valid_mask(got[1], e_rat, f)[m]].sum() >= 0.97 * cells[m].sum():
                     good, lo_n = got, mid
                 else:
                     hi_n = mid
             consider(good)
-        if best is not None and (best[2][1] - best[2][0]) > (i1 - i0):
+        if best is not None and width(best[2]) > width((i0, i1)):
             # Refit over the valid run found, and decide the optional element there.
             j0, j1 = best[2]
             m = np.zeros(n, bool)
@@ -163,9 +192,48 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
                     rows_m = 2 * int(m.sum())
                     if circuit_bic(got_f[0], rows_m) < circuit_bic(got_b[0], rows_m) - margin:
                         pick = got_f
-                if (pick[2][1] - pick[2][0]) >= (best[2][1] - best[2][0]):
+                if width(pick[2]) >= width(best[2]):
                     best = pick
             chosen, e_c, (i0, i1), fitted_mask = best
     if i1 <= i0:
         i0, i1 = 0, 0
     return ValidBand(chosen, e_c, i0, i1, fitted_mask)
+
+
+def widest_family_band(sweep: Sweep, obs: Observation, fits, picked: Choice, vb: ValidBand, e_rat, rational,
+                       margin: float) -> tuple[Choice, ValidBand]:
+    """Return the family whose valid band is wider in log frequency, when the chosen one holds over little of it.
+
+    The family is chosen by the BIC over all points; a linear sweep puts 90 %
+    of them in its top decade, where the part may look like the other
+    family (above its SRF).  When the chosen circuit holds over less than a
+    quarter of the band's log span, the other family's circuit is tried for
+    its valid band, and the family valid over the wider span is reported.
+
+    Parameters
+    ----------
+    sweep, obs, e_rat, rational, margin
+        As for `valid_band`.
+    fits : CandidateFits
+        The circuits fitted for each family.
+    picked : Choice
+        The family chosen by the BIC.
+    vb : ValidBand
+        Its valid band.
+    """
+    from ._candidates import Choice, circuit_bic, rdc_prior
+
+    own, total = band_decades(sweep.f_hz, vb.start, vb.stop)
+    others = [fam for fam in fits.base if fam != picked.family]
+    if own >= 0.25 * total or not others:
+        return picked, vb
+    other = others[0]
+    rows = 2 * sweep.n_points
+    base, opt = fits.base[other], fits.optional.get(other)
+    chosen = opt if opt is not None and circuit_bic(opt, rows) < circuit_bic(base, rows) - margin else base
+    prior = None if picked.prior is None else rdc_prior(other, picked.prior.value, picked.prior.std)
+    alt = Choice(other, chosen, prior, picked.ranked)
+    alt_vb = valid_band(sweep, obs, alt, e_rat, rational, margin)
+    if band_decades(sweep.f_hz, alt_vb.start, alt_vb.stop)[0] > own:
+        return alt, alt_vb
+    return picked, vb

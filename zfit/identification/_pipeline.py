@@ -232,15 +232,19 @@ def identify(
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
     from ..fit._lsq import Observation
-    from ._band import valid_band
+    from ._band import band_decades, valid_band, widest_family_band
     from ._candidates import candidate_fits, choice
     from ._criteria import bic
     from ._diagnostics import adequacy_note, ground_loop_warning, parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates
+    from ._few_points import FEW_POINTS, few_point_identification
     from ._merit import srf_of_circuit
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
     at, rdc, rdc_std = _checked_options(sweep, model, at, rdc, rdc_std)
+    # Too few points for vector fitting and windowed bands: what they resolve, by least squares alone.
+    if sweep.n_points < FEW_POINTS and model != "rational":
+        return _finish(*few_point_identification(sweep, model, at, rdc, rdc_std))
     band = sweep.band_hz
     obs = Observation.from_sweep(sweep)
     rows_full = 2 * sweep.n_points
@@ -261,6 +265,7 @@ def identify(
 
     e_rat = None if stage.score is None else stage.score.energy
     vb = valid_band(sweep, obs, picked, e_rat, stage.rational, margin)
+    picked, vb = widest_family_band(sweep, obs, fits, picked, vb, e_rat, stage.rational, margin)
     chosen, i0, i1, fitted_mask = vb.chosen, vb.start, vb.stop, vb.fitted_mask
     stage = reweighted_rational(sweep, stage, chosen, vb.inside(sweep.n_points), obs)
     rational = stage.rational
@@ -271,10 +276,12 @@ def identify(
     fitted_band = band if fitted_mask is None else (float(sweep.f_hz[fitted_mask][0]), float(sweep.f_hz[fitted_mask][-1]))
     bic_c_full = bic(float(2 * vb.energy.sum()), rows_full, chosen.circuit.n_params)
     worse = bic_rat is not None and bic_c_full > bic_rat + margin
-    if model == "auto" and rational is not None and (i1 - i0) < max(10, 0.25 * sweep.n_points):
+    decades = band_decades(sweep.f_hz, i0, i1)
+    if model == "auto" and rational is not None and ((i1 - i0) < 10 or decades[0] < 0.25 * decades[1]):
         notes.append(
             f"no equivalent circuit describes this part: the best, {chosen.circuit.topology}, is within the noise "
-            f"over {i1 - i0} of {sweep.n_points} points only; the rational model is reported"
+            f"over {decades[0]:.2g} of {decades[1]:.2g} decades ({i1 - i0} of {sweep.n_points} points) only; "
+            "the rational model is reported"
         )
         return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
     if worse:

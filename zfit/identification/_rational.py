@@ -86,9 +86,16 @@ def looks_capacitive(sweep: Sweep) -> bool:
     """Whether the reactance at the bottom of the band is negative.
 
     Negative for a capacitor below its SRF (and for an inductor measured
-    only above its SRF, which the model choice then sorts out).
+    only above its SRF, which the model choice then sorts out).  The median
+    over the bottom 5 % of the band in log frequency (at least 3 points):
+    the bottom 5 % of the points of a linear sweep would reach far into its
+    top decade.
     """
-    n = max(3, sweep.n_points // 20)
+    x = np.log(sweep.f_hz)
+    # Strictly inside 5 % of the span, half a mean spacing short: an evenly
+    # log-spaced sweep keeps its bottom N/20 points whatever the rounding.
+    edge = x[0] + 0.05 * (x[-1] - x[0]) - 0.5 * (x[-1] - x[0]) / max(x.size - 1, 1)
+    n = max(3, int(np.count_nonzero(x < edge)))
     return bool(np.median(sweep.z_ohm[:n].imag) < 0)
 
 

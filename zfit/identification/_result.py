@@ -288,6 +288,7 @@ class Identification:
         string.
         """
         from .._version import __version__
+        from ..data._noise import noise_block
 
         corr = None
         if self.correlation is not None and len(self.parameters):
@@ -314,6 +315,7 @@ class Identification:
             "spot": [s.to_dict() for s in self.spot],
             "warnings": list(self.warnings),
             "notes": list(self.sweep.notes),
+            "noise": noise_block(self.sweep),
         }
 
 

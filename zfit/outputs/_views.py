@@ -327,6 +327,7 @@ def info_dict(sweep) -> dict:
     sweep : Sweep
         What `zfit.read_sweep` returned.
     """
+    from ..data._noise import noise_block
     from ..io._sweep_file import conditioning_note
 
     mag = np.abs(sweep.z_ohm)
@@ -334,12 +335,7 @@ def info_dict(sweep) -> dict:
         rel = sweep.sigma_ohm / mag
     i_min, i_max = int(np.argmin(mag)), int(np.argmax(mag))
     warning = conditioning_note(sweep)
-    noise = None
-    if sweep.noise is not None:
-        noise = {"on": "S" if sweep.s_param is not None else "Z", "rel": sweep.noise.rel, "floor": sweep.noise.floor}
-        if sweep.noise_estimate is not None:
-            est = sweep.noise_estimate.to_dict()
-            noise.update(source=est["source"], f_min_hz=est["f_min_hz"], f_max_hz=est["f_max_hz"], points=est["points"])
+    noise = noise_block(sweep)
     return {
         "schema": INFO_SCHEMA,
         "source": sweep.source,
