@@ -46,7 +46,7 @@ CHILD = r"""
 import json, resource, sys, time, tracemalloc
 import numpy as np
 import pandas as pd
-import zfit.io._capture, zfit.capture._step, scipy.signal  # imported before the baseline
+import zfit.io._capture, zfit.capture._analysis, scipy.signal  # imported before the baseline
 kind, path, skip = sys.argv[1], sys.argv[2], int(sys.argv[3])
 base = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
 tracemalloc.start()
@@ -67,7 +67,7 @@ elif kind == "read_csv":
 elif kind == "zfit-analysis":
     cap = zfit.io._capture.read_capture(path)
     t1 = time.perf_counter()
-    r = zfit.capture._step.analyse_capture(cap, "CH1", "CH2")
+    r = zfit.capture._analysis.analyse_capture(cap, "CH1", "CH2")
     out["analysis_s"] = time.perf_counter() - t1
     out["read_s"] = t1 - t0
     out["tau_s"] = r.time_constant_s
