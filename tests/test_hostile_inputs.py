@@ -93,3 +93,126 @@ def test_shunt_range_helper():
     for text in ("1e-300", "1e300"):
         with pytest.raises(ZfitInputError, match=r"--shunt .* is out of range: give a value between 1m ohm and 1G ohm"):
             quantity(text, "--shunt", *SHUNT_RANGE_OHM, unit="ohm")
+
+
+# ------------------------------------------------------------------ Touchstone
+
+S1P_LINES = S1P.read_text().splitlines()
+OPTION = S1P_LINES.index("# GHz S RI R 50")
+TS2 = DEMO / "choke_470u_winding_resonance.ts"
+TS2_LINES = TS2.read_text().splitlines()
+
+
+def s1p_with(tmp_path, option=None, extra=None, at=None, name="x.s1p"):
+    """The demo reflection file with its option line replaced and/or a line inserted at index `at`."""
+    lines = list(S1P_LINES)
+    if option is not None:
+        lines[OPTION] = option
+    if extra is not None:
+        lines.insert(at, extra)
+    p = tmp_path / name
+    p.write_text("\n".join(lines) + "\n")
+    return p
+
+
+def ts2_with(tmp_path, replace=None, insert=None, drop=None, name="x.ts"):
+    """The demo 2.0 file edited: lines replaced {old: new}, inserted [(index, text)], dropped (by text)."""
+    lines = [replace.get(x, x) if replace else x for x in TS2_LINES]
+    lines = [x for x in lines if x != drop]
+    for at, text in sorted(insert or (), reverse=True):
+        lines.insert(at if at >= 0 else len(lines) + at + 1, text)
+    p = tmp_path / name
+    p.write_text("\n".join(lines) + "\n")
+    return p
+
+
+@pytest.mark.parametrize("option, message", [
+    ("# GHz S RI R 50 75", r":4: 2 reference impedances \(50, 75 ohm\) for a one-port file; give one"),
+    ("# GHz MHz S RI R 50", r":4: option line: two frequency units \(GHz and MHz\); give one"),
+    ("# GHz S RI MA R 50", r":4: option line: two data formats \(RI and MA\); give one"),
+    ("# GHz S RI R 1e-300", r":4: reference impedance 1e-300 ohm is outside 0.001 .. 1e\+06 ohm"),
+    ("# GHz S RI R 1e300", r":4: reference impedance 1e\+300 ohm is outside 0.001 .. 1e\+06 ohm"),
+])
+def test_ambiguous_or_extreme_option_line_is_refused(tmp_path, option, message):
+    p = s1p_with(tmp_path, option)
+    before = folder_bytes(tmp_path)
+    assert_refused(run("info", p), re.escape(str(p)) + message, before, tmp_path)
+
+
+def test_second_option_line_inside_the_data_is_refused(tmp_path):
+    p = s1p_with(tmp_path, extra="# MHz S RI R 50", at=OPTION + 10)
+    assert_refused(run("info", p), rf"{re.escape(str(p))}:{OPTION + 11}: a second option line '# MHz S RI R 50', "
+                   r"different from the first \('# GHz S RI R 50' at line 4\)")
+
+
+def test_repeated_identical_option_line_is_a_note(tmp_path):
+    p = s1p_with(tmp_path, extra="# GHz S RI R 50", at=OPTION + 10)
+    r = run("info", p)
+    assert_read(r)
+    assert f"option line repeated at line {OPTION + 11} (same as line 4)" in r.output
+
+
+def _ma_file(tmp_path, mag, ang):
+    # A 1 mH-ish reflection point set in MA: |S11| = 0.9, angles spread (invented values).
+    rows = [f"{f:g} {mag if i == 5 else 0.9} {ang if i == 5 else 10.0 + i}" for i, f in enumerate(np.geomspace(1, 100, 30))]
+    p = tmp_path / "ma.s1p"
+    p.write_text("# MHz S MA R 50\n" + "\n".join(rows) + "\n")
+    return p
+
+
+def test_negative_magnitude_in_ma_is_refused(tmp_path):
+    p = _ma_file(tmp_path, -0.5, 10.0)
+    assert_refused(run("info", p), rf"{re.escape(str(p))}:7: magnitude -0.5 is negative \(MA format")
+
+
+def test_angle_beyond_360_degrees_is_refused(tmp_path):
+    p = _ma_file(tmp_path, 0.9, 1000.0)
+    assert_refused(run("info", p), rf"{re.escape(str(p))}:7: angle 1000 deg is beyond \+-360 deg")
+
+
+def test_angle_of_270_degrees_is_read_with_a_note(tmp_path):
+    p = _ma_file(tmp_path, 0.9, 270.0)
+    r = run("info", p, "--json", tmp_path / "i.json")
+    assert_read(r)
+    assert "1 angle(s) between 180 and 360 deg (first at line 7) read as the same direction" in r.output
+
+
+@pytest.mark.parametrize("edit, message", [
+    (dict(drop="[Number of Frequencies] 1001"), r":4: Touchstone 2.0 file without \[Number of Frequencies\]"),
+    (dict(replace={"[Two-Port Data Order] 12_21": "[Two-Port Data Order] 13_31"}),
+     r":7: \[Two-Port Data Order\] '13_31': expected 12_21 or 21_12"),
+    (dict(insert=[(10, "[Matrix Format] Full")]), r":11: \[Matrix Format\] given twice \(first at line 10\)"),
+    (dict(insert=[(-2, "[Network Data]")]), r":\d+: \[Network Data\] given twice \(first at line 11\)"),
+    (dict(insert=[(8, "[Number of Noise Frequencies] 3")]),
+     r":9: \[Number of Noise Frequencies\] is given but there is no \[Noise Data\]"),
+    (dict(insert=[(8, "[Colour] blue")]), r":9: unknown Touchstone 2.0 keyword \[Colour\]$"),
+    (dict(insert=[(-1, "200000001 0 0 0 0 0 0")]), r":\d+: data after \[End\] \(line \d+\)"),
+    (dict(replace={TS2_LINES[20]: TS2_LINES[20].replace("e-01", "_0", 1)}), r":21: '\S*_0' is not a number"),
+])
+def test_touchstone_2_violations_are_refused(tmp_path, edit, message):
+    p = ts2_with(tmp_path, **edit)
+    r = run("info", p)
+    assert_refused(r, re.escape(str(p)) + message)
+    assert "ValueError" not in r.output
+
+
+def test_underscore_number_in_1x_data_names_its_line(tmp_path):
+    lines = list(S1P_LINES)
+    lines[OPTION + 5] = "1_0 0.5 0.1"
+    p = tmp_path / "u.s1p"
+    p.write_text("\n".join(lines) + "\n")
+    assert_refused(run("info", p), rf"{re.escape(str(p))}:{OPTION + 6}: '1_0' is not a number")
+
+
+def test_denormal_frequency_is_refused_with_the_range(tmp_path):
+    lines = list(S1P_LINES)
+    lines[OPTION + 2] = "1e-310 -0.98 0.16"
+    p = tmp_path / "d.s1p"
+    p.write_text("\n".join(lines) + "\n")
+    assert_refused(run("info", p), rf"{re.escape(str(p))}:{OPTION + 3}: frequency 1e-301 Hz is outside 1u Hz \.\. 10T Hz")
+
+
+def test_bom_touchstone_is_read(tmp_path):
+    p = tmp_path / "b.s1p"
+    p.write_bytes(b"\xef\xbb\xbf" + S1P.read_bytes())
+    assert_read(run("info", p))
