@@ -216,3 +216,87 @@ def test_bom_touchstone_is_read(tmp_path):
     p = tmp_path / "b.s1p"
     p.write_bytes(b"\xef\xbb\xbf" + S1P.read_bytes())
     assert_read(run("info", p))
+
+
+# ------------------------------------------------------------------ tables
+
+ZPH = DEMO / "ind_100u_analyser_zphase.csv"
+ZPH_LINES = ZPH.read_text().splitlines()  # line 3 is the header, data from line 4
+
+
+def table_with(tmp_path, lines, name="t.csv"):
+    p = tmp_path / name
+    p.write_text("\n".join(lines) + "\n")
+    return p
+
+
+def info_json(tmp_path, p):
+    import json
+
+    r = run("info", p, "--json", tmp_path / "i.json", "--force")
+    assert_read(r)
+    return json.loads((tmp_path / "i.json").read_text()), r
+
+
+def test_table_variants_read_as_the_original(tmp_path):
+    # The same data with a units row, German header names, an end marker and
+    # CR-only line endings: the same points as the demo table (exactly: same numbers).
+    ref, _ = info_json(tmp_path, ZPH)
+    body = ZPH_LINES[3:]
+    variants = {
+        "units.csv": ["Frequency,|Z|,Phase", "Hz,Ohm,deg"] + body,
+        "german.csv": ["Frequenz (Hz),Impedanz (Ohm),Phase (deg)"] + body,
+        "french.csv": ["Fréquence (Hz),Impédance (Ohm),Déphasage (deg)"] + body,
+        "end.csv": ZPH_LINES + ["END"],
+    }
+    for name, lines in variants.items():
+        got, r = info_json(tmp_path, table_with(tmp_path, lines, name))
+        assert got["points"] == ref["points"] == 401, name
+        for key in ("f_min_hz", "f_max_hz", "z_min_ohm", "z_max_ohm"):
+            assert got[key] == ref[key], (name, key)
+    assert "units taken from the row under the header (line 2)" in info_json(tmp_path, tmp_path / "units.csv")[1].output
+    assert "1 text line(s) after the data ignored (line 405: 'END')" in info_json(tmp_path, tmp_path / "end.csv")[1].output
+    cr = tmp_path / "cr.csv"
+    cr.write_bytes("\r".join(ZPH_LINES).encode() + b"\r")
+    got, _ = info_json(tmp_path, cr)
+    assert got["points"] == 401 and got["f_max_hz"] == ref["f_max_hz"] and got["z_max_ohm"] == ref["z_max_ohm"]
+
+
+def test_overrange_code_in_a_table_is_a_missing_point(tmp_path):
+    lines = list(ZPH_LINES)
+    lines[10] = lines[10].split(",")[0] + ",9.9E37,9.9E37"
+    got, r = info_json(tmp_path, table_with(tmp_path, lines))
+    assert got["points"] == 400  # 401 rows, one code dropped
+    assert "1 row(s) with the instrument's overrange code (9.9e+37) dropped as missing points (line 11)" in r.output
+
+
+@pytest.mark.parametrize("value, message", [
+    ("-0.5", r":12: \|Z\| = -0.5 is negative"),
+    ("1e300", r":12: \|Z\| = 1e\+300 ohm is outside 1p ohm \.\. 1T ohm"),
+    ("1e37", r":12: \|Z\| = 1e\+37 ohm is outside"),
+    ("1e-300", r":12: \|Z\| = 1e-300 ohm is outside"),
+])
+def test_extreme_or_negative_magnitude_in_a_table_is_refused(tmp_path, value, message):
+    lines = list(ZPH_LINES)
+    f, _, ph = lines[11].split(",")
+    lines[11] = f"{f},{value},{ph}"
+    p = table_with(tmp_path, lines)
+    before = folder_bytes(tmp_path)
+    assert_refused(run("info", p), re.escape(str(p)) + message, before, tmp_path)
+
+
+def test_table_of_zero_impedance_is_refused(tmp_path):
+    lines = ZPH_LINES[:3] + [f"{ln.split(',')[0]},0,0" for ln in ZPH_LINES[3:]]
+    p = table_with(tmp_path, lines)
+    assert_refused(run("info", p), re.escape(str(p)) + r": \|Z\| is zero at every one of the 401 points: nothing usable")
+
+
+def test_long_header_line_is_read_in_linear_time(tmp_path):
+    import time
+
+    # A 120 kB header field of slashes and brackets took 51 s with the old pattern (issue 16).
+    p = table_with(tmp_path, ["a/(" * 40000 + "," + ZPH_LINES[2]] + [f"1,{x}" for x in ZPH_LINES[3:]])
+    t = time.perf_counter()
+    r = run("info", p)
+    assert time.perf_counter() - t < 2.0  # common practice: well under a second here
+    assert r.exit_code in (0, 2) and "Traceback" not in r.output
