@@ -300,3 +300,46 @@ def test_long_header_line_is_read_in_linear_time(tmp_path):
     r = run("info", p)
     assert time.perf_counter() - t < 2.0  # common practice: well under a second here
     assert r.exit_code in (0, 2) and "Traceback" not in r.output
+
+
+# ------------------------------------------------------------------ limits files
+
+LIMITS = 'title = "goods-in"\n[limit.L]\nnominal = "2.2u"\ntolerance_percent = 10\n[limit.SRF]\nmin = "20M"\n'
+
+
+def test_limits_file_with_a_byte_order_mark_is_read(tmp_path):
+    from zfit.io._limits_file import read_limits
+
+    p = tmp_path / "l.toml"
+    p.write_bytes(b"\xef\xbb\xbf" + LIMITS.encode())
+    lim = read_limits(p)
+    # 2.2 uH +-10 %: 1.98 uH .. 2.42 uH (arithmetic).
+    assert lim.limits[0].lower == pytest.approx(1.98e-6, rel=1e-12)
+    assert lim.limits[0].upper == pytest.approx(2.42e-6, rel=1e-12)
+    assert lim.limits[1].lower == pytest.approx(20e6, rel=1e-15)
+
+
+def test_limits_file_with_a_byte_order_mark_through_batch(tmp_path):
+    p = tmp_path / "l.toml"
+    p.write_bytes(b"\xef\xbb\xbf" + LIMITS.encode())
+    r = run("batch", S1P, "--limits", p, "--out", tmp_path / "out")
+    assert r.exit_code in (0, 1), r.output  # a verdict, not a refusal of the file
+    assert "not valid TOML" not in r.output and "Traceback" not in r.output
+
+
+@pytest.mark.parametrize("text, line, message", [
+    (LIMITS.replace('"2.2u"', '"2.2uF"'), 3, r"limit L: nominal '2.2uF' is in F, but this quantity is in H"),
+    (LIMITS.replace('"20M"', '"20 MOhm"'), 6, r"limit SRF: min '20 MOhm' is in ohm, but this quantity is in Hz"),
+    (LIMITS.replace('"2.2u"', '"0"'), 3, r"limit L: nominal '0' must be positive"),
+    (LIMITS.replace('"2.2u"', '"-2.2u"'), 3, r"limit L: nominal '-2.2u' must be positive"),
+])
+def test_limits_values_are_checked_against_the_quantity(tmp_path, text, line, message):
+    from zfit._errors import ZfitInputError
+    from zfit.io._limits_file import read_limits
+
+    p = tmp_path / "l.toml"
+    p.write_text(text)
+    with pytest.raises(ZfitInputError) as info:
+        read_limits(p)
+    assert info.value.line == line
+    assert re.fullmatch(message, info.value.message), info.value.message

@@ -7,7 +7,7 @@ import re
 
 from ._errors import ZfitInputError
 
-__all__ = ["format_eng", "format_value_std", "parse_quantity", "bounded", "PREFIXES"]
+__all__ = ["format_eng", "format_value_std", "parse_quantity", "bounded", "written_unit", "PREFIXES"]
 
 #: SI prefix letters by power of ten; ``u`` stands for micro so that the text
 #: stays ASCII.
@@ -160,3 +160,31 @@ def bounded(value: float, what: str, lo: float | None = None, hi: float | None =
     else:
         span = "that is a finite number"
     raise ZfitInputError(f"{what} {format_eng(value, unit)} is out of range: give a value {span}")
+
+
+_CANONICAL_UNIT = {"ohms": "ohm", "ohm": "ohm", "Ohm": "ohm", "Ω": "ohm", "Hz": "Hz", "hz": "Hz"}
+
+
+def written_unit(text: str | float) -> str | None:
+    """Return the unit written after a number in engineering notation, or None.
+
+    ``"2.2uF"`` -> ``"F"``, ``"20 MOhm"`` -> ``"ohm"``, ``"100k"`` -> None;
+    the spelling is made canonical (``Ohm``, ``ohms``, ``Ω`` -> ``ohm``).
+    Used to check a value against the unit of the quantity it is given for,
+    which `parse_quantity` does not know.
+
+    Parameters
+    ----------
+    text : str or float
+        What the user wrote (a number has no unit).
+    """
+    if isinstance(text, (int, float)):
+        return None
+    m = _NUMBER.match(str(text))
+    if not m:
+        return None
+    rest = m.group(2)
+    for unit in _UNITS:
+        if rest.endswith(unit) and (rest[: -len(unit)].strip() in _EXPONENTS or rest[: -len(unit)].strip() == ""):
+            return _CANONICAL_UNIT.get(unit, unit)
+    return None
