@@ -343,3 +343,90 @@ def test_limits_values_are_checked_against_the_quantity(tmp_path, text, line, me
         read_limits(p)
     assert info.value.line == line
     assert re.fullmatch(message, info.value.message), info.value.message
+
+
+# ------------------------------------------------------------------ binary captures
+
+RING = DEMO / "coil_4m7_ring_100k.csv"
+
+
+def _good_npz(tmp_path, **extra):
+    # A 1 kHz sine on CH1 sampled at 1 MHz (invented values).
+    t = np.arange(2000) * 1e-6
+    p = tmp_path / "cap.npz"
+    np.savez(p, t=t, CH1=np.sin(2 * np.pi * 1e3 * t), **extra)
+    return p
+
+
+def test_good_npz_still_reads(tmp_path):
+    from zfit.io._capture import read_capture
+
+    cap = read_capture(_good_npz(tmp_path))
+    assert cap.n_samples == 2000
+    assert cap.sample_rate_hz == pytest.approx(1e6, rel=1e-9)  # dt = 1 us as written
+
+
+def test_truncated_npz_is_one_line(tmp_path):
+    p = _good_npz(tmp_path)
+    p.write_bytes(p.read_bytes()[:3000])
+    before = folder_bytes(tmp_path)
+    r = run("step", p, "-i", "CH1", "-o", "CH1")
+    assert_refused(r, re.escape(str(p)) + r": cannot read as a numpy archive \(\.npz\): the zip file is truncated", before,
+                   tmp_path)
+
+
+def test_truncated_added_capture_is_one_line(tmp_path):
+    p = _good_npz(tmp_path)
+    p.write_bytes(p.read_bytes()[:3000])
+    r = run("step", RING, "-i", "CH1", "-o", "CH2", "--added-capture", p, "--added-capacitance", "100p")
+    assert_refused(r, re.escape(str(p)) + r": cannot read as a numpy archive")
+
+
+def test_npy_header_claiming_1e12_rows_is_refused_before_loading(tmp_path):
+    from numpy.lib import format as npy
+
+    p = tmp_path / "big.npy"
+    with open(p, "wb") as fh:
+        npy.write_array_header_1_0(fh, {"descr": "<f8", "fortran_order": False, "shape": (10**12, 3)})
+        fh.write(b"\0" * 4800)
+    assert_refused(run("step", p, "-i", "col2", "-o", "col3"),
+                   re.escape(str(p)) + r": the file declares shape \(1000000000000, 3\) of float64 \(2\.24e\+04 GiB\), "
+                   r"beyond the 2 GiB zfit loads")
+
+
+def test_npy_header_claiming_more_than_the_file_holds_is_refused(tmp_path):
+    p = tmp_path / "short.npy"
+    np.save(p, np.zeros((1000, 3)))
+    p.write_bytes(p.read_bytes()[:-800])
+    assert_refused(run("step", p, "-i", "col2", "-o", "col3"),
+                   r"declares shape \(1000, 3\) of float64 \(24000 bytes\) but holds 23200 bytes of data: truncated")
+
+
+def test_garbage_npy_does_not_suggest_allow_pickle(tmp_path, rng):
+    p = tmp_path / "g.npy"
+    p.write_bytes(rng.integers(0, 256, 4096, dtype=np.uint8).tobytes())
+    r = run("step", p, "-i", "col2", "-o", "col3")
+    assert_refused(r, re.escape(str(p)) + r": the file is not a numpy \.npy array \(no readable numpy header\)")
+    assert "pickle" not in r.output
+
+
+def test_zip_bomb_npz_is_refused_by_declared_size(tmp_path, monkeypatch):
+    import zfit.io._capture as capture
+
+    # 16 MB of zeros deflate to ~16 kB; with the budget set to 1 MB the
+    # archive's declared sizes refuse it before a byte is inflated.
+    p = tmp_path / "bomb.npz"
+    np.savez_compressed(p, t=np.arange(10) * 1e-6, CH1=np.zeros(2 * 1024**2))
+    assert p.stat().st_size < 100_000
+    monkeypatch.setattr(capture, "MEMORY_BUDGET_BYTES", 1024**2)
+    assert_refused(run("step", p, "-i", "CH1", "-o", "CH1"),
+                   re.escape(str(p)) + r": the archive declares 0\.0156 GiB of arrays, beyond the 0\.000977 GiB")
+
+
+@pytest.mark.parametrize("extra, message", [
+    (dict(CH2=np.array(["a", "b", "c"])), r"array 'CH2' holds <U1 values, not real numbers"),
+    (dict(CH2=np.zeros((2000, 2))), r"array 'CH2' has shape \(2000, 2\): a channel is one row of samples"),
+])
+def test_bad_channel_in_npz_is_named(tmp_path, extra, message):
+    p = _good_npz(tmp_path, **extra)
+    assert_refused(run("step", p, "-i", "CH1", "-o", "CH2"), re.escape(str(p)) + ": " + message)
