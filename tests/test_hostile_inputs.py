@@ -430,3 +430,50 @@ def test_zip_bomb_npz_is_refused_by_declared_size(tmp_path, monkeypatch):
 def test_bad_channel_in_npz_is_named(tmp_path, extra, message):
     p = _good_npz(tmp_path, **extra)
     assert_refused(run("step", p, "-i", "CH1", "-o", "CH2"), re.escape(str(p)) + ": " + message)
+
+
+# ------------------------------------------------------------------ text captures
+
+
+def test_capture_with_carriage_returns_only_reads_as_the_original(tmp_path):
+    from zfit.io._capture import read_capture
+
+    p = tmp_path / "cr.csv"
+    p.write_bytes(RING.read_bytes().replace(b"\r\n", b"\n").replace(b"\n", b"\r"))
+    a, b = read_capture(RING), read_capture(p)
+    assert b.n_samples == a.n_samples == 10000
+    assert b.sample_rate_hz == pytest.approx(a.sample_rate_hz, rel=1e-12)  # 25 MSa/s as written
+    np.testing.assert_array_equal(b.channel("CH2"), a.channel("CH2"))
+
+
+def _side_capture(tmp_path, rows=5000, bad_row=None):
+    # Settings in columns 1-3 beside time and voltage in 4-5, a step at t = 0
+    # sampled every 40 ns (invented values).
+    t = np.arange(rows) * 4e-8 - 1e-5
+    v = np.where(t > 0, 1.0, 0.0)
+    meta = [("Record Length", "5000", "Points"), ("Sample Interval", "4e-08", "s"), ("Trigger Point", "250", "Samples"),
+            ("Source", "CH1", ""), ("Vertical Units", "V", "")]
+    lines = []
+    for i in range(rows):
+        a, b, c = meta[i] if i < len(meta) else ("", "", "")
+        lines.append(f"{a},{b},{c},{t[i]:.6e},{v[i]:.5f},")
+    if bad_row is not None:
+        lines[bad_row] = ",,,-1.0e-06,oops,"
+    p = tmp_path / "side.csv"
+    p.write_text("\n".join(lines) + "\n")
+    return p
+
+
+def test_capture_with_settings_beside_the_samples(tmp_path):
+    from zfit.io._capture import read_capture
+
+    cap = read_capture(_side_capture(tmp_path))
+    assert cap.n_samples == 5000
+    assert cap.sample_rate_hz == pytest.approx(25e6, rel=1e-9)  # 1 / 40 ns as written
+    assert cap.t0 == pytest.approx(-1e-5, rel=1e-9)
+    assert "settings read from columns 1-3 beside the samples" in cap.notes
+
+
+def test_capture_with_settings_beside_a_bad_row_names_its_line(tmp_path):
+    p = _side_capture(tmp_path, bad_row=100)
+    assert_refused(run("step", p, "-i", "col1", "-o", "col2"), re.escape(str(p)) + r":101: ")
