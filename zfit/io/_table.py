@@ -513,11 +513,20 @@ def read_table(path, columns: str | None = None) -> TableData:
 
 
 def _without_overrange(values, data_idx, cols, path, notes):
-    """The rows without an instrument's overrange code (9.9E37, 9.91E37) in the columns used, with a note."""
+    """The rows without an instrument's overrange code (9.9E37, 9.91E37) in the columns used, with a note.
+
+    Any other number beyond 1e30 is refused with its line: no impedance
+    measurement reaches it, and its products overflow.
+    """
     with np.errstate(invalid="ignore"):
         a = np.abs(values[:, cols])
         over = np.any((np.abs(a - _OVERRANGE_CODES[0]) <= 1e-6 * OVERRANGE)
                       | (np.abs(a - _OVERRANGE_CODES[1]) <= 1e-6 * OVERRANGE), axis=1)
+    huge = np.isfinite(a) & (a > 1e30) & ~over[:, None]
+    if huge.any():
+        i = int(np.flatnonzero(huge.any(axis=1))[0])
+        raise ZfitInputError(f"{values[i, cols][huge[i]][0]:g} is beyond 1e30: no impedance measurement gives it "
+                             "(an instrument's overrange code other than 9.9E37?)", path, int(data_idx[i]) + 1)
     if not over.any():
         return values, data_idx
     if over.all():

@@ -384,9 +384,9 @@ def _plain_rows(data, per_row):
 
 
 def _v1_result(path, opt, values, row_lines, n_ports, r0, notes) -> TouchstoneData:
-    f = values[:, 0] * _UNITS[opt.unit]
     notes = list(notes)
-    pairs = _checked_pairs(path, values, opt.fmt, row_lines, notes)
+    pairs = _checked_pairs(path, values, opt.fmt, row_lines, notes)  # the frequencies bounded too
+    f = values[:, 0] * _UNITS[opt.unit]
     m = pairs.reshape(-1, n_ports, n_ports)
     if n_ports == 2:
         # 1.x two-port order is X11 X21 X12 X22: column-major.
@@ -618,7 +618,8 @@ def _read_v2(path: Path, body: list[str]) -> TouchstoneData:
 
 def _triangle_matrix(values, opt, matrix, n_ports, r0) -> np.ndarray:
     """The S matrix of rows holding one triangle of a symmetric matrix (2.0 spec)."""
-    pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
+    with np.errstate(all="ignore"):  # a NaN or inf stays one: the sweep names its line
+        pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
     rows, cols = np.tril_indices(n_ports) if matrix == "lower" else np.triu_indices(n_ports)
     m = np.zeros((values.shape[0], n_ports, n_ports), dtype=complex)
     m[:, rows, cols] = pairs
