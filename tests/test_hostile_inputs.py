@@ -478,3 +478,22 @@ def test_capture_with_settings_beside_the_samples(tmp_path):
 def test_capture_with_settings_beside_a_bad_row_names_its_line(tmp_path):
     p = _side_capture(tmp_path, bad_row=100)
     assert_refused(run("step", p, "-i", "col1", "-o", "col2"), re.escape(str(p)) + r":101: ")
+
+
+def test_plan_band_is_bounded():
+    r = run("plan", "inductor", "--L", "10u", "--R_s", "50m", "--C_p", "5p", "--band", "1e-300:1e300")
+    assert_refused(r, r"--band 1e-300 Hz is out of range: give a value between 1u Hz and 10T Hz")
+
+
+def test_system_error_without_a_file_name_is_one_clean_line(monkeypatch):
+    # "No space left on device" raised with no file name: no empty ': ' before the reason.
+    import errno
+
+    import zfit.io._sweep_file as sweep_file
+
+    def full(*args, **kwargs):
+        raise OSError(errno.ENOSPC, "No space left on device")
+
+    monkeypatch.setattr(sweep_file, "read_sweep", full)
+    r = run("info", S1P)
+    assert r.exit_code == 2 and r.stderr == "zfit: error: No space left on device\n", r.stderr

@@ -107,8 +107,9 @@ def guarded(fn):
                 # The reader of our output (`| head`) has gone: not an error of ours.
                 raise typer.Exit(0) from None
             except OSError as exc:
-                name = exc.filename if exc.filename is not None else ""
-                typer.echo(f"zfit: error: {name}: {exc.strerror or exc}", err=True)
+                # An error of the system names the file when it knows one ("No space left on device" may not).
+                where = f"{exc.filename}: " if exc.filename else ""
+                typer.echo(f"zfit: error: {where}{exc.strerror or exc}", err=True)
                 raise typer.Exit(2) from None
 
     return wrapper

@@ -40,12 +40,12 @@ RefOpt = Annotated[str, typer.Option("--reference", help="Reference impedance of
 
 def _band(text: str):
     from .._errors import ZfitInputError
-    from .._units import parse_quantity
+    from ..data._sweep import FREQUENCY_RANGE_HZ
 
     parts = text.split(":")
     if len(parts) != 2:
         raise ZfitInputError(f"--band must be low:high, e.g. 1k:1G (got {text!r})")
-    return parse_quantity(parts[0], "--band"), parse_quantity(parts[1], "--band")
+    return tuple(quantity(p, "--band", *FREQUENCY_RANGE_HZ, unit="Hz") for p in parts)
 
 
 def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_rel, table_floor, reference, force):
