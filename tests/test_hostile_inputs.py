@@ -497,3 +497,17 @@ def test_system_error_without_a_file_name_is_one_clean_line(monkeypatch):
     monkeypatch.setattr(sweep_file, "read_sweep", full)
     r = run("info", S1P)
     assert r.exit_code == 2 and r.stderr == "zfit: error: No space left on device\n", r.stderr
+
+
+def test_long_blank_metadata_line_of_a_capture_is_read_in_linear_time(tmp_path):
+    import time
+
+    from zfit.io._capture import read_capture
+
+    # A 60 kB line of blanks above the demo capture took 18 s with the old key = value pattern.
+    p = tmp_path / "long.csv"
+    p.write_text("a" + " " * 60000 + "b\n" + RING.read_text())
+    t = time.perf_counter()
+    cap = read_capture(p)
+    assert time.perf_counter() - t < 2.0  # common practice: well under a second here
+    assert cap.n_samples == 10000
