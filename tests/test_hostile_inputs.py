@@ -196,20 +196,16 @@ def test_touchstone_2_violations_are_refused(tmp_path, edit, message):
     assert "ValueError" not in r.output
 
 
-def test_underscore_number_in_1x_data_names_its_line(tmp_path):
+@pytest.mark.parametrize("row, message", [
+    ("1_0 0.5 0.1", r"'1_0' is not a number"),  # Python's float() would read 10
+    ("1e-310 -0.98 0.16", r"frequency 1e-301 Hz is outside 1u Hz \.\. 10T Hz"),  # denormal, in GHz
+])
+def test_bad_data_row_is_named_by_its_line(tmp_path, row, message):
     lines = list(S1P_LINES)
-    lines[OPTION + 5] = "1_0 0.5 0.1"
-    p = tmp_path / "u.s1p"
+    lines[OPTION + 5] = row
+    p = tmp_path / "r.s1p"
     p.write_text("\n".join(lines) + "\n")
-    assert_refused(run("info", p), rf"{re.escape(str(p))}:{OPTION + 6}: '1_0' is not a number")
-
-
-def test_denormal_frequency_is_refused_with_the_range(tmp_path):
-    lines = list(S1P_LINES)
-    lines[OPTION + 2] = "1e-310 -0.98 0.16"
-    p = tmp_path / "d.s1p"
-    p.write_text("\n".join(lines) + "\n")
-    assert_refused(run("info", p), rf"{re.escape(str(p))}:{OPTION + 3}: frequency 1e-301 Hz is outside 1u Hz \.\. 10T Hz")
+    assert_refused(run("info", p), rf"{re.escape(str(p))}:{OPTION + 6}: " + message)
 
 
 def test_bom_touchstone_is_read(tmp_path):
