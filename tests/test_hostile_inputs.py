@@ -59,6 +59,7 @@ def assert_read(result):
     (("--port-delay", "1"), r"--port-delay 1 s is out of range: give a value between -100n s and 100n s"),
     (("--port-loss", "1k"), r"--port-loss 1k dB is out of range: give a value between 0 dB and 100 dB"),
     (("--noise-floor", "-1"), r"--noise-floor -1 is out of range"),
+    (("--noise-floor", "2"), r"--noise-floor 2 is out of range: give a value between 0 and 1$"),  # |S| <= 1
     (("--noise-rel", "1e300"), r"--noise-rel 1e\+300 is out of range"),
 ])
 def test_reading_options_are_bounded_with_one_line(tmp_path, args, message):

@@ -26,6 +26,7 @@ __all__ = [
     "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
 ]
 
+
 class _OneLineError(typer.BadParameter):
     """A bad option value, shown as zfit's one ``zfit: error:`` line with exit status 2."""
 

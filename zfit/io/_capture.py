@@ -30,7 +30,7 @@ MEMORY_BUDGET_BYTES = 2 * 1024**3
 
 
 def _npy_header(fh, what: str, path, stored_bytes: int | None):
-    """Shape, dtype and header length of a ``.npy`` stream, checked before its data is read.
+    """Shape, Fortran order and dtype of a ``.npy`` stream, checked before its data is read.
 
     The declared size must fit `MEMORY_BUDGET_BYTES` and, when the stored
     size is known (the file's, or the archive member's), match it: a header

@@ -142,7 +142,10 @@ def _side_layout(lines: list[str], delimiter):
         n, k = max(set((a, b) for a, b, _ in shapes), key=lambda nk: sum((a, b) == nk for a, b, _ in shapes))
         same = [sh for sh in shapes if sh[:2] == (n, k)]
         if k >= 1 and n - k >= 2 and len(same) >= 0.9 * len(shapes) and any(blank for *_, blank in same):
-            first = next(i for i, ln in enumerate(lines) if ln.strip() and _side_fields(ln, delim, k, n) is not None)
+            first = next((i for i, ln in enumerate(lines) if ln.strip() and _side_fields(ln, delim, k, n) is not None),
+                         None)
+            if first is None:
+                continue
             meta = {}
             for ln in lines[first:first + 400]:
                 f = [x.strip().strip('"') for x in ln.split(delim)][:k]

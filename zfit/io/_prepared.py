@@ -8,8 +8,8 @@ from .._units import bounded, parse_quantity
 __all__ = ["prepared_sweep", "READING_OPTION_RANGES"]
 
 #: Where each reading option is meaningful (SI, inclusive), common practice:
-#: a relative noise of at most 100 %; a noise floor of at most 1 (|S| is at
-#: most 1) or 1 Gohm on a table; a one-way port extension of at most 100 ns
+#: a relative noise of at most 100 %; a noise floor of at most 1 Gohm on a
+#: table (and at most 1 on S, `S_FLOOR_MAX`); a one-way port extension of at most 100 ns
 #: (20 m of cable, where a test fixture is a few centimetres, 100 ps); a
 #: line loss of at most 100 dB at 1 GHz; a load standard of 1 mohm .. 1 Gohm.
 READING_OPTION_RANGES = {
@@ -20,13 +20,16 @@ READING_OPTION_RANGES = {
     "--load-value": (1e-3, 1e9, "ohm"),
 }
 
+#: The noise floor on S is a linear |S|, which is at most 1.
+S_FLOOR_MAX = 1.0
 
-def _option(value, name: str) -> float | None:
+
+def _option(value, name: str, hi: float | None = None) -> float | None:
     """The SI value of a reading option (text in engineering notation, or a number), within its range."""
     if value is None:
         return None
-    lo, hi, unit = READING_OPTION_RANGES[name]
-    return bounded(parse_quantity(value, name), name, lo, hi, unit)
+    lo, top, unit = READING_OPTION_RANGES[name]
+    return bounded(parse_quantity(value, name), name, lo, top if hi is None else hi, unit)
 
 
 def prepared_sweep(
@@ -76,7 +79,11 @@ def prepared_sweep(
     from ..data._connection import InstrumentNoise
     from ._sweep_file import read_sweep
 
-    noise_rel, noise_floor = _option(noise_rel, "--noise-rel"), _option(noise_floor, "--noise-floor")
+    from ._sweep_file import sweep_kind
+
+    noise_rel = _option(noise_rel, "--noise-rel")
+    if noise_floor is not None:
+        noise_floor = _option(noise_floor, "--noise-floor", S_FLOOR_MAX if sweep_kind(path) == "touchstone" else None)
     port_delay, port_loss = _option(port_delay, "--port-delay"), _option(port_loss, "--port-loss")
     load_value = _option(load_value, "--load-value")
     noise = None
