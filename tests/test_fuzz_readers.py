@@ -76,3 +76,32 @@ def test_mutated_demo_file_gives_a_clean_outcome(tmp_path, name):
             assert r.stderr.startswith(f"zfit: error: {p}"), context
             assert r.stderr.count("\n") == 1, context
         assert "RuntimeWarning" not in r.output and "overflow" not in r.output, context
+
+
+CAPTURES = sorted(DEMO.glob("coil_*.csv"))
+
+
+@pytest.mark.parametrize("name", [p.name for p in CAPTURES])
+def test_mutated_demo_capture_reads_or_is_refused(tmp_path, name):
+    # The capture reader alone (the step analysis is not under test here):
+    # a Capture, or a ZfitInputError naming the file; nothing else.
+    import warnings
+    import zlib
+
+    from zfit._errors import ZfitInputError
+    from zfit.io._capture import read_capture
+
+    rng = np.random.default_rng(zlib.crc32(name.encode()))
+    raw = (DEMO / name).read_bytes()
+    for k in range(PER_FILE):
+        what, data = mutated(raw, rng)
+        p = tmp_path / f"m{k}.csv"
+        p.write_bytes(data)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", UserWarning)  # measurement warnings (jitter) are allowed
+            try:
+                cap = read_capture(p)
+            except ZfitInputError as exc:
+                assert exc.path == str(p), f"{name}, mutation {k}: {what}: {exc}"
+                continue
+        assert cap.n_samples >= 16, f"{name}, mutation {k}: {what}"
