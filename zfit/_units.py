@@ -7,7 +7,7 @@ import re
 
 from ._errors import ZfitInputError
 
-__all__ = ["format_eng", "format_value_std", "parse_quantity", "PREFIXES"]
+__all__ = ["format_eng", "format_value_std", "parse_quantity", "bounded", "written_unit", "PREFIXES"]
 
 #: SI prefix letters by power of ten; ``u`` stands for micro so that the text
 #: stays ASCII.
@@ -124,3 +124,67 @@ def parse_quantity(text: str | float, what: str = "value") -> float:
         mantissa, _, exp = m.group(1).lower().partition("e")
         return float(f"{mantissa}e{int(exp or 0) + _EXPONENTS[rest]}")
     raise ZfitInputError(f"{what}: cannot read {text!r}: unknown prefix or unit {rest!r}")
+
+
+def bounded(value: float, what: str, lo: float | None = None, hi: float | None = None, unit: str = "") -> float:
+    """Return `value` when it is finite and within ``[lo, hi]``, else raise a one-line error.
+
+    The range is where the computation the value feeds is meaningful; the
+    message states it, so that the user can correct the value.
+
+    Parameters
+    ----------
+    value : float
+        The value in SI units.
+    what : str
+        Its name, for the message (``"--shunt"``).
+    lo, hi : float, optional
+        Inclusive bounds; None for none.
+    unit : str
+        The unit, for the message.
+
+    Raises
+    ------
+    ZfitInputError
+        For a value that is not finite or lies outside the range.
+    """
+    value = float(value)
+    if math.isfinite(value) and (lo is None or value >= lo) and (hi is None or value <= hi):
+        return value
+    if lo is not None and hi is not None:
+        span = f"between {format_eng(lo, unit)} and {format_eng(hi, unit)}"
+    elif lo is not None:
+        span = f"of at least {format_eng(lo, unit)}"
+    elif hi is not None:
+        span = f"of at most {format_eng(hi, unit)}"
+    else:
+        span = "that is a finite number"
+    raise ZfitInputError(f"{what} {format_eng(value, unit)} is out of range: give a value {span}")
+
+
+_CANONICAL_UNIT = {"ohms": "ohm", "ohm": "ohm", "Ohm": "ohm", "Ω": "ohm", "Hz": "Hz", "hz": "Hz"}
+
+
+def written_unit(text: str | float) -> str | None:
+    """Return the unit written after a number in engineering notation, or None.
+
+    ``"2.2uF"`` -> ``"F"``, ``"20 MOhm"`` -> ``"ohm"``, ``"100k"`` -> None;
+    the spelling is made canonical (``Ohm``, ``ohms``, ``Ω`` -> ``ohm``).
+    Used to check a value against the unit of the quantity it is given for,
+    which `parse_quantity` does not know.
+
+    Parameters
+    ----------
+    text : str or float
+        What the user wrote (a number has no unit).
+    """
+    if isinstance(text, (int, float)):
+        return None
+    m = _NUMBER.match(str(text))
+    if not m:
+        return None
+    rest = m.group(2)
+    for unit in _UNITS:
+        if rest.endswith(unit) and (rest[: -len(unit)].strip() in _EXPONENTS or rest[: -len(unit)].strip() == ""):
+            return _CANONICAL_UNIT.get(unit, unit)
+    return None

@@ -15,18 +15,46 @@ from pathlib import Path
 from typing import Annotated, Optional
 
 import typer
+from typer.core import TyperGroup
 
 from .._errors import MeasurementWarning, ZfitError, ZfitInputError
-from .._units import parse_quantity
+from .._units import bounded, parse_quantity
 
 __all__ = [
-    "app", "guarded", "command_line", "emit_json", "quantity", "quantities", "echo", "warn_line", "sweep_from_options",
+    "app", "guarded", "command_line", "emit_json", "quantity", "quantities", "SHUNT_RANGE_OHM", "echo", "warn_line", "sweep_from_options",
     "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
     "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
 ]
 
+
+class _OneLineError(typer.BadParameter):
+    """A bad option value, shown as zfit's one ``zfit: error:`` line with exit status 2."""
+
+    exit_code = 2
+
+    def show(self, file=None) -> None:
+        typer.echo(f"zfit: error: {self.message}", err=True)
+
+
+class _Commands(TyperGroup):
+    """zfit's command group: a value the parser refuses is one line, not a usage block.
+
+    Click reports a bad option value (``--points x``, a path that does not
+    exist) as a usage block of three lines; a bench engineer scanning a log
+    wants the one line zfit prints for every other error.  Missing options
+    and unknown ones keep click's usage block, which says how to call.
+    """
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except typer.BadParameter as exc:
+            raise _OneLineError(exc.format_message()) from None
+
+
 app = typer.Typer(
     name="zfit",
+    cls=_Commands,
     help=(
         "Equivalent circuits, uncertainties and simulator models of inductors and "
         "capacitors from network-analyser sweeps, impedance-analyser tables and "
@@ -80,8 +108,9 @@ def guarded(fn):
                 # The reader of our output (`| head`) has gone: not an error of ours.
                 raise typer.Exit(0) from None
             except OSError as exc:
-                name = exc.filename if exc.filename is not None else ""
-                typer.echo(f"zfit: error: {name}: {exc.strerror or exc}", err=True)
+                # An error of the system names the file when it knows one ("No space left on device" may not).
+                where = f"{exc.filename}: " if exc.filename else ""
+                typer.echo(f"zfit: error: {where}{exc.strerror or exc}", err=True)
                 raise typer.Exit(2) from None
 
     return wrapper
@@ -114,16 +143,41 @@ def emit_json(data: dict, json_path, force: bool, say=None) -> None:
     (say or echo)(f"wrote {json_path}")
 
 
-def quantity(text: str | None, what: str) -> float | None:
-    """Parse an option value in engineering notation (None stays None)."""
+def quantity(text: str | float | None, what: str, lo: float | None = None, hi: float | None = None,
+             unit: str = "") -> float | None:
+    """Parse an option value in engineering notation (None stays None).
+
+    Parameters
+    ----------
+    text : str, float or None
+        What the user wrote.
+    what : str
+        The option's name, for the message (``"--shunt"``).
+    lo, hi : float, optional
+        The range where the computation the option feeds is meaningful
+        (inclusive); outside it a one-line error states the range.
+    unit : str
+        The option's unit, for the message.
+
+    Raises
+    ------
+    ZfitInputError
+        For text that is not a number, or a value outside ``[lo, hi]``.
+    """
     if text is None:
         return None
-    return parse_quantity(text, what)
+    return bounded(parse_quantity(text, what), what, lo, hi, unit)
 
 
-def quantities(texts, what: str) -> tuple[float, ...]:
-    """Parse a repeated option (``--at 100k --at 1M``)."""
-    return tuple(parse_quantity(t, what) for t in (texts or ()))
+def quantities(texts, what: str, lo: float | None = None, hi: float | None = None, unit: str = "") -> tuple[float, ...]:
+    """Parse a repeated option (``--at 100k --at 1M``), each value within ``[lo, hi]``."""
+    return tuple(quantity(t, what, lo, hi, unit) for t in (texts or ()))
+
+
+#: A sense resistor (``zfit step --shunt``) from 1 mohm to 1 Gohm: below, the
+#: sense voltage drowns in the scope's offset; above, in its 1 Mohm input
+#: (common practice).  Used as ``quantity(text, "--shunt", *SHUNT_RANGE_OHM, unit="ohm")``.
+SHUNT_RANGE_OHM = (1e-3, 1e9)
 
 
 # Options shared by every command that reads a sweep (info, identify, batch).
@@ -137,11 +191,11 @@ ConnectionOpt = Annotated[
     ),
 ]
 NoiseRelOpt = Annotated[
-    Optional[float],
+    Optional[str],
     typer.Option("--noise-rel", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/reading.md."),
 ]
 NoiseFloorOpt = Annotated[
-    Optional[float],
+    Optional[str],
     typer.Option("--noise-floor", help="Noise floor: linear |S| for S-parameters (1e-5 = -100 dB), ohm for tables."),
 ]
 ColumnsOpt = Annotated[
@@ -154,7 +208,7 @@ LoadOpt = Annotated[Optional[Path], typer.Option("--load", help="Load-standard m
 LoadValueOpt = Annotated[Optional[str], typer.Option("--load-value", help="Known impedance of the load standard in ohm, e.g. 50 or 100.")]
 PortDelayOpt = Annotated[Optional[str], typer.Option("--port-delay", help="Port extension for reflection: one-way delay of the line to remove, e.g. 35p.")]
 PortLossOpt = Annotated[
-    Optional[float],
+    Optional[str],
     typer.Option("--port-loss", help="With --port-delay: one-way loss of that line in dB at 1 GHz, scaled with sqrt(f)."),
 ]
 ForceOpt = Annotated[bool, typer.Option("--force", help="Overwrite output files that exist.")]

@@ -31,21 +31,21 @@ app.add_typer(plan_app, name="plan")
 BandOpt = Annotated[str, typer.Option("--band", help="Swept band low:high in Hz, engineering notation, e.g. 1k:1G.")]
 PointsOpt = Annotated[int, typer.Option("--points", help="Log-spaced points of the sweep.")]
 JsonOpt = Annotated[Optional[Path], typer.Option("--json", help="Write the plan as zfit.plan/1 JSON to this file.")]
-NaRelOpt = Annotated[Optional[float], typer.Option("--noise-rel", help="Network analyser: relative noise on S (default 1e-3).")]
-NaFloorOpt = Annotated[Optional[float], typer.Option("--noise-floor", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
-TabRelOpt = Annotated[Optional[float], typer.Option("--table-rel", help="Analyser table: relative accuracy on Z (default 1e-3 = 0.1 %).")]
+NaRelOpt = Annotated[Optional[str], typer.Option("--noise-rel", help="Network analyser: relative noise on S (default 1e-3).")]
+NaFloorOpt = Annotated[Optional[str], typer.Option("--noise-floor", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
+TabRelOpt = Annotated[Optional[str], typer.Option("--table-rel", help="Analyser table: relative accuracy on Z (default 1e-3 = 0.1 %).")]
 TabFloorOpt = Annotated[Optional[str], typer.Option("--table-floor", help="Analyser table: accuracy floor in ohm (default 10m).")]
 RefOpt = Annotated[str, typer.Option("--reference", help="Reference impedance of the analyser ports, ohm.")]
 
 
 def _band(text: str):
     from .._errors import ZfitInputError
-    from .._units import parse_quantity
+    from ..data._sweep import FREQUENCY_RANGE_HZ
 
     parts = text.split(":")
     if len(parts) != 2:
         raise ZfitInputError(f"--band must be low:high, e.g. 1k:1G (got {text!r})")
-    return parse_quantity(parts[0], "--band"), parse_quantity(parts[1], "--band")
+    return tuple(quantity(p, "--band", *FREQUENCY_RANGE_HZ, unit="Hz") for p in parts)
 
 
 def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_rel, table_floor, reference, force):
@@ -53,12 +53,12 @@ def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_r
     from ..identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, format_plan, plan_measurement
 
     noise = InstrumentNoise(
-        NA_NOISE_DEFAULT.rel if noise_rel is None else noise_rel,
-        NA_NOISE_DEFAULT.floor if noise_floor is None else noise_floor,
+        NA_NOISE_DEFAULT.rel if noise_rel is None else quantity(noise_rel, "--noise-rel", 0.0, 1.0),
+        NA_NOISE_DEFAULT.floor if noise_floor is None else quantity(noise_floor, "--noise-floor", 0.0, 1.0),
     )
     table = InstrumentNoise(
-        TABLE_ACCURACY_DEFAULT.rel if table_rel is None else table_rel,
-        TABLE_ACCURACY_DEFAULT.floor if table_floor is None else quantity(table_floor, "--table-floor"),
+        TABLE_ACCURACY_DEFAULT.rel if table_rel is None else quantity(table_rel, "--table-rel", 0.0, 1.0),
+        TABLE_ACCURACY_DEFAULT.floor if table_floor is None else quantity(table_floor, "--table-floor", 0.0, 1e9, "ohm"),
     )
     to_stdout = json_path is not None and str(json_path) == "-"
     if json_path is not None and not to_stdout:

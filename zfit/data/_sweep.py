@@ -12,12 +12,25 @@ from ._noise import NoiseEstimate
 from .._errors import MeasurementWarning, ZfitInputError
 from .._units import format_eng
 
-__all__ = ["Sweep", "make_sweep", "Rows", "cleaned_rows", "sweep_from_rows", "active_points", "MIN_POINTS", "CONNECTIONS"]
+__all__ = ["Sweep", "make_sweep", "Rows", "cleaned_rows", "sweep_from_rows", "active_points", "MIN_POINTS", "CONNECTIONS",
+           "FREQUENCY_RANGE_HZ", "IMPEDANCE_RANGE_OHM"]
 
 #: A table of two frequencies (an LCR meter at 1 kHz and 10 kHz) already
 #: gives a series pair with its uncertainty; one point gives no frequency
 #: dependence at all.
 MIN_POINTS = 2
+
+#: Frequencies zfit computes with, Hz: 1 uHz .. 10 THz, beyond the bands of
+#: every impedance analyser and network analyser (common practice); outside
+#: it a value is a unit error, an overrange code or a denormal number.
+FREQUENCY_RANGE_HZ = (1e-6, 1e13)
+
+#: Impedance magnitudes zfit computes with, ohm: 1 pohm .. 1 Tohm.  A bench
+#: meter resolves about 1 uohm and 100 Gohm (common practice); beyond, the
+#: value is an overrange code or lost digits, and the fit's squares of it
+#: leave the floating-point range.  Zero (an exact short) is allowed at some
+#: points, not at all of them.
+IMPEDANCE_RANGE_OHM = (1e-12, 1e12)
 
 #: How a one-port impedance was measured.
 CONNECTIONS = ("reflection", "shunt-thru", "series-thru", "impedance")
@@ -240,6 +253,7 @@ def cleaned_rows(f_hz, z_ohm, sigma_ohm=None, *, source="", connection="impedanc
     nonpos = f <= 0
     if nonpos.any():
         fail(f"frequency {format_eng(f[nonpos][0], 'Hz')} is not positive", int(np.flatnonzero(nonpos)[0]))
+    _check_ranges(f, z, fail, source)
 
     order = np.argsort(f, kind="stable")
     if np.any(np.diff(order) < 0):
@@ -253,6 +267,26 @@ def cleaned_rows(f_hz, z_ohm, sigma_ohm=None, *, source="", connection="impedanc
     if f.size < MIN_POINTS:
         raise ZfitInputError(f"only {f.size} distinct frequency point(s); at least {MIN_POINTS} are needed", source)
     return Rows(f, z, sig, spread, s, ln, str(source), connection, tuple(notes))
+
+
+def _check_ranges(f, z, fail, source) -> None:
+    """Refuse frequencies and impedances outside the ranges zfit computes with."""
+    lo, hi = FREQUENCY_RANGE_HZ
+    out = (f < lo) | (f > hi)
+    if out.any():
+        i = int(np.flatnonzero(out)[0])
+        fail(f"frequency {f[i]:.3g} Hz is outside {format_eng(lo, 'Hz')} .. {format_eng(hi, 'Hz')}, the range "
+             "zfit computes in (a unit error, an overrange code?)", i)
+    mag = np.abs(z)
+    lo, hi = IMPEDANCE_RANGE_OHM
+    out = (mag > hi) | ((mag > 0) & (mag < lo))
+    if out.any():
+        i = int(np.flatnonzero(out)[0])
+        fail(f"|Z| = {mag[i]:.3g} ohm is outside {format_eng(lo, 'ohm')} .. {format_eng(hi, 'ohm')}, the range "
+             "zfit computes in (an instrument's overrange code, a wrong unit or reference?)", i)
+    if mag.size >= MIN_POINTS and not mag.any():
+        raise ZfitInputError(f"|Z| is zero at every one of the {mag.size} points: nothing usable to identify "
+                             "(a column of zeros, or an ideal short?)", source)
 
 
 def _merged_repeats(f, z, sig, s, ln, source, notes):

@@ -23,11 +23,49 @@ from ._capture_time import uniform_time
 __all__ = ["Capture", "make_capture", "read_capture", "clipped_fraction", "MIN_SAMPLES"]
 
 
+#: Memory a binary capture may take once loaded: 2 GiB, 268 million float64
+#: samples, beyond the record length of bench oscilloscopes (common practice);
+#: a header or archive that declares more is refused before anything is read.
+MEMORY_BUDGET_BYTES = 2 * 1024**3
+
+
+def _npy_header(fh, what: str, path, stored_bytes: int | None):
+    """Shape, Fortran order and dtype of a ``.npy`` stream, checked before its data is read.
+
+    The declared size must fit `MEMORY_BUDGET_BYTES` and, when the stored
+    size is known (the file's, or the archive member's), match it: a header
+    that claims more than the bytes behind it is a damaged or hostile file.
+    """
+    from numpy.lib import format as npy
+
+    try:
+        version = npy.read_magic(fh)
+        reader = npy.read_array_header_1_0 if version == (1, 0) else npy.read_array_header_2_0
+        shape, fortran, dtype = reader(fh, max_header_size=10000)
+    except (ValueError, OSError, EOFError, SyntaxError):
+        raise ZfitInputError(f"{what} is not a numpy .npy array (no readable numpy header)", path) from None
+    if dtype.hasobject:
+        raise ZfitInputError(f"{what} holds Python objects, not numbers: zfit reads numeric arrays only", path)
+    n = math.prod(shape)
+    declared = n * dtype.itemsize
+    if declared > MEMORY_BUDGET_BYTES:
+        raise ZfitInputError(
+            f"{what} declares shape {shape} of {dtype} ({declared / 2**30:.3g} GiB), beyond the "
+            f"{MEMORY_BUDGET_BYTES / 2**30:.3g} GiB zfit loads; split the record", path)
+    if stored_bytes is not None and stored_bytes - fh.tell() != declared:
+        raise ZfitInputError(
+            f"{what} declares shape {shape} of {dtype} ({declared} bytes) but holds {max(stored_bytes - fh.tell(), 0)} "
+            "bytes of data: truncated or damaged; copy it again", path)
+    return shape, fortran, dtype
+
+
 def _read_npy(path: Path, dt_given, t0_given):
+    with open(path, "rb") as fh:
+        _npy_header(fh, "the file", path, path.stat().st_size)
     try:
         a = np.load(path, allow_pickle=False)
-    except ValueError as exc:
-        raise ZfitInputError(f"cannot read as a numpy array: {exc}", path) from None
+    except (ValueError, OSError, EOFError):
+        raise ZfitInputError("cannot read the numpy array (damaged file)", path) from None
     a = _numeric(a, "the array", path)
     if a.ndim == 1:
         a = a[:, None]
@@ -61,13 +99,42 @@ def _numeric(a, what: str, path) -> np.ndarray:
     return a.astype(float, copy=False)
 
 
-def _read_npz(path: Path, dt_given, t0_given):
+def _npz_arrays(path: Path) -> dict:
+    """The arrays of a ``.npz`` archive, each member's header checked before it is inflated.
+
+    A zip archive declares each member's uncompressed size; a compressed
+    archive of a few megabytes can declare gigabytes of zeros (a "zip
+    bomb").  Every member must be a ``.npy`` whose header matches its size,
+    and all of them together must fit `MEMORY_BUDGET_BYTES`.
+    """
+    import zipfile
+
     try:
-        # Read every array and close the archive at once (an open one leaks its file on an error).
-        with np.load(path, allow_pickle=False) as archive:
-            z = {k: archive[k] for k in archive.files}
-    except ValueError as exc:
-        raise ZfitInputError(f"cannot read as a numpy archive: {exc}", path) from None
+        with zipfile.ZipFile(path) as zf:
+            members = zf.infolist()
+            total = sum(m.file_size for m in members)
+            if total > MEMORY_BUDGET_BYTES:
+                raise ZfitInputError(
+                    f"the archive declares {total / 2**30:.3g} GiB of arrays, beyond the "
+                    f"{MEMORY_BUDGET_BYTES / 2**30:.3g} GiB zfit loads", path)
+            out = {}
+            for m in members:
+                name = m.filename[:-4] if m.filename.endswith(".npy") else m.filename
+                with zf.open(m) as fh:
+                    shape, fortran, dtype = _npy_header(fh, f"array {name!r}", path, m.file_size)
+                    data = fh.read()
+                a = np.frombuffer(data, dtype=dtype, count=math.prod(shape))
+                out[name] = a.reshape(shape, order="F" if fortran else "C").copy()
+            return out
+    except ZfitInputError:
+        raise
+    except (zipfile.BadZipFile, zipfile.LargeZipFile, EOFError, OSError, ValueError, NotImplementedError):
+        raise ZfitInputError("cannot read as a numpy archive (.npz): the zip file is truncated or damaged; "
+                             "copy it again", path) from None
+
+
+def _read_npz(path: Path, dt_given, t0_given):
+    z = _npz_arrays(path)
     keys = list(z)
     lower = {k.lower(): k for k in keys}
     tkey = next((lower[k] for k in ("t", "time", "time_s", "t_s") if k in lower), None)
@@ -92,8 +159,11 @@ def _read_npz(path: Path, dt_given, t0_given):
         if k in (tkey, dkey, okey):
             continue
         v = np.asarray(z[k])
-        if v.ndim == 1 and v.size > 1 and np.issubdtype(v.dtype, np.number):
-            chans[k] = v.astype(float)
+        if v.size <= 1:
+            continue  # a scalar: metadata of the export (a scale, a units text), not a channel
+        if v.ndim != 1:
+            raise ZfitInputError(f"array {k!r} has shape {v.shape}: a channel is one row of samples (1-D)", path)
+        chans[k] = _numeric(v, f"array {k!r}", path)
     return make_capture(chans, dt, t0=t0, source=str(path), notes=notes)
 
 

@@ -116,13 +116,93 @@ def _guess_layout(lines: list[str], delimiter):
     return best
 
 
+def _side_layout(lines: list[str], delimiter):
+    """Return (delimiter, first data line, metadata columns, fields, metadata) of a side-metadata export, or None.
+
+    Some scopes write the settings beside the samples rather than above
+    them: every row has the same fields, the first few hold ``Sample
+    Interval,4e-08,s`` on the first rows and are empty below, the last ones
+    hold time and voltage.  Recognised when at least 90 % of the first rows
+    end in two or more numbers after the same number of leading fields that
+    are text or empty, and some of those leading fields are empty.
+    """
+    rows = [ln for ln in lines[:400] if ln.strip()]
+    if len(rows) < MIN_SAMPLES:
+        return None
+    for delim in ([delimiter] if delimiter is not None else [",", ";", "\t"]):
+        shapes = []
+        for ln in rows:
+            f = [x.strip().strip('"') for x in ln.split(delim)]
+            if f and f[-1] == "":
+                f = f[:-1]
+            k = len(f)
+            while k > 0 and is_number(f[k - 1]):
+                k -= 1
+            shapes.append((len(f), k, all(x == "" for x in f[:k])))
+        n, k = max(set((a, b) for a, b, _ in shapes), key=lambda nk: sum((a, b) == nk for a, b, _ in shapes))
+        same = [sh for sh in shapes if sh[:2] == (n, k)]
+        if k >= 1 and n - k >= 2 and len(same) >= 0.9 * len(shapes) and any(blank for *_, blank in same):
+            first = next((i for i, ln in enumerate(lines) if ln.strip() and _side_fields(ln, delim, k, n) is not None),
+                         None)
+            if first is None:
+                continue
+            meta = {}
+            for ln in lines[first:first + 400]:
+                f = [x.strip().strip('"') for x in ln.split(delim)][:k]
+                if len(f) >= 2 and f[0] and f[1]:
+                    meta.setdefault(re.sub(r"\s+", " ", f[0].lower()), f[1])
+            return delim, first, k, n, meta
+    return None
+
+
+def _side_fields(line: str, delim, k: int, n: int):
+    """The numeric fields of a side-metadata row, or None when it is not one."""
+    f = [x.strip().strip('"') for x in line.split(delim)]
+    if f and f[-1] == "" and len(f) == n + 1:
+        f = f[:-1]
+    if len(f) != n or not all(is_number(x) for x in f[k:]):
+        return None
+    return f[k:]
+
+
+def _parse_block_side(source, first: int, k: int, n: int, delim, path):
+    """The numeric columns of a side-metadata export (numpy's C reader, the leading fields unread)."""
+    try:
+        a = np.loadtxt(source, delimiter=delim, skiprows=first, usecols=range(k, n), quotechar='"', ndmin=2,
+                       dtype=np.float64, encoding="latin-1")
+    except ValueError:
+        if hasattr(source, "seek"):
+            source.seek(0)
+        with _stream(source.read() if hasattr(source, "read") else source) as fh:
+            for i, raw in enumerate(fh.read().decode("latin-1").split("\n")):
+                if i >= first and raw.strip() and _side_fields(raw.rstrip("\r"), delim, k, n) is None:
+                    raise ZfitInputError(f"is not a row of {n} fields ending in {n - k} numbers: {raw.strip()[:60]!r}",
+                                         path, i + 1) from None
+        raise ZfitInputError("the numeric block cannot be parsed", path, first + 1) from None
+    return [a[:, j] for j in range(n - k)]
+
+
+def _key_value(text: str) -> tuple[str, str] | None:
+    """``'dt = 40 ns'`` -> ``('dt', '40 ns')``: split at the first ``=`` or ``:``, else None.
+
+    Written out rather than as a regular expression: a lazy key followed by
+    optional blanks backtracks quadratically on a long line of blanks
+    (60 kB took 18 s).
+    """
+    cut = min((i for i in (text.find("="), text.find(":")) if i >= 0), default=-1)
+    if cut <= 0:
+        return None
+    key, value = text[:cut].strip(), text[cut + 1:].strip()
+    return (key, value) if key and value else None
+
+
 def _metadata(preamble: list[str], delim) -> dict[str, str]:
     meta = {}
     for line in preamble:
         text = line.strip().lstrip("#%;!*").strip()
         if not text:
             continue
-        m = re.match(r"^([^=:]+?)\s*[=:]\s*(.+)$", text)
+        m = _key_value(text)
         parts = None
         if delim is not None and delim in text:
             fields = [f.strip().strip('"') for f in text.split(delim)]
@@ -130,7 +210,7 @@ def _metadata(preamble: list[str], delim) -> dict[str, str]:
             if values:
                 parts = (fields[0], values[0])
         if parts is None and m:
-            parts = (m.group(1), m.group(2))
+            parts = m
         if parts is None:
             fields = text.split()
             if len(fields) >= 2:
@@ -332,6 +412,12 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
                              "IN > OUT.csv)", path)
     if b"\x00" in head[:4096]:
         raise ZfitInputError("binary file; expected delimited text, .npy or .npz", path)
+    source = path
+    if b"\r" in head and b"\n" not in head:
+        # Lines ended by a carriage return alone (old Macintosh software):
+        # read as line feeds, from a translated copy in memory.
+        source = path.read_bytes().replace(b"\r", b"\n")
+        head, size = source[:_HEAD_BYTES], len(source)
     text = head.decode("utf-8", errors="replace")
     if text.startswith("\ufeff"):
         text = text[1:]
@@ -341,19 +427,27 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
     lines = [ln.rstrip("\r") for ln in lines]
     while lines and not lines[-1].strip():
         lines.pop()
-    try:
-        # The metadata and the header sit in the first lines: judging the
-        # layout on 400 of them is plenty, and keeps the guess fast.
-        delim, dec, start, ncols = _guess_layout(lines[:400], delimiter)
-    except ZfitInputError as exc:
-        raise ZfitInputError(exc.message, path) from None
+    side = _side_layout(lines, delimiter)
+    if side is not None:
+        delim, start, side_k, side_n, side_meta = side
+        dec, ncols = False, side_n - side_k
+    else:
+        try:
+            # The metadata and the header sit in the first lines: judging the
+            # layout on 400 of them is plenty, and keeps the guess fast.
+            delim, dec, start, ncols = _guess_layout(lines[:400], delimiter)
+        except ZfitInputError as exc:
+            raise ZfitInputError(exc.message, path) from None
     preamble = lines[:start]
     meta = _metadata(preamble, delim)
     names, _units = _header(preamble, delim, ncols)
+    if side is not None:
+        meta.update(side_meta)
+        notes_side = [f"settings read from columns 1-{side_k} beside the samples"]
     layout = _start_increment(preamble, delim, ncols)
     if layout is not None and names is None:
         names = layout[0]
-    notes = []
+    notes = notes_side if side is not None else []
     if delim is None:
         notes.append("columns separated by white space")
     if dec:
@@ -395,16 +489,18 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
         # pandas' reader is faster, but importing it costs about half a
         # second: worth it only for large files.
         accelerate = size > _PANDAS_MIN_BYTES
-    if accelerate and _pandas_available():
-        cols = _parse_block_pandas(path, start, ncols, delim, dec)
+    if side is not None:
+        cols = _parse_block_side(_readable(source), start, side_k, side_n, delim, path)
+    if cols is None and accelerate and _pandas_available():
+        cols = _parse_block_pandas(_readable(source), start, ncols, delim, dec)
         if cols is not None:
             notes.append("numeric block parsed by pandas' C reader")
     if cols is None and not dec:
-        cols = _parse_block_loadtxt(path, start, ncols, delim)
+        cols = _parse_block_loadtxt(_readable(source), start, ncols, delim)
     if cols is None:
         # Decimal commas, or a bad row to locate: numpy's number parser over
         # translated chunks, which names the line of a bad row.
-        with open(path, "rb") as fh:
+        with _stream(source) as fh:
             fh.seek(offset)
             cols = _parse_block_numpy(fh, ncols, est, delim, dec, path, start + 1)
     n = cols[0].size
@@ -473,6 +569,20 @@ def read_capture_text(path: Path, delimiter, dt_given, t0_given, time_column, ac
         chans[names[j]] = cols[j]
     del cols
     return make_capture(chans, dt, t0=t0, source=str(path), notes=notes, file_columns=[j + 1 for j in chan_idx])
+
+
+def _readable(source):
+    """What numpy's and pandas' readers take: the file's path, or its translated copy in memory."""
+    import io
+
+    return io.BytesIO(source) if isinstance(source, bytes) else source
+
+
+def _stream(source):
+    """A binary file object over the file, or over its translated copy in memory."""
+    import io
+
+    return io.BytesIO(source) if isinstance(source, bytes) else open(source, "rb")
 
 
 def _resolve_time_column(key, names, ncols, path) -> int:

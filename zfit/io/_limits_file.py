@@ -34,7 +34,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from .._errors import ZfitInputError
-from .._units import format_eng, parse_quantity
+from .._units import format_eng, parse_quantity, written_unit
 from .._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
 
 __all__ = [
@@ -219,7 +219,8 @@ class _Lines:
         return None
 
 
-def _number(value, what: str, where) -> float:
+def _number(value, what: str, where, unit: str | None = None) -> float:
+    """The SI value of a limits-file value; with `unit`, a unit written in it must be that one."""
     if isinstance(value, bool):
         raise where(f"{what}: expected a number, got {value!r}")
     if isinstance(value, (int, float)):
@@ -233,6 +234,9 @@ def _number(value, what: str, where) -> float:
         raise where(f"{what}: expected a number or a string like \"4.7n\", got {value!r}")
     if not math.isfinite(x):
         raise where(f"{what}: {value!r} is not a finite number")
+    written = written_unit(value)
+    if unit is not None and written is not None and written != unit:
+        raise where(f"{what} {value!r} is in {written}, but this quantity is in {unit or 'no unit (a ratio)'}")
     return x
 
 
@@ -262,7 +266,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
         if quantity not in SPOT_UNITS:
             raise where_for("at")(
                 f"'at' is for figures at a frequency ({', '.join(SPOT_UNITS)}); {quantity} is not one")
-        f_hz = _number(table["at"], "at", where_for("at"))
+        f_hz = _number(table["at"], "at", where_for("at"), "Hz")
         if f_hz <= 0:
             raise where_for("at")(f"frequency {table['at']!r} is not positive")
         unit = SPOT_UNITS[quantity]
@@ -290,7 +294,11 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
     has_minmax = "min" in table or "max" in table
     nominal = None
     if "nominal" in table:
-        nominal = _number(table["nominal"], "nominal", where_for("nominal"))
+        nominal = _number(table["nominal"], "nominal", where_for("nominal"), unit)
+        if nominal <= 0 and quantity != "X":
+            # Every part would fail a tolerance about zero or a negative value:
+            # a sign or a unit lost in the file, not a specification.
+            raise where_for("nominal")(f"nominal {table['nominal']!r} must be positive")
         if not has_tol:
             raise where_for("nominal")("a nominal needs tolerance_percent = N (or [-minus, plus]) or tolerance = VALUE")
         if has_minmax:
@@ -317,7 +325,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
             span = abs(nominal)
             lower, upper = nominal - span * minus / 100.0, nominal + span * plus / 100.0
         else:
-            tol = _number(table["tolerance"], "tolerance", where_for("tolerance"))
+            tol = _number(table["tolerance"], "tolerance", where_for("tolerance"), unit)
             if tol < 0:
                 raise where_for("tolerance")("tolerance must be >= 0")
             lower, upper = nominal - tol, nominal + tol
@@ -328,8 +336,8 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
                 "a tolerance needs a nominal = VALUE")
         if not has_minmax:
             raise where_for()("give nominal with tolerance_percent, or min and/or max")
-        lower = _number(table["min"], "min", where_for("min")) if "min" in table else None
-        upper = _number(table["max"], "max", where_for("max")) if "max" in table else None
+        lower = _number(table["min"], "min", where_for("min"), unit) if "min" in table else None
+        upper = _number(table["max"], "max", where_for("max"), unit) if "max" in table else None
         if lower is not None and upper is not None and lower > upper:
             raise where_for("min")(f"min {table['min']!r} is above max {table['max']!r}")
         text = " ".join(
@@ -429,7 +437,7 @@ def read_limits(path) -> Limits:
     except OSError as exc:
         raise ZfitInputError(f"cannot read the limits file: {exc.strerror or exc}", p) from None
     try:
-        text = raw.decode("utf-8")
+        text = raw.decode("utf-8-sig")  # a byte-order mark (Windows editors) is not TOML
     except UnicodeDecodeError as exc:
         line = raw[: exc.start].count(b"\n") + 1
         raise ZfitInputError("not UTF-8 text: a limits file is TOML", p, line) from None

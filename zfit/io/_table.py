@@ -91,12 +91,28 @@ _ALIASES = {
     "d": "d", "df": "d", "tand": "d", "tanδ": "d", "dissipation": "d", "dissipationfactor": "d",
     "q": "q", "qfactor": "q", "quality": "q",
     "l": "l?", "c": "c?", "r": "r?", "inductance": "l?", "capacitance": "c?", "resistance": "r?",
+    # The same names as bench software localised to German, French and
+    # Spanish writes them (accents kept and dropped).
+    "frequenz": "f", "fréquence": "f", "frequence": "f", "frecuencia": "f",
+    "impedanz": "zmag", "betrag": "zmag", "impédance": "zmag", "module": "zmag", "impedancia": "zmag",
+    "phasenwinkel": "phase", "winkel": "phase", "phase(°)": "phase", "déphasage": "phase", "dephasage": "phase",
+    "fase": "phase", "ángulo": "phase", "angulo": "phase",
+    "wirkwiderstand": "rs", "realteil": "rs", "blindwiderstand": "xs", "imaginärteil": "xs", "imaginaerteil": "xs",
+    "réactance": "xs", "reactancia": "xs", "güte": "q", "guete": "q", "verlustfaktor": "d",
+    "induktivität": "l?", "induktivitaet": "l?", "inductancia": "l?", "kapazität": "c?", "kapazitaet": "c?",
+    "capacité": "c?", "capacite": "c?", "capacidad": "c?", "widerstand": "r?", "résistance": "r?",
+    "resistencia": "r?",
 }
+
+#: The SCPI codes for a value beyond the instrument's range (SCPI 1999,
+#: volume 1, 7.2.1.5: 9.9E37 for infinity, 9.91E37 for not-a-number); any
+#: other huge value is refused by the sweep's range check.
+OVERRANGE = 9.9e37
+_OVERRANGE_CODES = (9.9e37, 9.91e37)
 
 _PREFIX = {"": 1.0, "p": 1e-12, "n": 1e-9, "u": 1e-6, "m": 1e-3, "k": 1e3, "M": 1e6, "G": 1e9, "f": 1e-15}
 _BASE = {"f": "hz", "zmag": "ohm", "rs": "ohm", "xs": "ohm", "rp": "ohm", "xp": "ohm", "ls": "h", "lp": "h",
          "l?": "h", "cs": "f", "cp": "f", "c?": "f", "r?": "ohm", "g": "s", "b": "s"}
-_UNIT_IN_NAME = re.compile(r"^(?P<name>.*?)\s*(?:[\(\[](?P<u1>[^\)\]]*)[\)\]]|/\s*(?P<u2>[^/]+))\s*$")
 
 
 @dataclass(frozen=True)
@@ -165,14 +181,32 @@ def _scale(q: str, unit: str | None, what: str, path, line):
     raise ZfitInputError(f"unknown unit {unit!r} for {what}", path, line)
 
 
+def _name_and_unit(text: str):
+    """``'Freq (kHz)'`` -> ``('Freq', 'kHz')``, ``'f / Hz'`` -> ``('f', 'Hz')``, else ``(text, None)``.
+
+    Written out rather than as one regular expression: the pattern with a
+    lazy name and two alternatives backtracks quadratically on a long header
+    field (120 kB took 51 s); this is one pass from the right.
+    """
+    t = text.rstrip()
+    if t.endswith((")", "]")):
+        k = max(t.rfind("("), t.rfind("["))
+        inner = t[k + 1:-1]
+        if k > 0 and ")" not in inner and "]" not in inner:
+            return t[:k].rstrip(), inner
+    k = t.rfind("/")
+    if k > 0 and t[k + 1:].strip():
+        return t[:k].rstrip(), t[k + 1:].strip()
+    return text, None
+
+
 def _split_name(text: str):
     """``'Freq (kHz)'`` -> ``('freq', 'kHz')``; ``'Rs_mOhm'`` -> ``('rs', 'mOhm')``."""
     text = text.strip().strip('"').strip("'").strip()
     unit = None
-    m = _UNIT_IN_NAME.match(text)
-    if m and m.group("name"):
-        unit = m.group("u1") if m.group("u1") is not None else m.group("u2")
-        text = m.group("name")
+    name, found = _name_and_unit(text)
+    if found is not None and name:
+        text, unit = name, found
     elif "_" in text:
         head, _, tail = text.rpartition("_")
         if head and _looks_like_unit(tail):
@@ -361,10 +395,18 @@ def read_table(path, columns: str | None = None) -> TableData:
         for i in content:
             if stripped[i].endswith(delim):
                 stripped[i] = stripped[i][: -len(delim)].rstrip()
+    units_note = None
     if first > 0:
         hi = content[first - 1]
         cand = _fields(stripped[hi], delim)
         n_data = len(_fields(stripped[content[first]], delim))
+        if first > 1 and len(cand) == n_data and _is_units_row(cand):
+            above = _fields(stripped[content[first - 2]], delim)
+            if len(above) == n_data:
+                # A header with a units row under it (``Freq,Z,Phase`` then ``Hz,Ohm,deg``).
+                units_note = f"units taken from the row under the header (line {hi + 1})"
+                cand = [_with_unit(h, u) for h, u in zip(above, cand)]
+                hi, first = content[first - 2], first - 1
         if len(cand) == n_data:
             header, header_line, preamble = cand, hi + 1, first - 1
         elif columns is None and len(cand) > 1 and len(cand) in range(n_data - 1, n_data + 4):
@@ -375,11 +417,16 @@ def read_table(path, columns: str | None = None) -> TableData:
                 path,
                 hi + 1,
             )
-    notes = []
+    notes = [units_note] if units_note else []
     if preamble:
         notes.append(f"{preamble} text line(s) before the {'header' if header else 'data'} skipped")
 
-    data_idx = np.array(content[first:], dtype=int)
+    data_rows = content[first + (1 if units_note else 0):]
+    data_rows, trailer = _without_trailer(data_rows, stripped, delim)
+    if trailer:
+        notes.append(f"{len(trailer)} text line(s) after the data ignored (line {trailer[0] + 1}: "
+                     f"{stripped[trailer[0]][:40]!r})")
+    data_idx = np.array(data_rows, dtype=int)
     rows = [stripped[i] for i in data_idx]
     if decimal_comma:
         rows = [r.replace(",", ".") for r in rows]
@@ -440,9 +487,14 @@ def read_table(path, columns: str | None = None) -> TableData:
             unitless.append(f"{_DISPLAY[q]} ({QUANTITIES[q][1]})")
         return values[:, col] * f_si, shown
 
+    values, data_idx = _without_overrange(values, data_idx, [mapping[q][0] for q in ("f",) + pair], path, notes)
     f, f_unit = column("f")
     a, a_unit = column(pair[0])
     b, b_unit = column(pair[1])
+    if pair[0] == "zmag" and np.any(a < 0):
+        i = int(np.flatnonzero(a < 0)[0])
+        raise ZfitInputError(f"|Z| = {values[i, mapping['zmag'][0]]:g} is negative: a magnitude is not "
+                             "(is the column a reactance or a dB value?)", path, int(data_idx[i]) + 1)
     if "phase" in pair and b_unit is None:
         b, b_unit = _phase_without_unit(path, values[:, mapping["phase"][0]], line_for_units, seen)
     z = _impedance(pair, f, a, b)
@@ -458,6 +510,61 @@ def read_table(path, columns: str | None = None) -> TableData:
     if mode:
         fmt += f" ({mode})"
     return TableData(f_hz=f, z_ohm=z, lines=data_idx + 1, data_format=fmt, notes=tuple(notes))
+
+
+def _without_overrange(values, data_idx, cols, path, notes):
+    """The rows without an instrument's overrange code (9.9E37, 9.91E37) in the columns used, with a note.
+
+    Any other number beyond 1e30 is refused with its line: no impedance
+    measurement reaches it, and its products overflow.
+    """
+    with np.errstate(invalid="ignore"):
+        a = np.abs(values[:, cols])
+        over = np.any((np.abs(a - _OVERRANGE_CODES[0]) <= 1e-6 * OVERRANGE)
+                      | (np.abs(a - _OVERRANGE_CODES[1]) <= 1e-6 * OVERRANGE), axis=1)
+    huge = np.isfinite(a) & (a > 1e30) & ~over[:, None]
+    if huge.any():
+        i = int(np.flatnonzero(huge.any(axis=1))[0])
+        raise ZfitInputError(f"{values[i, cols][huge[i]][0]:g} is beyond 1e30: no impedance measurement gives it "
+                             "(an instrument's overrange code other than 9.9E37?)", path, int(data_idx[i]) + 1)
+    if not over.any():
+        return values, data_idx
+    if over.all():
+        raise ZfitInputError(f"every row holds the overrange code {OVERRANGE:g} (the instrument was out of range "
+                             "throughout): nothing measured", path, int(data_idx[0]) + 1)
+    lines = ", ".join(str(int(x) + 1) for x in data_idx[over][:5]) + (" ..." if over.sum() > 5 else "")
+    notes.append(f"{int(over.sum())} row(s) with the instrument's overrange code ({OVERRANGE:g}) dropped as "
+                 f"missing points (line {lines})")
+    return values[~over], data_idx[~over]
+
+
+def _is_units_row(fields: list[str]) -> bool:
+    """Whether a row of fields holds units only (``Hz, Ohm, deg`` or ``[kHz], [uH], []``)."""
+    units = [f.strip().strip("[]()").strip() for f in fields]
+    return any(units) and all(u in ("", "-", "1") or _looks_like_unit(u) for u in units)
+
+
+def _with_unit(name: str, unit: str) -> str:
+    """A header field with the unit of the row under it, unless it carries one already."""
+    u = unit.strip().strip("[]()").strip()
+    if not u or u in ("-", "1") or _split_name(name)[1] is not None:
+        return name
+    return f"{name} [{u}]"
+
+
+def _without_trailer(rows: list[int], stripped: list[str], delim) -> tuple[list[int], list[int]]:
+    """The data rows without the text lines that end some exports (``END``, ``[EOF]``, a count).
+
+    Up to three lines whose first field is not a number, after the last
+    row of numbers, are an end marker; text among the rows is not, and is
+    reported by the number parse.
+    """
+    k = len(rows)
+    while k > 0 and len(rows) - k < 3 and not is_number(_fields(stripped[rows[k - 1]], delim)[0] or "x"):
+        k -= 1
+    if k == len(rows) or k == 0 or not is_number(_fields(stripped[rows[k - 1]], delim)[0] or "x"):
+        return rows, []
+    return rows[:k], rows[k:]
 
 
 def _phase_without_unit(path, theta, line, seen):
@@ -534,7 +641,9 @@ def _mapping_from_header(header, path, line):
 
 def _impedance(pair, f, a, b) -> np.ndarray:
     w = 2 * np.pi * f
-    with np.errstate(divide="ignore", invalid="ignore"):
+    # Overflow and division by zero leave inf or NaN, which the sweep's
+    # validation names by line: no numpy warning reaches the user.
+    with np.errstate(all="ignore"):
         p = pair
         if p == ("rs", "xs"):
             return a + 1j * b

@@ -57,6 +57,8 @@ def is_number(token: str, decimal_comma: bool = False) -> bool:
     t = token.strip().strip('"')
     if decimal_comma:
         t = t.replace(",", ".")
+    if "_" in t:
+        return False  # Python reads "1_0" as 10; no instrument writes it, numpy refuses it
     try:
         float(t)
     except ValueError:

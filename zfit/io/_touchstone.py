@@ -30,7 +30,7 @@ import numpy as np
 from .._errors import ZfitInputError
 from ._text import file_text, is_number
 
-__all__ = ["TouchstoneData", "read_touchstone", "looks_like_touchstone"]
+__all__ = ["TouchstoneData", "read_touchstone", "looks_like_touchstone", "REFERENCE_RANGE_OHM"]
 
 _UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
 _PARAMS = ("s", "y", "z", "g", "h")
@@ -98,19 +98,37 @@ class _Options:
 
 
 def _parse_option_line(body: str, path: Path, line: int) -> _Options:
-    """Return the options of a 1.x option line (tokens in any order, spec 1.1)."""
+    """Return the options of a 1.x option line (tokens in any order, spec 1.1).
+
+    Each kind of option (frequency unit, parameter, format, reference) may
+    appear once: a second one (``# GHz MHz``) would leave the reading to
+    whichever came last, a factor of 1000 in frequency, so it is refused.
+    """
     opt = _Options(line=line, given=True)
     toks = body[1:].split()
+    seen: dict[str, str] = {}
+
+    def once(kind: str, token: str) -> None:
+        if kind in seen:
+            raise ZfitInputError(
+                f"option line: two {kind}s ({seen[kind]} and {token}); give one", path, line
+            )
+        seen[kind] = token
+
     i = 0
     while i < len(toks):
         t = toks[i].lower()
         if t in _UNITS:
+            once("frequency unit", toks[i])
             opt.unit = t
         elif t in _PARAMS:
+            once("parameter type", toks[i])
             opt.param = t
         elif t in _FORMATS:
+            once("data format", toks[i])
             opt.fmt = t
         elif t == "r":
+            once("reference impedance", toks[i])
             values = []
             while i + 1 < len(toks) and is_number(toks[i + 1]):
                 values.append(float(toks[i + 1]))
@@ -129,6 +147,12 @@ def _parse_option_line(body: str, path: Path, line: int) -> _Options:
     return opt
 
 
+#: Reference impedances zfit computes with: 1 mohm .. 1 Mohm.  Analysers use
+#: 50 or 75 ohm, renormalised files 1 .. 1000 ohm; beyond this range the
+#: S <-> Z formulas lose every digit of the impedance (common practice).
+REFERENCE_RANGE_OHM = (1e-3, 1e6)
+
+
 def _reference(values, path: Path, line: int | None, n_ports: int) -> float:
     values = np.asarray(values, dtype=complex).ravel()
     if np.any(values.imag != 0):
@@ -136,6 +160,16 @@ def _reference(values, path: Path, line: int | None, n_ports: int) -> float:
     r = values.real
     if np.any(r <= 0) or not np.all(np.isfinite(r)):
         raise ZfitInputError(f"reference impedance must be positive, not {r[0]:g} ohm", path, line)
+    if n_ports == 1 and r.size > 1:
+        raise ZfitInputError(
+            f"{r.size} reference impedances ({', '.join(f'{x:g}' for x in r)} ohm) for a one-port file; give one",
+            path, line)
+    lo, hi = REFERENCE_RANGE_OHM
+    out = (r < lo) | (r > hi)
+    if np.any(out):
+        raise ZfitInputError(
+            f"reference impedance {r[out][0]:g} ohm is outside {lo:g} .. {hi:g} ohm, where the S <-> Z "
+            "formulas keep the impedance's digits", path, line)
     if n_ports == 2 and np.ptp(r) > 1e-12 * r.max():
         raise ZfitInputError(
             f"ports have different reference impedances ({', '.join(f'{x:g}' for x in r)} ohm); "
@@ -238,6 +272,7 @@ def _read_v1(path: Path, body: list[str], n_ports: int) -> TouchstoneData:
             if first is not None and i > first:
                 raise ZfitInputError("option line after the first data line (it must come before the data)", path, i + 1)
             opt = _parse_option_line(b, path, i + 1)
+            _check_later_option_lines(path, body, i, notes)
             break
         if b.startswith("["):
             raise ZfitInputError(f"keyword {b.split(']')[0]}] in a file without [Version] 2.0", path, i + 1)
@@ -282,6 +317,63 @@ def _read_v1(path: Path, body: list[str], n_ports: int) -> TouchstoneData:
     return _v1_result(path, opt, values, row_lines, n_ports, r0, notes)
 
 
+def _check_later_option_lines(path: Path, body: list[str], first: int, notes: list) -> None:
+    """Refuse a second option line that differs from the first; note a repeated one.
+
+    The 1.1 specification reads the first option line and ignores the rest;
+    a different one further down (files concatenated, a unit changed by
+    hand) leaves the data ambiguous.
+    """
+    words = body[first].lower().split()
+    for j in range(first + 1, len(body)):
+        b = body[j]
+        if not b.startswith("#"):
+            continue
+        if b.lower().split() != words:
+            raise ZfitInputError(
+                f"a second option line {b!r}, different from the first ({body[first]!r} at line {first + 1}): "
+                "which applies to the data is ambiguous (files joined?); keep one", path, j + 1)
+        notes.append(f"option line repeated at line {j + 1} (same as line {first + 1})")
+
+
+def _checked_pairs(path: Path, values: np.ndarray, fmt: str, row_lines, notes: list) -> np.ndarray:
+    """The complex values of data rows, after the checks of magnitude and angle.
+
+    A magnitude (MA) below zero is not a magnitude: refused with its line.
+    An angle between 180 and 360 degrees (either sign) is the same direction
+    as one within +-180 and is read so, with a note; beyond +-360 degrees no
+    analyser writes it (a shifted column, a value in another unit?):
+    refused.  Numbers beyond 1e30 (or a dB value whose magnitude overflows)
+    are refused: no passive network has such an S, Y or Z.
+    """
+    a, b = values[:, 1::2], values[:, 2::2]
+
+    def line_of(mask) -> int:
+        return int(row_lines[int(np.flatnonzero(mask.any(axis=1))[0])])
+
+    with np.errstate(invalid="ignore"):
+        huge = np.isfinite(values) & (np.abs(values) > 1e30)
+        if fmt == "db":
+            huge[:, 1::2] |= a > 600
+    if np.any(huge):
+        raise ZfitInputError("a number beyond 1e30 (or a dB value beyond 600 dB): no passive network measures so; "
+                             "an instrument's overrange code?", path, line_of(huge))
+    if fmt == "ma" and np.any(a < 0):  # NaN compares False: the finiteness check names it later
+        raise ZfitInputError(f"magnitude {a[a < 0][0]:g} is negative (MA format: magnitude, angle)", path, line_of(a < 0))
+    if fmt in ("ma", "db"):
+        beyond = np.abs(b) > 360.0
+        if np.any(beyond):
+            raise ZfitInputError(
+                f"angle {b[beyond][0]:g} deg is beyond +-360 deg: no analyser writes it (a column shifted, or an "
+                "angle in another unit?)", path, line_of(beyond))
+        wrapped = np.abs(b) > 180.0
+        if np.any(wrapped):
+            notes.append(f"{int(wrapped.sum())} angle(s) between 180 and 360 deg (first at line {line_of(wrapped)}) "
+                         "read as the same direction within +-180 deg")
+    with np.errstate(all="ignore"):
+        return _complex_pairs(a, b, fmt)
+
+
 def _plain_rows(data, per_row):
     """The common case, one row per line: parsed by numpy's C reader, or None."""
     try:
@@ -292,8 +384,9 @@ def _plain_rows(data, per_row):
 
 
 def _v1_result(path, opt, values, row_lines, n_ports, r0, notes) -> TouchstoneData:
+    notes = list(notes)
+    pairs = _checked_pairs(path, values, opt.fmt, row_lines, notes)  # the frequencies bounded too
     f = values[:, 0] * _UNITS[opt.unit]
-    pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
     m = pairs.reshape(-1, n_ports, n_ports)
     if n_ports == 2:
         # 1.x two-port order is X11 X21 X12 X22: column-major.
@@ -307,7 +400,8 @@ def _v1_result(path, opt, values, row_lines, n_ports, r0, notes) -> TouchstoneDa
         num, den = (m - eye, m + eye) if opt.param == "z" else (eye - m, eye + m)
         try:
             # S den = num  <=>  den^T S^T = num^T.
-            s = np.linalg.solve(den.transpose(0, 2, 1), num.transpose(0, 2, 1)).transpose(0, 2, 1)
+            with np.errstate(all="ignore"):
+                s = np.linalg.solve(den.transpose(0, 2, 1), num.transpose(0, 2, 1)).transpose(0, 2, 1)
         except np.linalg.LinAlgError:
             raise ZfitInputError(f"{opt.param.upper()} matrix cannot be converted to S (singular)", path) from None
         extra = "converted to S"
@@ -371,33 +465,56 @@ def _numbers_wrapped(path, data, idx, counts, per_row, n_ports):
     return flat.reshape(-1, per_row), idx[pos] + 1
 
 
+#: The keywords of Touchstone 2.0 and 2.1 (spec 2.0 section "Keywords"; 2.1
+#: adds none that a one- or two-port file uses).
+_V2_KEYWORDS = frozenset({
+    "version", "number of ports", "two-port data order", "number of frequencies", "number of noise frequencies",
+    "reference", "matrix format", "mixed-mode order", "begin information", "end information", "network data",
+    "noise data", "end",
+})
+
+
 def _scan_v2(path: Path, body: list[str]):
     """Our own scan of a 2.0 file: keywords, the network-data lines and their counts.
 
-    Used to give line numbers to rows and to errors scikit-rf reports without one.
+    Used to give line numbers to rows and to errors scikit-rf reports without
+    one, and to refuse what the 2.0 specification does not allow: an unknown
+    keyword, a keyword given twice, data after ``[End]``.
     """
     keys = {}
     net_start = net_end = None
     opt = None
     in_reference = False
+    ended = None
     for i, b in enumerate(body):
         if not b:
             continue
+        if ended is not None:
+            raise ZfitInputError(f"data after [End] (line {ended}): the file should stop there (files joined?)",
+                                 path, i + 1)
         if in_reference and b[0] not in "#[":
             continue  # [Reference] values may continue on the following lines
         in_reference = False
-        if b.startswith("#") and opt is None:
+        if b.startswith("#"):
+            if opt is not None:
+                raise ZfitInputError(f"a second option line (the first is at line {opt.line}); keep one", path, i + 1)
             opt = _parse_option_line(b, path, i + 1)
             continue
         m = _KEYWORD.match(b)
         if m:
-            name = m.group(1).strip().lower()
+            name = " ".join(m.group(1).split()).lower()
+            if name not in _V2_KEYWORDS:
+                raise ZfitInputError(f"unknown Touchstone 2.0 keyword [{m.group(1).strip()}]", path, i + 1)
+            if name in keys and name not in ("begin information", "end information"):
+                raise ZfitInputError(f"[{m.group(1).strip()}] given twice (first at line {keys[name][0]})", path, i + 1)
             keys.setdefault(name, (i + 1, b[m.end():].strip()))
             in_reference = name == "reference" and net_start is None
             if name == "network data":
                 net_start = i + 1
             elif net_start is not None and net_end is None:
                 net_end = i
+            if name == "end":
+                ended = i + 1
             continue
         if net_start is None:
             raise ZfitInputError("data line before [Network Data] in a Touchstone 2.0 file", path, i + 1)
@@ -407,6 +524,16 @@ def _scan_v2(path: Path, body: list[str]):
         raise ZfitInputError("Touchstone 2.0 file without an option line (# Hz S RI R 50)", path)
     if "number of ports" not in keys:
         raise ZfitInputError("Touchstone 2.0 file without [Number of Ports]", path, keys["version"][0])
+    if "number of frequencies" not in keys:
+        raise ZfitInputError("Touchstone 2.0 file without [Number of Frequencies] (required by the 2.0 "
+                             "specification: it tells a complete file from a cut one)", path, keys["version"][0])
+    if "number of noise frequencies" in keys and "noise data" not in keys:
+        raise ZfitInputError("[Number of Noise Frequencies] is given but there is no [Noise Data]", path,
+                             keys["number of noise frequencies"][0])
+    if "two-port data order" in keys:
+        line, value = keys["two-port data order"]
+        if value.split()[:1] not in (["12_21"], ["21_12"]):
+            raise ZfitInputError(f"[Two-Port Data Order] {value!r}: expected 12_21 or 21_12", path, line)
     line, value = keys["number of ports"]
     try:
         n_ports = int(value.split()[0])
@@ -465,6 +592,8 @@ def _read_v2(path: Path, body: list[str]) -> TouchstoneData:
         r0 = _reference(ref, path, rline, n_ports)
     else:
         r0 = _reference(opt.resistance, path, opt.line, n_ports)
+    notes: list[str] = []
+    _checked_pairs(path, values, opt.fmt, row_lines, notes)
     ts = _skrf_touchstone(path)
     extra = [f"{n_ports} port" + ("s" if n_ports > 1 else "")]
     if matrix != "full":
@@ -483,13 +612,14 @@ def _read_v2(path: Path, body: list[str]) -> TouchstoneData:
         n_ports=n_ports,
         lines=row_lines,
         data_format=_describe(version, opt.param, opt.fmt, opt.unit, r0, ", ".join(extra)),
-        notes=(),
+        notes=tuple(notes),
     )
 
 
 def _triangle_matrix(values, opt, matrix, n_ports, r0) -> np.ndarray:
     """The S matrix of rows holding one triangle of a symmetric matrix (2.0 spec)."""
-    pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
+    with np.errstate(all="ignore"):  # a NaN or inf stays one: the sweep names its line
+        pairs = _complex_pairs(values[:, 1::2], values[:, 2::2], opt.fmt)
     rows, cols = np.tril_indices(n_ports) if matrix == "lower" else np.triu_indices(n_ports)
     m = np.zeros((values.shape[0], n_ports, n_ports), dtype=complex)
     m[:, rows, cols] = pairs
@@ -520,8 +650,10 @@ def _skrf_touchstone(path: Path):
     except ZfitInputError:
         raise
     except Exception as exc:  # scikit-rf raises bare ValueError/IndexError/KeyError
-        # Our scan found nothing wrong that we know how to point at.
-        raise ZfitInputError(f"scikit-rf cannot read this Touchstone file: {type(exc).__name__}: {exc}".strip(), path) from None
+        # Our scan found nothing wrong that we know how to point at; the
+        # library's own wording (a Python exception's) would not help the user.
+        raise ZfitInputError("cannot be read as Touchstone 2.0 although its keywords and rows look right; "
+                             "check it against the 2.0 specification", path) from None
 
 
 def _skrf_s(ts, path: Path, row_lines) -> np.ndarray:
