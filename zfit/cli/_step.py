@@ -7,7 +7,7 @@ from typing import Optional
 
 import typer
 
-from ._common import ForceOpt, app, command_line, echo, emit_json, guarded, quantity
+from ._common import SHUNT_RANGE_OHM, ForceOpt, app, command_line, echo, emit_json, guarded, quantity
 
 _HELP = """Analyse an oscilloscope capture of a square wave (or one step) driven through a part.
 
@@ -57,7 +57,7 @@ def step_command(
     from ..capture._analysis import analyse_capture
     from ..outputs._views import response_csv, step_summary
 
-    shunt_ohm = quantity(shunt, "--shunt")
+    shunt_ohm = quantity(shunt, "--shunt", *SHUNT_RANGE_OHM, unit="ohm")
     inductance_h = quantity(inductance, "--inductance")
     added_f = quantity(added_capacitance, "--added-capacitance")
     dt_s = quantity(dt, "--dt")

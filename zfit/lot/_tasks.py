@@ -37,15 +37,15 @@ class ReadOptions:
     """
 
     connection: str | None = None
-    noise_rel: float | None = None
-    noise_floor: float | None = None
+    noise_rel: str | float | None = None
+    noise_floor: str | float | None = None
     columns: str | None = None
     open_: str | None = None
     short: str | None = None
     load: str | None = None
     load_value: str | None = None
     port_delay: str | None = None
-    port_loss: float | None = None
+    port_loss: str | float | None = None
 
 
 @dataclass(frozen=True)
