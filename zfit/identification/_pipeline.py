@@ -44,6 +44,7 @@ from ._result import SCHEMA, Candidate, FitQuality, Identification, ParameterMap
 if TYPE_CHECKING:
     from ..data._sweep import Sweep
     from ..fit._lsq import Observation
+    from ._measured_report import MeasuredReadings
     from ._rational import RationalStage
 
 __all__ = [
@@ -140,8 +141,10 @@ def readings(family: str, srf: SRF, evaluator: ModelEvaluator, at, extrapolated:
     return Readings(srf, spots, merits_of(family, srf, evaluator), curves_of(evaluator)), notes
 
 
-def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, rdc, notes) -> Identification:
+def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, rdc, notes,
+                     measured: MeasuredReadings) -> Identification:
     """The result when the rational model alone is reported (its notes appended to `notes`)."""
+    from ._measured_report import srf_with_measurement
     from ._merit import srf_of_rational
     from ._rational import n_poles_of, rational_k
 
@@ -149,7 +152,7 @@ def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, r
     band = sweep.band_hz
     if rdc is not None:
         notes.append("--rdc does not apply to the rational model; ignored")
-    srf = srf_of_rational(rational, band)
+    srf = srf_with_measurement(srf_of_rational(rational, band), measured.srf)
     read, spot_notes = readings("rational", srf, ModelEvaluator(band, rational=rational), at,
                                 "the rational model is extrapolated")
     notes.extend(spot_notes)
@@ -164,7 +167,7 @@ def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, r
     return Identification(
         sweep=sweep, model="rational", topology=f"rational model with {n_poles_of(rational)} poles",
         parameters=ParameterMap(), rational=rational, srf=srf, fit=fit, spot=read.spot,
-        figures=read.merit, curves=read.curves, rdc=None,
+        figures=read.merit, curves=read.curves, rdc=None, measurement=measured,
     )
 
 
@@ -237,6 +240,7 @@ def identify(
     from ._criteria import bic
     from ._diagnostics import adequacy_note, ground_loop_warning, parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates
+    from ._measured_report import measured_readings, srf_with_measurement
     from ._merit import srf_of_circuit
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
@@ -245,19 +249,22 @@ def identify(
     obs = Observation.from_sweep(sweep)
     rows_full = 2 * sweep.n_points
 
+    # What the measurement says is read first, over the whole file, whatever model follows.
+    measured = measured_readings(sweep, at)
     stage = rational_stage(sweep, model, obs, n_poles)
     notes = list(stage.notes)
     if model == "rational":
-        return _finish(_rational_result(sweep, obs, stage, at, rdc, notes), notes)
+        return _finish(_rational_result(sweep, obs, stage, at, rdc, notes, measured), notes)
 
-    likely = "capacitor" if looks_capacitive(sweep) else "inductor"
+    # An inductive sweep (Im Z > 0 at low frequency, resolved) is an inductor, a capacitive one a capacitor.
+    likely = measured.family or ("capacitor" if looks_capacitive(sweep) else "inductor")
     fits = candidate_fits(model, likely, obs, stage.rational, rdc, rdc_std, margin)
     notes.extend(fits.notes)
     if not fits.base:
         if stage.rational is None:
             raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
         return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
-    picked = choice(fits, rows_full, margin, rdc, rdc_std)
+    picked = choice(fits, rows_full, margin, rdc, rdc_std, required=measured.family if model == "auto" else None)
 
     e_rat = None if stage.score is None else stage.score.energy
     vb = valid_band(sweep, obs, picked, e_rat, stage.rational, margin)
@@ -286,7 +293,7 @@ def identify(
     pull = rdc_note(chosen, picked.prior, rdc)
     if pull is not None:
         notes.append(pull)
-    srf = srf_of_circuit(chosen, band)
+    srf = srf_with_measurement(srf_of_circuit(chosen, band), measured.srf)
     evaluator = ModelEvaluator(
         band, rational=rational, refinement=chosen,
         circuit_band=valid if (obs.on_s and i1 > i0) else None,
@@ -311,7 +318,7 @@ def identify(
         sweep=sweep, model=picked.family, topology=chosen.circuit.topology, parameters=est, rational=rational,
         srf=srf, fit=fit, spot=read.spot, figures=read.merit, curves=read.curves, candidates=candidates,
         correlation=correlation_of(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
-        refinement=chosen,
+        refinement=chosen, measurement=measured,
     )
     # A flat resistive floor of a shunt-thru capacitor is the cable-shield ground loop, not ESR.
     loop = ground_loop_warning(sweep, result)

@@ -24,6 +24,7 @@ if TYPE_CHECKING:
     from ..fit._lsq import Refinement
     from ..fit._realisation import Realisation
     from ..fit._vectfit import RationalModel
+    from ._measured_report import MeasuredReadings
 
 __all__ = ["Identification", "FitQuality", "Candidate", "ParameterMap", "SCHEMA"]
 
@@ -205,6 +206,9 @@ class Identification:
         The measured DC resistance that constrained R_s or ESR.
     refinement : Refinement or None
         The circuit fit itself (values, log-covariance), for further use.
+    measurement : MeasuredReadings or None
+        What the measurement itself says over the whole file (figures, SRF,
+        low-frequency value, spot readouts), reported beside the model.
     """
 
     sweep: Sweep
@@ -222,6 +226,7 @@ class Identification:
     correlation: np.ndarray | None = None
     rdc: Estimate | None = None
     refinement: Refinement | None = None
+    measurement: MeasuredReadings | None = None
 
     def __post_init__(self):
         if self.correlation is not None:
@@ -305,16 +310,32 @@ class Identification:
             "parameters": {k: v.to_dict() for k, v in self.parameters.items()},
             "correlation": corr,
             "srf": self.srf.to_dict(),
-            "figures": self.figures.to_dict(),
+            "figures": self._figures_dict(),
             "curves": None if self.curves is None else self.curves.to_dict(),
             "fit": self.fit.to_dict(),
             "candidates": [c.to_dict() for c in self.candidates],
             "rational": _rational_dict(self.rational),
             "rdc": None if self.rdc is None else self.rdc.to_dict(),
-            "spot": [s.to_dict() for s in self.spot],
+            "spot": self._spot_dicts(),
             "warnings": list(self.warnings),
             "notes": list(self.sweep.notes),
+            "low_frequency": None if self.measurement is None else self.measurement.low_frequency_dict(),
         }
+
+    def _figures_dict(self) -> dict:
+        out = self.figures.to_dict()
+        m = self.measurement
+        if m is not None:
+            family = m.family or (self.model if self.model in ("inductor", "capacitor") else None)
+            out["measurement"] = m.figure_dicts(family)
+        return out
+
+    def _spot_dicts(self) -> list:
+        out = [s.to_dict() for s in self.spot]
+        if self.measurement is not None:
+            for entry, meas in zip(out, self.measurement.spot_dicts()):
+                entry["measurement"] = meas
+        return out
 
 
 def _rational_dict(rm):
