@@ -127,3 +127,28 @@ def test_unresolved_loss_is_a_bound_never_negative():
     assert m["R"]["text"].startswith("below resolution, < ") and m["R"]["upper_bound"] > 0
     # The bound is 2 std above max(R, 0): 2 x 0.36 % of |Z| / sqrt(2) with smoothing, below 2 % of |X| (from the error model).
     assert m["R"]["upper_bound"] < 0.02 * TWO_PI * 1e5 * 1e-6
+
+
+def test_a_circuit_that_is_not_the_parts_form_does_not_hold_and_carries_a_model_error():
+    # The constant-D electrolytic is not an ESR-ESL-C(-R_leak) circuit: the residual is structured.
+    f = np.geomspace(20, 1e6, 301)
+    r = _identify(f, _electrolytic(f), 5, model="capacitor")
+    fit = r.to_dict()["fit"]
+    assert fit["reduced_chi_square"] > 4 and fit["holds_over_whole_band"] is False
+    assert "holds over the whole band" not in "\n".join(identification_summary(r))
+    # Birge ratio (Birge 1932): the uncertainties scaled by sqrt(reduced chi-square).
+    assert fit["model_error_scale"] == pytest.approx(math.sqrt(fit["reduced_chi_square"]), rel=1e-12)
+    # C of the form is C/(1 + D^2) in series terms at low frequency; within 3 scaled sigma.
+    c = r.parameters["C"]
+    assert abs(c.value - 100e-6) <= 3 * c.std
+
+
+def test_an_exact_form_holds_with_no_model_error():
+    # A series R-L with parallel C written out (not zfit's circuit): the residual is noise.
+    f = np.geomspace(1e3, 1e8, 201)
+    w = TWO_PI * f
+    z = 1 / (1 / (0.2 + 1j * w * 10e-6) + 1j * w * 3e-12)
+    r = _identify(f, z, 6)
+    fit = r.to_dict()["fit"]
+    assert fit["holds_over_whole_band"] is True and fit["model_error_scale"] == 1.0
+    assert fit["holds_decades"] == pytest.approx(5.0, rel=1e-9)

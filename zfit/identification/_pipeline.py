@@ -235,6 +235,7 @@ def identify(
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
     from ..fit._lsq import Observation
+    from ._adequacy import adequacy, adequacy_notes, with_model_error
     from ._band import valid_band
     from ._candidates import candidate_fits, choice
     from ._criteria import bic
@@ -288,7 +289,11 @@ def identify(
         notes.append(adequacy_note(chosen.circuit.topology, vb.energy, rat_rms, valid, i1 - i0, sweep.n_points,
                                    fitted_mask is not None))
 
-    est = parameter_estimates(chosen, sweep, fitted_mask)
+    # Where the circuit holds within the noise, and the model error its uncertainties then carry.
+    adq = adequacy(sweep.f_hz, vb.energy, chosen.reduced_chi2, chosen.rows - chosen.circuit.n_params)
+    if (i0, i1) == (0, sweep.n_points):  # a narrower valid band has its own note (_band)
+        notes.extend(adequacy_notes(adq, chosen.circuit.topology))
+    est = with_model_error(parameter_estimates(chosen, sweep, fitted_mask), adq.model_error_scale)
     notes.extend(parameter_notes(est, rdc))
     pull = rdc_note(chosen, picked.prior, rdc)
     if pull is not None:
@@ -307,7 +312,7 @@ def identify(
         valid_band_hz=valid, fitted_band_hz=fitted_band, reduced_chi_square=chosen.reduced_chi2,
         domain="S" if obs.on_s else "Z", rational_rms_normalized_residual=rat_rms,
         rational_poles=None if rational is None else n_poles_of(rational), worse_than_rational=bool(worse),
-        starts=chosen.starts,
+        starts=chosen.starts, adequacy=adq,
     )
     candidates = tuple(
         Candidate(ref.circuit.topology, ref.circuit.n_params, b, ref.rms_normalized_residual,

@@ -24,6 +24,7 @@ if TYPE_CHECKING:
     from ..fit._lsq import Refinement
     from ..fit._realisation import Realisation
     from ..fit._vectfit import RationalModel
+    from ._adequacy import Adequacy
     from ._measured_report import MeasuredReadings
 
 __all__ = ["Identification", "FitQuality", "Candidate", "ParameterMap", "SCHEMA"]
@@ -135,6 +136,9 @@ class FitQuality:
         model by the criterion.
     starts : int
         Starting points ranked for the refinement of the reported circuit.
+    adequacy : Adequacy or None
+        Where the circuit holds within the noise (log-frequency span) and the
+        model-error factor of its uncertainties (`_adequacy`).
     """
 
     rms_normalized_residual: float
@@ -150,10 +154,11 @@ class FitQuality:
     rational_poles: int | None = None
     worse_than_rational: bool = False
     starts: int = 0
+    adequacy: Adequacy | None = None
 
     def to_dict(self) -> dict:
         """Return the ``fit`` object of the JSON contract."""
-        return {
+        out = {
             "rms_normalized_residual": _num(self.rms_normalized_residual),
             "points": int(self.points),
             "f_min_hz": float(self.f_min_hz),
@@ -168,6 +173,9 @@ class FitQuality:
             "worse_than_rational": bool(self.worse_than_rational),
             "starts": int(self.starts),
         }
+        if self.adequacy is not None:
+            out.update(self.adequacy.to_dict())
+        return out
 
 
 @dataclass(frozen=True)

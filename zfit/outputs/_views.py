@@ -210,11 +210,19 @@ def identification_summary(result) -> list[str]:
     )
     if fit.rational_rms_normalized_residual is not None:
         out.append(f"            rational model: {fit.rational_poles} poles, residual {fit.rational_rms_normalized_residual:.3g}")
+    adq = fit.adequacy
     if result.model != "rational":
-        if whole:
+        if whole and (adq is None or adq.whole_band):
             out.append("            the circuit holds over the whole band")
-        else:
+        elif not whole:
             out.append(f"            valid band {format_eng(band[0], 'Hz')} to {format_eng(band[1], 'Hz')}")
+        if adq is not None and not adq.whole_band:
+            where = ("nowhere" if not math.isfinite(adq.holds_band_hz[0]) else
+                     f"{format_eng(adq.holds_band_hz[0], 'Hz')} to {format_eng(adq.holds_band_hz[1], 'Hz')}"
+                     f" ({adq.holds_decades:.2g} of {adq.band_decades:.2g} decades)")
+            out.append(f"            within the noise (local residual <= 1.5) {where}")
+        if adq is not None and adq.model_error_scale > 1.0:
+            out.append(f"            uncertainties include the model error (x {adq.model_error_scale:.3g})")
     if result.spot:
         out.append("spot readouts (measurement first, then the " + ", ".join(sorted({s.source for s in result.spot}))
                    + " model):")
