@@ -152,3 +152,20 @@ def test_an_exact_form_holds_with_no_model_error():
     fit = r.to_dict()["fit"]
     assert fit["holds_over_whole_band"] is True and fit["model_error_scale"] == 1.0
     assert fit["holds_decades"] == pytest.approx(5.0, rel=1e-9)
+
+
+def test_band_restricts_the_fit_and_the_measurement_covers_the_whole_file():
+    # The two-section winding of a skin coil above 2 MHz is left out of the fit by --band.
+    f = np.geomspace(1e3, 30e6, 401)
+    r = _identify(f, _skin_coil(f), 7, at=(100e3, 20e6), band=(1e3, 2e6))
+    d = r.to_dict()
+    assert d["choice"]["band_hz"] == [pytest.approx(1e3), pytest.approx(f[f <= 2e6][-1])]
+    assert d["choice"]["band_why"] == "asked for (band)" and d["choice"]["model_asked"] == "auto"
+    assert d["fit"]["f_max_hz"] <= 2e6
+    # The measurement still reads the SRF (12 MHz, outside the fitted band) and the spot at 20 MHz.
+    assert d["srf"]["measured"]["in_band"] and d["srf"]["measured"]["value_hz"] > 1e7
+    assert d["spot"][1]["measurement"] is not None and d["spot"][1]["measurement"]["source"] == "measurement"
+    from zfit._errors import ZfitInputError
+
+    with pytest.raises(ZfitInputError, match="at least 10"):
+        _identify(f, _skin_coil(f), 7, band=(1.0e3, 1.05e3))

@@ -36,6 +36,7 @@ from ._common import (
 def identify_command(
     sweep: Path = typer.Argument(..., help="Touchstone (.s1p/.s2p) file or impedance-analyser table (.csv/.txt/.tsv)."),
     model: str = typer.Option("auto", "--model", "-m", help="auto | inductor | capacitor | rational."),
+    band: Optional[str] = typer.Option(None, "--band", help="Fit over FMIN:FMAX only, e.g. 1k:10M (the figures read from the measurement still cover the whole file)."),
     at: Optional[List[str]] = typer.Option(None, "--at", help="Spot frequency for R, X, L_eff, C_eff, Q, D readouts, e.g. 100k; repeatable."),
     rdc: Optional[str] = typer.Option(None, "--rdc", help="Measured DC resistance in ohm (four-wire ohmmeter), e.g. 25m: constrains R_s or ESR."),
     rdc_std: Optional[str] = typer.Option(None, "--rdc-std", help="Standard uncertainty of --rdc in ohm (default 1 % of it)."),
@@ -94,6 +95,12 @@ def identify_command(
     if netlist_kind != "auto" and netlist is None:
         raise ZfitInputError("--netlist-kind needs --netlist PATH")
     freqs = quantities(at, "--at")
+    fit_band = None
+    if band is not None:
+        parts = band.split(":")
+        if len(parts) != 2:
+            raise ZfitInputError(f"--band {band!r}: give FMIN:FMAX, e.g. 1k:10M")
+        fit_band = (quantity(parts[0], "--band"), quantity(parts[1], "--band"))
     r_dc = quantity(rdc, "--rdc")
     r_dc_std = quantity(rdc_std, "--rdc-std")
     s = sweep_from_options(
@@ -102,7 +109,7 @@ def identify_command(
     )
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", MeasurementWarning)
-        result = identify(s, model, freqs, rdc=r_dc, rdc_std=r_dc_std)
+        result = identify(s, model, freqs, rdc=r_dc, rdc_std=r_dc_std, band=fit_band)
     # identify's own warnings are in result.warnings; others (from reading) are passed on.
     own = set(result.warnings)
     for w in caught:

@@ -122,7 +122,8 @@ class MeasuredReadings:
             ok = below & (fig.x_ohm > 0) & (fig.r_ohm > 2.0 * fig.std_ohm)
             if ok.any():
                 # The peak of Q - 2 std(Q): a noise spike of a barely resolved R is not a peak.
-                score = np.where(ok, fig.q - 2.0 * fig.q_std, -np.inf)
+                with np.errstate(divide="ignore", invalid="ignore"):  # X or R zero where not `ok`
+                    score = np.where(ok, fig.q - 2.0 * fig.q_std, -np.inf)
                 i = int(np.argmax(score))
                 out["q_peak"] = _entry(MeasuredValue("Q", "", float(fig.q[i]), float(fig.q_std[i])), float(fig.f_hz[i]),
                                        "|X|/R of the measured impedance, its largest resolved value below the SRF")

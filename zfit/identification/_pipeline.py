@@ -39,7 +39,7 @@ import numpy as np
 from .._errors import FitError, MeasurementWarning, ZfitInputError
 from .._units import format_eng
 from ._merit import SRF, Curves, Estimate, Merits, ModelEvaluator, SpotReadout
-from ._result import SCHEMA, Candidate, FitQuality, Identification, ParameterMap
+from ._result import SCHEMA, Candidate, FitQuality, Identification, ModelChoice, ParameterMap
 
 if TYPE_CHECKING:
     from ..data._sweep import Sweep
@@ -180,6 +180,7 @@ def identify(
     rdc_std: float | None = None,
     n_poles: int | None = None,
     margin: float = BIC_MARGIN,
+    band: tuple[float, float] | None = None,
 ) -> Identification:
     """Return the equivalent circuit of a part with uncertainties, SRF, Q and D.
 
@@ -203,6 +204,9 @@ def identify(
         Pole count of the rational model (automatic by default).
     margin : float
         BIC difference an optional element must win by.
+    band : (float, float), optional
+        Restrict the fit to ``fmin <= f <= fmax`` (Hz); the figures read
+        from the measurement still cover the whole sweep.
 
     Returns
     -------
@@ -234,6 +238,46 @@ def identify(
     .. [3] R. E. Kass and A. E. Raftery, "Bayes factors", J. Amer. Statist.
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
+    from ._measured_report import measured_readings
+
+    at, _, _ = _checked_options(sweep, model, at, rdc, rdc_std)
+    # What the measurement says is read first, over the whole file, whatever model and band follow.
+    measured = measured_readings(sweep, at)
+    fitted = sweep if band is None else sweep_in_band(sweep, band)
+    result = _identify(fitted, model, at, rdc, rdc_std, n_poles, margin, measured)
+    return dataclasses.replace(result, choice=model_choice(model, band, result, margin))
+
+
+def sweep_in_band(sweep: Sweep, band) -> Sweep:
+    """Return the sweep restricted to ``band[0] <= f <= band[1]``; ZfitInputError if too few points remain."""
+    lo, hi = (float(x) for x in band)
+    if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
+        raise ZfitInputError(f"--band {format_eng(lo, 'Hz')}:{format_eng(hi, 'Hz')} is not an increasing pair of "
+                             "positive frequencies", sweep.source)
+    m = (sweep.f_hz >= lo) & (sweep.f_hz <= hi)
+    if int(m.sum()) < 10:
+        raise ZfitInputError(f"--band {format_eng(lo, 'Hz')}:{format_eng(hi, 'Hz')} holds {int(m.sum())} points of "
+                             f"the sweep; at least 10 are needed for a fit", sweep.source)
+    arrays = {k: getattr(sweep, k)[m] for k in ("f_hz", "z_ohm", "sigma_ohm", "s_param", "active")
+              if getattr(sweep, k) is not None}
+    return dataclasses.replace(sweep, **arrays)
+
+
+def model_choice(model: str, band, result: Identification, margin: float) -> ModelChoice:
+    """Return which band and model were used, and why."""
+    lo, hi = result.sweep.band_hz
+    if model == "auto" and result.model == "rational":
+        why = "no equivalent circuit describes the part within the noise over enough of the band (see warnings)"
+    elif model == "auto":
+        why = (f"the lowest BIC of {len(result.candidates)} candidate circuits, an extra element kept only when it "
+               f"lowers the BIC by more than {margin:g}; the family from the sign of Im Z at low frequency")
+    else:
+        why = f"asked for (model {model!r})"
+    return ModelChoice(model, result.topology, why, (lo, hi), "asked for (band)" if band is not None else "the whole sweep")
+
+
+def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Identification:
+    """`identify` over the (restricted) sweep, with the measurement already read."""
     from ..fit._lsq import Observation
     from ._adequacy import adequacy, adequacy_notes, with_model_error
     from ._band import valid_band
@@ -241,7 +285,7 @@ def identify(
     from ._criteria import bic
     from ._diagnostics import adequacy_note, ground_loop_warning, parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates
-    from ._measured_report import measured_readings, srf_with_measurement
+    from ._measured_report import srf_with_measurement
     from ._merit import srf_of_circuit
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
@@ -250,8 +294,6 @@ def identify(
     obs = Observation.from_sweep(sweep)
     rows_full = 2 * sweep.n_points
 
-    # What the measurement says is read first, over the whole file, whatever model follows.
-    measured = measured_readings(sweep, at)
     stage = rational_stage(sweep, model, obs, n_poles)
     notes = list(stage.notes)
     if model == "rational":
@@ -264,7 +306,7 @@ def identify(
     if not fits.base:
         if stage.rational is None:
             raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
-        return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
+        return _finish(_identify(sweep, "rational", at, None, None, n_poles, margin, measured), notes)
     picked = choice(fits, rows_full, margin, rdc, rdc_std, required=measured.family if model == "auto" else None)
 
     e_rat = None if stage.score is None else stage.score.energy
@@ -284,7 +326,7 @@ def identify(
             f"no equivalent circuit describes this part: the best, {chosen.circuit.topology}, is within the noise "
             f"over {i1 - i0} of {sweep.n_points} points only; the rational model is reported"
         )
-        return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
+        return _finish(_identify(sweep, "rational", at, None, None, n_poles, margin, measured), notes)
     if worse:
         notes.append(adequacy_note(chosen.circuit.topology, vb.energy, rat_rms, valid, i1 - i0, sweep.n_points,
                                    fitted_mask is not None))

@@ -27,7 +27,7 @@ if TYPE_CHECKING:
     from ._adequacy import Adequacy
     from ._measured_report import MeasuredReadings
 
-__all__ = ["Identification", "FitQuality", "Candidate", "ParameterMap", "SCHEMA"]
+__all__ = ["Identification", "FitQuality", "Candidate", "ModelChoice", "ParameterMap", "SCHEMA"]
 
 #: Identifier of the JSON contract.
 SCHEMA = "zfit.identify/1"
@@ -179,6 +179,36 @@ class FitQuality:
 
 
 @dataclass(frozen=True)
+class ModelChoice:
+    """Which band and model were used, and why.
+
+    Attributes
+    ----------
+    asked : str
+        The ``model`` argument.
+    used : str
+        The model reported (its descriptive name).
+    why : str
+        Why it was chosen.
+    band_hz : tuple of float
+        The band it was fitted over.
+    band_why : str
+        ``"asked for (band)"`` or ``"the whole sweep"``.
+    """
+
+    asked: str
+    used: str
+    why: str
+    band_hz: tuple[float, float]
+    band_why: str
+
+    def to_dict(self) -> dict:
+        """Return the ``choice`` object of the JSON contract."""
+        return {"model_asked": self.asked, "model_used": self.used, "why": self.why,
+                "band_hz": [float(self.band_hz[0]), float(self.band_hz[1])], "band_why": self.band_why}
+
+
+@dataclass(frozen=True)
 class Identification:
     """The result of `identify`.
 
@@ -217,6 +247,8 @@ class Identification:
     measurement : MeasuredReadings or None
         What the measurement itself says over the whole file (figures, SRF,
         low-frequency value, spot readouts), reported beside the model.
+    choice : ModelChoice or None
+        Which band and model were used, and why.
     """
 
     sweep: Sweep
@@ -235,6 +267,7 @@ class Identification:
     rdc: Estimate | None = None
     refinement: Refinement | None = None
     measurement: MeasuredReadings | None = None
+    choice: ModelChoice | None = None
 
     def __post_init__(self):
         if self.correlation is not None:
@@ -328,6 +361,7 @@ class Identification:
             "warnings": list(self.warnings),
             "notes": list(self.sweep.notes),
             "low_frequency": None if self.measurement is None else self.measurement.low_frequency_dict(),
+            "choice": None if self.choice is None else self.choice.to_dict(),
         }
 
     def _figures_dict(self) -> dict:
