@@ -4,6 +4,10 @@
 returns a frozen record (docs/identify.md gives the reasons and the
 references):
 
+0. measurement -- what the data say before any model, over the whole file:
+   smoothed figures, the SRF from the sign change of Im Z, the
+   low-frequency L or C, spot readouts (`_measured_report.measured_readings`
+   -> `MeasuredReadings`); then the sweep restricted to ``band`` if given;
 1. options -- the model, spot frequencies and DC resistance checked;
 2. rational -- a rational model of Z(s) by vector fitting, weighted by the
    sweep's sigma, with the pole count chosen automatically
@@ -12,7 +16,7 @@ references):
    squares in log-parameters, from the rational model's and the data's
    initial guesses (`_candidates.candidate_fits` -> `CandidateFits`);
 4. choice -- the family (inductor or capacitor) chosen by the Bayesian
-   information criterion, the optional element (R_p, R_leak) kept only if
+   information criterion (never against the measured sign of Im Z), the optional element (R_p, R_leak) kept only if
    it lowers the criterion by more than `BIC_MARGIN`
    (`_candidates.choice` -> `Choice`);
 5. valid band -- the band where the circuit's residual is within the noise;
@@ -20,8 +24,12 @@ references):
    its valid band, and the rational model stays the description of the full
    band (`_band.valid_band` -> `ValidBand`), then the rational model refitted
    with the noise at the circuit (`_rational.reweighted_rational`);
+   Then the adequacy: where the circuit holds within the noise and the
+   model-error factor of its uncertainties (`_adequacy.adequacy` -> `Adequacy`);
 6. merit -- SRF, Q, ESR, D and spot readouts with their uncertainties
-   (`_merit`, read through a `ModelEvaluator` -> `Readings`);
+   (`_merit`, read through a `ModelEvaluator` -> `Readings`), the SRF
+   replaced by the measured one where the model's is outside the band or
+   disagrees (`_measured_report.srf_with_measurement`);
 7. result -- the `Identification` with its parameter estimates
    (`_estimates`) and warnings (`_diagnostics`).
 """
