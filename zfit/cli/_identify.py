@@ -36,6 +36,7 @@ from ._common import (
 def identify_command(
     sweep: Path = typer.Argument(..., help="Touchstone (.s1p/.s2p) file or impedance-analyser table (.csv/.txt/.tsv)."),
     model: str = typer.Option("auto", "--model", "-m", help="auto | inductor | capacitor | rational."),
+    band: Optional[str] = typer.Option(None, "--band", help="Fit over FMIN:FMAX only, e.g. 1k:10M (the figures read from the measurement still cover the whole file)."),
     at: Optional[List[str]] = typer.Option(None, "--at", help="Spot frequency for R, X, L_eff, C_eff, Q, D readouts, e.g. 100k; repeatable."),
     rdc: Optional[str] = typer.Option(None, "--rdc", help="Measured DC resistance in ohm (four-wire ohmmeter), e.g. 25m: constrains R_s or ESR."),
     rdc_std: Optional[str] = typer.Option(None, "--rdc-std", help="Standard uncertainty of --rdc in ohm (default 1 % of it)."),
@@ -76,6 +77,7 @@ def identify_command(
     from .._atomic import check_writable
     from ._common import sweep_from_options
     from .._errors import MeasurementWarning, ZfitInputError
+    from ..data._sweep import FREQUENCY_RANGE_HZ
     from ..identification._pipeline import identify
     from ..outputs._outputs import check_output_suffix
     from ..outputs._views import identification_summary
@@ -93,7 +95,13 @@ def identify_command(
         raise ZfitInputError(f"--netlist-kind {netlist_kind!r}: use circuit, rational or auto")
     if netlist_kind != "auto" and netlist is None:
         raise ZfitInputError("--netlist-kind needs --netlist PATH")
-    freqs = quantities(at, "--at")
+    freqs = quantities(at, "--at", *FREQUENCY_RANGE_HZ, unit="Hz")
+    fit_band = None
+    if band is not None:
+        parts = band.split(":")
+        if len(parts) != 2:
+            raise ZfitInputError(f"--band {band!r}: give FMIN:FMAX, e.g. 1k:10M")
+        fit_band = (quantity(parts[0], "--band"), quantity(parts[1], "--band"))
     r_dc = quantity(rdc, "--rdc")
     r_dc_std = quantity(rdc_std, "--rdc-std")
     s = sweep_from_options(
@@ -102,7 +110,7 @@ def identify_command(
     )
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", MeasurementWarning)
-        result = identify(s, model, freqs, rdc=r_dc, rdc_std=r_dc_std)
+        result = identify(s, model, freqs, rdc=r_dc, rdc_std=r_dc_std, band=fit_band)
     # identify's own warnings are in result.warnings; others (from reading) are passed on.
     own = set(result.warnings)
     for w in caught:
@@ -117,15 +125,18 @@ def identify_command(
     for text in result.warnings:
         warn_line(text)
 
-    if json_path is not None:
+    files = any(x is not None for x in (plot, netlist, touchstone, report))
+    # The JSON belongs to the set of files written together (all or none), unless it goes to standard output.
+    json_in_set = files and json_path is not None and not to_stdout
+    if json_path is not None and not json_in_set:
         emit_json(result.to_dict(), json_path, force)
-    if any(x is not None for x in (plot, netlist, touchstone, report)):
+    if files:
         from ..outputs._outputs import write_outputs
 
         written = write_outputs(
             result, plot=plot, netlist=netlist, touchstone=touchstone, touchstone_grid=touchstone_grid,
             report=report, force=force, command=command_line(),
-            netlist_kind=netlist_kind,
+            netlist_kind=netlist_kind, json_path=json_path if json_in_set else None,
         )
         for path in written:
             typer.echo(f"wrote {path}", err=to_stdout)

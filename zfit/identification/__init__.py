@@ -16,6 +16,9 @@ _criteria     the BIC and the test of a valid band; log-frequency cells and span
 _few_points   sweeps of 2-9 points (LCR-meter tables): what they resolve, without vector fitting
 _estimates    parameter estimates with uncertainties, resolution floors, correlation
 _merit        SRF, Q, D, ESR, spot readouts, curves; `ModelEvaluator` (which model is read where)
+_measured     figures read from the measurement itself: smoothed R, X, L/C_eff, Q, D, SRF, low-frequency value
+_measured_report  those figures as the result reports them (JSON, spot, the SRF taken from the data)
+_adequacy     where the circuit holds within the noise (log-frequency span) and its model-error factor
 _traces       the figures of merit at every sweep point (what a plot draws)
 _diagnostics  adequacy, resolution, DC-resistance and shunt-thru ground-loop warnings
 _result       `Identification`, `FitQuality`, `Candidate`, `ParameterMap` and ``to_dict``

@@ -222,7 +222,8 @@ def candidate_fits(model: str, likely: str, obs: Observation, rational: Rational
     return CandidateFits(likely, fitted, optional, tuple(notes))
 
 
-def choice(fits: CandidateFits, rows: int, margin: float, rdc: float | None, rdc_std: float | None) -> Choice:
+def choice(fits: CandidateFits, rows: int, margin: float, rdc: float | None, rdc_std: float | None,
+           required: str | None = None) -> Choice:
     """Return the family and circuit chosen by the BIC.
 
     The family the data look like (sign of the low-frequency reactance)
@@ -241,16 +242,21 @@ def choice(fits: CandidateFits, rows: int, margin: float, rdc: float | None, rdc
         BIC difference an optional element (or the other family) must win by.
     rdc, rdc_std : float or None
         A measured DC resistance and its uncertainty.
+    required : {'inductor', 'capacitor'} or None
+        The family the measurement resolves (sign of Im Z at low frequency):
+        the other is then ranked but never chosen, since a series R-L fitted
+        as a capacitor has a C that runs to infinity.
     """
     fitted, optional, likely = fits.base, fits.optional, fits.likely
+    allowed = [fam for fam in fitted if required is None or fam == required] or list(fitted)
 
     def family_bic(fam):
         b = circuit_bic(fitted[fam], rows)
         rf = optional[fam]
         return b if rf is None else min(b, circuit_bic(rf, rows) + margin)
 
-    family = min(fitted, key=family_bic)
-    if likely in fitted and family != likely and family_bic(family) > family_bic(likely) - margin:
+    family = min(allowed, key=family_bic)
+    if likely in allowed and family != likely and family_bic(family) > family_bic(likely) - margin:
         family = likely
     rb, rf = fitted[family], optional[family]
     ranked = []

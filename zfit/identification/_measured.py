@@ -266,11 +266,23 @@ class MeasuredFigures:
         return np.abs(self.q) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2)
 
     def resistance(self, i: int) -> MeasuredValue:
-        """R (= ESR of a capacitor) at point `i`, or its bound when below resolution."""
+        """R (= ESR of a capacitor) at point `i`, or its bound when below resolution.
+
+        Parameters
+        ----------
+        i : int
+            Index of the sweep point.
+        """
         return _loss_value("R", "ohm", self.r_ohm[i], self.std_ohm[i])
 
     def dissipation(self, i: int) -> MeasuredValue:
-        """D = R/|X| at point `i`, or its bound when below resolution."""
+        """D = R/|X| at point `i`, or its bound when below resolution.
+
+        Parameters
+        ----------
+        i : int
+            Index of the sweep point.
+        """
         return _loss_value("D", "", self.d[i], self.d_std[i])
 
 
@@ -309,6 +321,19 @@ def measured_figures(f_hz, z_ohm, sigma_ohm, half_span_decades: float = 0.04) ->
 
 def spot_figures(f_hz, z_ohm, sigma_ohm, at_hz: float, half_span_decades: float = 0.04) -> dict:
     """Return R, X, L_eff or C_eff, Q, D at one frequency in band by local interpolation.
+
+    Parameters
+    ----------
+    f_hz : array_like
+        Measured frequencies in Hz, increasing.
+    z_ohm : array_like
+        Measured complex impedance in ohm.
+    sigma_ohm : array_like
+        Its complex-circular standard uncertainty in ohm (`Sweep.sigma_ohm`).
+    at_hz : float
+        The frequency (Hz), inside the measured band.
+    half_span_decades : float
+        Half-width of the smoothing window in decades (at least 5 points).
 
     Returns
     -------
@@ -370,6 +395,17 @@ def low_frequency_value(f_hz, z_ohm, sigma_ohm, figures: MeasuredFigures | None 
     is beyond 3 standard uncertainties, looked for in the lowest tenth of the
     band in log-frequency; an inductive sweep is an inductor, a capacitive
     one a capacitor.
+
+    Parameters
+    ----------
+    f_hz : array_like
+        Measured frequencies in Hz, increasing.
+    z_ohm : array_like
+        Measured complex impedance in ohm.
+    sigma_ohm : array_like
+        Its complex-circular standard uncertainty in ohm (`Sweep.sigma_ohm`).
+    figures : MeasuredFigures, optional
+        The sweep's smoothed figures when already computed (`measured_figures`).
     """
     fig = figures if figures is not None else measured_figures(f_hz, z_ohm, sigma_ohm)
     f, x, sd = fig.f_hz, fig.x_ohm, fig.std_ohm

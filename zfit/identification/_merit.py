@@ -69,11 +69,14 @@ __all__ = [
 _TWO_PI = 2.0 * math.pi
 
 #: Definitions printed next to each figure.
-Q_MEASURED = "|X|/R of the measured impedance"
+# The figures of this module are read from a model (the circuit in its valid
+# band, the rational model elsewhere); the measurement's own are in
+# `_measured_report` and say so.
+Q_MEASURED = "|X|/R of the model of the measured impedance"
 Q_MODEL = "omega L / R_s of the equivalent circuit"
-D_MEASURED = "R/|X| of the measured impedance"
+D_MEASURED = "R/|X| of the model of the measured impedance"
 D_MODEL = "omega C ESR (+ 1/(omega C R_leak)) of the equivalent circuit"
-ESR_MEASURED = "Re Z of the measured impedance"
+ESR_MEASURED = "Re Z of the model of the measured impedance"
 
 
 def _num(x):
@@ -112,7 +115,7 @@ class ParameterEstimate(Estimate):
 
     Attributes
     ----------
-    value, std, unit
+    value, std, unit : float, float or None, str
         As for `Estimate`.
     resolved : bool
         Whether the value lies on the resolved side of `resolution_limit`.
@@ -200,8 +203,16 @@ class SRF:
         Outside the band, the bound the data themselves set: a lower bound
         (the top of the band) for ``above-band``, an upper bound (the bottom
         of the band) for ``below-band``; None in band or without an SRF.
-    source : {'circuit', 'rational'}
-        Which model `value_hz` comes from.
+    source : {'circuit', 'rational', 'measurement'}
+        Where `value_hz` comes from: ``measurement`` when the model's
+        resonance lies outside the band or disagrees with the sign change of
+        Im Z in the data (`_measured_report.srf_with_measurement`).
+    measured : MeasuredSRF or None
+        The resonance read from the data (`_measured.measured_srf`).
+    model_value_hz, model_std_hz : float or None
+        The model's resonance, kept beside the measured one.
+    model_source : str or None
+        Which model that is.
     """
 
     value_hz: float | None
@@ -209,13 +220,28 @@ class SRF:
     where: str
     bound_hz: float | None
     source: str = "circuit"
+    measured: object | None = None
+    model_value_hz: float | None = None
+    model_std_hz: float | None = None
+    model_source: str | None = None
 
     def to_dict(self) -> dict:
         """Return the ``srf`` object of the JSON contract."""
-        return {
+        out = {
             "value_hz": _num(self.value_hz), "std_hz": _num(self.std_hz), "where": self.where,
             "bound_hz": _num(self.bound_hz), "source": self.source,
         }
+        m = self.measured
+        if m is not None:
+            out["model_value_hz"] = _num(self.model_value_hz)
+            out["model_std_hz"] = _num(self.model_std_hz)
+            out["model_source"] = self.model_source
+            out["measured"] = {
+                "value_hz": _num(m.value_hz), "std_hz": _num(m.std_hz), "kind": m.kind, "in_band": bool(m.in_band),
+                "lower_bound_hz": _num(m.lower_bound_hz), "rejected_hz": [float(x) for x in m.rejected_hz],
+                "source": "measurement",
+            }
+        return out
 
 
 @dataclass(frozen=True)

@@ -4,6 +4,10 @@
 returns a frozen record (docs/identify.md gives the reasons and the
 references):
 
+0. measurement -- what the data say before any model, over the whole file:
+   smoothed figures, the SRF from the sign change of Im Z, the
+   low-frequency L or C, spot readouts (`_measured_report.measured_readings`
+   -> `MeasuredReadings`); then the sweep restricted to ``band`` if given;
 1. options -- the model, spot frequencies and DC resistance checked;
 2. rational -- a rational model of Z(s) by vector fitting, weighted by the
    sweep's sigma, with the pole count chosen automatically
@@ -12,7 +16,7 @@ references):
    squares in log-parameters, from the rational model's and the data's
    initial guesses (`_candidates.candidate_fits` -> `CandidateFits`);
 4. choice -- the family (inductor or capacitor) chosen by the Bayesian
-   information criterion, the optional element (R_p, R_leak) kept only if
+   information criterion (never against the measured sign of Im Z), the optional element (R_p, R_leak) kept only if
    it lowers the criterion by more than `BIC_MARGIN`
    (`_candidates.choice` -> `Choice`);
 5. valid band -- the band where the circuit's residual is within the noise;
@@ -20,8 +24,12 @@ references):
    its valid band, and the rational model stays the description of the full
    band (`_band.valid_band` -> `ValidBand`), then the rational model refitted
    with the noise at the circuit (`_rational.reweighted_rational`);
+   Then the adequacy: where the circuit holds within the noise and the
+   model-error factor of its uncertainties (`_adequacy.adequacy` -> `Adequacy`);
 6. merit -- SRF, Q, ESR, D and spot readouts with their uncertainties
-   (`_merit`, read through a `ModelEvaluator` -> `Readings`);
+   (`_merit`, read through a `ModelEvaluator` -> `Readings`), the SRF
+   replaced by the measured one where the model's is outside the band or
+   disagrees (`_measured_report.srf_with_measurement`);
 7. result -- the `Identification` with its parameter estimates
    (`_estimates`) and warnings (`_diagnostics`).
 """
@@ -39,11 +47,12 @@ import numpy as np
 from .._errors import FitError, MeasurementWarning, ZfitInputError
 from .._units import format_eng
 from ._merit import SRF, Curves, Estimate, Merits, ModelEvaluator, SpotReadout
-from ._result import SCHEMA, Candidate, FitQuality, Identification, ParameterMap
+from ._result import SCHEMA, Candidate, FitQuality, Identification, ModelChoice, ParameterMap
 
 if TYPE_CHECKING:
     from ..data._sweep import Sweep
     from ..fit._lsq import Observation
+    from ._measured_report import MeasuredReadings
     from ._rational import RationalStage
 
 __all__ = [
@@ -140,8 +149,10 @@ def readings(family: str, srf: SRF, evaluator: ModelEvaluator, at, extrapolated:
     return Readings(srf, spots, merits_of(family, srf, evaluator), curves_of(evaluator)), notes
 
 
-def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, rdc, notes) -> Identification:
+def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, rdc, notes,
+                     measured: MeasuredReadings) -> Identification:
     """The result when the rational model alone is reported (its notes appended to `notes`)."""
+    from ._measured_report import srf_with_measurement
     from ._merit import srf_of_rational
     from ._rational import n_poles_of, rational_k
 
@@ -149,7 +160,7 @@ def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, r
     band = sweep.band_hz
     if rdc is not None:
         notes.append("--rdc does not apply to the rational model; ignored")
-    srf = srf_of_rational(rational, band)
+    srf = srf_with_measurement(srf_of_rational(rational, band), measured.srf)
     read, spot_notes = readings("rational", srf, ModelEvaluator(band, rational=rational), at,
                                 "the rational model is extrapolated")
     notes.extend(spot_notes)
@@ -164,7 +175,7 @@ def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, r
     return Identification(
         sweep=sweep, model="rational", topology=f"rational model with {n_poles_of(rational)} poles",
         parameters=ParameterMap(), rational=rational, srf=srf, fit=fit, spot=read.spot,
-        figures=read.merit, curves=read.curves, rdc=None,
+        figures=read.merit, curves=read.curves, rdc=None, measurement=measured,
     )
 
 
@@ -177,6 +188,7 @@ def identify(
     rdc_std: float | None = None,
     n_poles: int | None = None,
     margin: float = BIC_MARGIN,
+    band: tuple[float, float] | None = None,
 ) -> Identification:
     """Return the equivalent circuit of a part with uncertainties, SRF, Q and D.
 
@@ -200,6 +212,9 @@ def identify(
         Pole count of the rational model (automatic by default).
     margin : float
         BIC difference an optional element must win by.
+    band : (float, float), optional
+        Restrict the fit to ``fmin <= f <= fmax`` (Hz); the figures read
+        from the measurement still cover the whole sweep.
 
     Returns
     -------
@@ -231,13 +246,55 @@ def identify(
     .. [3] R. E. Kass and A. E. Raftery, "Bayes factors", J. Amer. Statist.
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
+    from ._measured_report import measured_readings
+
+    at, _, _ = _checked_options(sweep, model, at, rdc, rdc_std)
+    # What the measurement says is read first, over the whole file, whatever model and band follow.
+    measured = measured_readings(sweep, at)
+    fitted = sweep if band is None else sweep_in_band(sweep, band)
+    result = _identify(fitted, model, at, rdc, rdc_std, n_poles, margin, measured)
+    return dataclasses.replace(result, choice=model_choice(model, band, result, margin))
+
+
+def sweep_in_band(sweep: Sweep, band) -> Sweep:
+    """Return the sweep restricted to ``band[0] <= f <= band[1]``; ZfitInputError if too few points remain."""
+    lo, hi = (float(x) for x in band)
+    if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
+        raise ZfitInputError(f"--band {format_eng(lo, 'Hz')}:{format_eng(hi, 'Hz')} is not an increasing pair of "
+                             "positive frequencies", sweep.source)
+    m = (sweep.f_hz >= lo) & (sweep.f_hz <= hi)
+    if int(m.sum()) < 10:
+        raise ZfitInputError(f"--band {format_eng(lo, 'Hz')}:{format_eng(hi, 'Hz')} holds {int(m.sum())} points of "
+                             f"the sweep; at least 10 are needed for a fit", sweep.source)
+    arrays = {k: getattr(sweep, k)[m] for k in ("f_hz", "z_ohm", "sigma_ohm", "s_param", "active")
+              if getattr(sweep, k) is not None}
+    return dataclasses.replace(sweep, **arrays)
+
+
+def model_choice(model: str, band, result: Identification, margin: float) -> ModelChoice:
+    """Return which band and model were used, and why."""
+    lo, hi = result.sweep.band_hz
+    if model == "auto" and result.model == "rational":
+        why = "no equivalent circuit describes the part within the noise over enough of the band (see warnings)"
+    elif model == "auto":
+        why = (f"the lowest BIC of {len(result.candidates)} candidate circuits, an extra element kept only when it "
+               f"lowers the BIC by more than {margin:g}; the family from the sign of Im Z at low frequency")
+    else:
+        why = f"asked for (model {model!r})"
+    return ModelChoice(model, result.topology, why, (lo, hi), "asked for (band)" if band is not None else "the whole sweep")
+
+
+def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Identification:
+    """`identify` over the (restricted) sweep, with the measurement already read."""
     from ..fit._lsq import Observation
+    from ._adequacy import adequacy, adequacy_notes
     from ._band import band_decades, valid_band, widest_family_band
     from ._candidates import candidate_fits, choice
     from ._criteria import bic
     from ._diagnostics import adequacy_note, ground_loop_warning, parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates
     from ._few_points import FEW_POINTS, few_point_identification
+    from ._measured_report import srf_with_measurement
     from ._merit import srf_of_circuit
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
@@ -252,16 +309,17 @@ def identify(
     stage = rational_stage(sweep, model, obs, n_poles)
     notes = list(stage.notes)
     if model == "rational":
-        return _finish(_rational_result(sweep, obs, stage, at, rdc, notes), notes)
+        return _finish(_rational_result(sweep, obs, stage, at, rdc, notes, measured), notes)
 
-    likely = "capacitor" if looks_capacitive(sweep) else "inductor"
+    # An inductive sweep (Im Z > 0 at low frequency, resolved) is an inductor, a capacitive one a capacitor.
+    likely = measured.family or ("capacitor" if looks_capacitive(sweep) else "inductor")
     fits = candidate_fits(model, likely, obs, stage.rational, rdc, rdc_std, margin)
     notes.extend(fits.notes)
     if not fits.base:
         if stage.rational is None:
             raise FitError(f"{sweep.source}: neither a rational model nor an equivalent circuit could be fitted")
-        return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
-    picked = choice(fits, rows_full, margin, rdc, rdc_std)
+        return _finish(_identify(sweep, "rational", at, None, None, n_poles, margin, measured), notes)
+    picked = choice(fits, rows_full, margin, rdc, rdc_std, required=measured.family if model == "auto" else None)
 
     e_rat = None if stage.score is None else stage.score.energy
     vb = valid_band(sweep, obs, picked, e_rat, stage.rational, margin)
@@ -283,17 +341,23 @@ def identify(
             f"over {decades[0]:.2g} of {decades[1]:.2g} decades ({i1 - i0} of {sweep.n_points} points) only; "
             "the rational model is reported"
         )
-        return _finish(identify(sweep, "rational", at, n_poles=n_poles), notes)
+        return _finish(_identify(sweep, "rational", at, None, None, n_poles, margin, measured), notes)
     if worse:
         notes.append(adequacy_note(chosen.circuit.topology, vb.energy, rat_rms, valid, i1 - i0, sweep.n_points,
                                    fitted_mask is not None))
 
+    # Where the circuit holds within the noise, and the model error its uncertainties then carry.
+    adq = adequacy(sweep.f_hz, vb.energy, chosen.reduced_chi2, chosen.rows - chosen.circuit.n_params)
+    if (i0, i1) == (0, sweep.n_points):  # a narrower valid band has its own note (_band)
+        notes.extend(adequacy_notes(adq, chosen.circuit.topology))
+    # The model-error term is already in the estimates: the least squares scales its covariance by the
+    # reduced chi-square (fit/_lsq.refine), so a structured residual widens every uncertainty once.
     est = parameter_estimates(chosen, sweep, fitted_mask)
     notes.extend(parameter_notes(est, rdc))
     pull = rdc_note(chosen, picked.prior, rdc)
     if pull is not None:
         notes.append(pull)
-    srf = srf_of_circuit(chosen, band)
+    srf = srf_with_measurement(srf_of_circuit(chosen, band), measured.srf)
     evaluator = ModelEvaluator(
         band, rational=rational, refinement=chosen,
         circuit_band=valid if (obs.on_s and i1 > i0) else None,
@@ -307,7 +371,7 @@ def identify(
         valid_band_hz=valid, fitted_band_hz=fitted_band, reduced_chi_square=chosen.reduced_chi2,
         domain="S" if obs.on_s else "Z", rational_rms_normalized_residual=rat_rms,
         rational_poles=None if rational is None else n_poles_of(rational), worse_than_rational=bool(worse),
-        starts=chosen.starts,
+        starts=chosen.starts, adequacy=adq,
     )
     candidates = tuple(
         Candidate(ref.circuit.topology, ref.circuit.n_params, b, ref.rms_normalized_residual,
@@ -318,7 +382,7 @@ def identify(
         sweep=sweep, model=picked.family, topology=chosen.circuit.topology, parameters=est, rational=rational,
         srf=srf, fit=fit, spot=read.spot, figures=read.merit, curves=read.curves, candidates=candidates,
         correlation=correlation_of(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
-        refinement=chosen,
+        refinement=chosen, measurement=measured,
     )
     # A flat resistive floor of a shunt-thru capacitor is the cable-shield ground loop, not ESR.
     loop = ground_loop_warning(sweep, result)

@@ -24,8 +24,10 @@ if TYPE_CHECKING:
     from ..fit._lsq import Refinement
     from ..fit._realisation import Realisation
     from ..fit._vectfit import RationalModel
+    from ._adequacy import Adequacy
+    from ._measured_report import MeasuredReadings
 
-__all__ = ["Identification", "FitQuality", "Candidate", "ParameterMap", "SCHEMA"]
+__all__ = ["Identification", "FitQuality", "Candidate", "ModelChoice", "ParameterMap", "SCHEMA"]
 
 #: Identifier of the JSON contract.
 SCHEMA = "zfit.identify/1"
@@ -134,6 +136,9 @@ class FitQuality:
         model by the criterion.
     starts : int
         Starting points ranked for the refinement of the reported circuit.
+    adequacy : Adequacy or None
+        Where the circuit holds within the noise (log-frequency span) and the
+        model-error factor of its uncertainties (`_adequacy`).
     """
 
     rms_normalized_residual: float
@@ -149,10 +154,11 @@ class FitQuality:
     rational_poles: int | None = None
     worse_than_rational: bool = False
     starts: int = 0
+    adequacy: Adequacy | None = None
 
     def to_dict(self) -> dict:
         """Return the ``fit`` object of the JSON contract."""
-        return {
+        out = {
             "rms_normalized_residual": _num(self.rms_normalized_residual),
             "points": int(self.points),
             "f_min_hz": float(self.f_min_hz),
@@ -167,6 +173,39 @@ class FitQuality:
             "worse_than_rational": bool(self.worse_than_rational),
             "starts": int(self.starts),
         }
+        if self.adequacy is not None:
+            out.update(self.adequacy.to_dict())
+        return out
+
+
+@dataclass(frozen=True)
+class ModelChoice:
+    """Which band and model were used, and why.
+
+    Attributes
+    ----------
+    asked : str
+        The ``model`` argument.
+    used : str
+        The model reported (its descriptive name).
+    why : str
+        Why it was chosen.
+    band_hz : tuple of float
+        The band it was fitted over.
+    band_why : str
+        ``"asked for (band)"`` or ``"the whole sweep"``.
+    """
+
+    asked: str
+    used: str
+    why: str
+    band_hz: tuple[float, float]
+    band_why: str
+
+    def to_dict(self) -> dict:
+        """Return the ``choice`` object of the JSON contract."""
+        return {"model_asked": self.asked, "model_used": self.used, "why": self.why,
+                "band_hz": [float(self.band_hz[0]), float(self.band_hz[1])], "band_why": self.band_why}
 
 
 @dataclass(frozen=True)
@@ -205,6 +244,11 @@ class Identification:
         The measured DC resistance that constrained R_s or ESR.
     refinement : Refinement or None
         The circuit fit itself (values, log-covariance), for further use.
+    measurement : MeasuredReadings or None
+        What the measurement itself says over the whole file (figures, SRF,
+        low-frequency value, spot readouts), reported beside the model.
+    choice : ModelChoice or None
+        Which band and model were used, and why.
     """
 
     sweep: Sweep
@@ -222,6 +266,8 @@ class Identification:
     correlation: np.ndarray | None = None
     rdc: Estimate | None = None
     refinement: Refinement | None = None
+    measurement: MeasuredReadings | None = None
+    choice: ModelChoice | None = None
 
     def __post_init__(self):
         if self.correlation is not None:
@@ -306,17 +352,34 @@ class Identification:
             "parameters": {k: v.to_dict() for k, v in self.parameters.items()},
             "correlation": corr,
             "srf": self.srf.to_dict(),
-            "figures": self.figures.to_dict(),
+            "figures": self._figures_dict(),
             "curves": None if self.curves is None else self.curves.to_dict(),
             "fit": self.fit.to_dict(),
             "candidates": [c.to_dict() for c in self.candidates],
             "rational": _rational_dict(self.rational),
             "rdc": None if self.rdc is None else self.rdc.to_dict(),
-            "spot": [s.to_dict() for s in self.spot],
+            "spot": self._spot_dicts(),
             "warnings": list(self.warnings),
             "notes": list(self.sweep.notes),
             "noise": noise_block(self.sweep),
+            "low_frequency": None if self.measurement is None else self.measurement.low_frequency_dict(),
+            "choice": None if self.choice is None else self.choice.to_dict(),
         }
+
+    def _figures_dict(self) -> dict:
+        out = self.figures.to_dict()
+        m = self.measurement
+        if m is not None:
+            family = m.family or (self.model if self.model in ("inductor", "capacitor") else None)
+            out["measurement"] = m.figure_dicts(family)
+        return out
+
+    def _spot_dicts(self) -> list:
+        out = [s.to_dict() for s in self.spot]
+        if self.measurement is not None:
+            for entry, meas in zip(out, self.measurement.spot_dicts()):
+                entry["measurement"] = meas
+        return out
 
 
 def _rational_dict(rm):

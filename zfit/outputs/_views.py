@@ -151,11 +151,13 @@ def identification_summary(result) -> list[str]:
         What `zfit.identify` returned.
     """
     fit = result.fit
+    doc = result.to_dict()
     out = [
         f"part:       {result.sweep.source}  ({result.sweep.connection}, {result.sweep.n_points} points, "
         f"{format_eng(fit.f_min_hz, 'Hz')} to {format_eng(fit.f_max_hz, 'Hz')})",
-        f"model:      {result.model}: {result.topology}",
     ]
+    out.extend(_measurement_lines(doc))
+    out.append(f"model:      {result.model}: {result.topology}")
     if len(result.parameters):
         out.append("parameters (value ± standard uncertainty):")
         for key, est in result.parameters.items():
@@ -208,22 +210,81 @@ def identification_summary(result) -> list[str]:
     )
     if fit.rational_rms_normalized_residual is not None:
         out.append(f"            rational model: {fit.rational_poles} poles, residual {fit.rational_rms_normalized_residual:.3g}")
+    adq = fit.adequacy
     if result.model != "rational":
-        if whole:
+        if whole and (adq is None or adq.whole_band):
             out.append("            the circuit holds over the whole band")
-        else:
+        elif not whole:
             out.append(f"            valid band {format_eng(band[0], 'Hz')} to {format_eng(band[1], 'Hz')}")
+        if adq is not None and not adq.whole_band:
+            where = ("nowhere" if not math.isfinite(adq.holds_band_hz[0]) else
+                     f"{format_eng(adq.holds_band_hz[0], 'Hz')} to {format_eng(adq.holds_band_hz[1], 'Hz')}"
+                     f" ({adq.holds_decades:.2g} of {adq.band_decades:.2g} decades)")
+            out.append(f"            within the noise (local residual <= 1.5) {where}")
+        if adq is not None and adq.model_error_scale > 1.0:
+            out.append(f"            uncertainties include the model error (x {adq.model_error_scale:.3g})")
     if result.spot:
-        out.append("spot readouts (from the " + ", ".join(sorted({s.source for s in result.spot})) + " model):")
-        out.append(f"  {'f':>10}  {'R':>22}  {'X':>22}  {'L_eff / C_eff':>24}  {'Q':>16}  {'D':>16}")
-        for sp in result.spot:
+        out.append("spot readouts (measurement first, then the " + ", ".join(sorted({s.source for s in result.spot}))
+                   + " model):")
+        out.append(f"  {'f':>10}  {'from':<11}  {'R':>22}  {'X':>22}  {'L_eff / C_eff':>24}  {'Q':>16}  {'D':>16}")
+        for sp, entry in zip(result.spot, doc["spot"]):
+            m = entry.get("measurement")
+            if m is not None:
+                eff = m.get("L_eff") or m.get("C_eff")
+                out.append(
+                    f"  {format_eng(sp.f_hz, 'Hz'):>10}  {'measurement':<11}  {_measured_text(m['R']):>22}  "
+                    f"{_measured_text(m['X']):>22}  {_measured_text(eff):>24}  {_measured_text(m['Q']):>16}  "
+                    f"{_measured_text(m['D']):>16}"
+                )
             eff = sp.L_eff if sp.X.value >= 0 else sp.C_eff
             out.append(
-                f"  {format_eng(sp.f_hz, 'Hz'):>10}  {format_value_std(sp.R.value, sp.R.std, 'ohm'):>22}  "
+                f"  {format_eng(sp.f_hz, 'Hz'):>10}  {sp.source:<11}  {format_value_std(sp.R.value, sp.R.std, 'ohm'):>22}  "
                 f"{format_value_std(sp.X.value, sp.X.std, 'ohm'):>22}  {format_value_std(eff.value, eff.std, eff.unit):>24}  "
                 f"{format_value_std(sp.Q.value, sp.Q.std):>16}  {format_value_std(sp.D.value, sp.D.std):>16}"
                 + ("" if sp.in_band else "  (outside the band)")
             )
+    return out
+
+
+def _measured_text(v) -> str:
+    """A measured value of the JSON as ``value ± std unit``, or its 'below resolution, < X' text."""
+    if v is None:
+        return "n/a"
+    if v["text"] is not None:
+        return v["text"]
+    return format_value_std(v["value"], v["std"], v["unit"])
+
+
+#: Labels of the measurement figures, in the order printed.
+_MEASURED_LABELS = (
+    ("z_at_srf", "|Z| at SRF"), ("r_at_f_min", "R"), ("q_peak", "Q peak"),
+    ("esr_at_f_min", "ESR"), ("d_at_f_min", "D"), ("esr_min", "ESR min"),
+)
+
+
+def _measurement_lines(d: dict) -> list[str]:
+    """The lines of what the measurement itself says (the JSON's ``low_frequency``, ``srf.measured``, ``figures.measurement``)."""
+    low = d.get("low_frequency")
+    if low is None:
+        return []
+    out = ["measurement (smoothed data over the whole file, before any model):"]
+    if low["resolved"]:
+        out.append(f"  {format_eng(low['f_hz'], 'Hz'):>10}  {low['name']}:".ljust(26)
+                   + f"{format_value_std(low['value'], low['std'], low['unit'])}  ({low['family']}: sign of Im Z)")
+    else:
+        out.append("  low-frequency L or C:".ljust(26) + "not resolved (Im Z within its noise at the low end)")
+    m = d["srf"].get("measured")
+    if m is not None:
+        if m["in_band"]:
+            out.append("  SRF:".ljust(26) + f"{format_value_std(m['value_hz'], m['std_hz'], 'Hz')}  "
+                       f"({m['kind']}, where Im Z changes sign)")
+        else:
+            out.append("  SRF:".ljust(26) + f"above {format_eng(m['lower_bound_hz'], 'Hz')} (no sign change of Im Z in band)")
+    figs = d["figures"].get("measurement") or {}
+    for key, label in _MEASURED_LABELS:
+        e = figs.get(key)
+        if e is not None:
+            out.append(f"  {format_eng(e['f_hz'], 'Hz'):>10}  {label}:".ljust(26) + _measured_text(e))
     return out
 
 
