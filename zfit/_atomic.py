@@ -81,38 +81,7 @@ def write_atomic(path, data, force: bool = False) -> Path:
         When the file cannot be written (no space left, no permission),
         naming the file and not the temporary.
     """
-    given = check_writable(path, force)
-    raw = data.encode("utf-8") if isinstance(data, str) else bytes(data)
-    target = Path(os.path.realpath(given)) if given.is_symlink() else given
-    try:
-        if _special(target):
-            with open(target, "wb") as fh:
-                fh.write(raw)
-            return given
-        target.parent.mkdir(parents=True, exist_ok=True)
-        _replace_with(target, raw)
-    except OSError as exc:
-        raise ZfitInputError(f"cannot write: {exc.strerror or exc}", given) from None
-    return given
-
-
-def _replace_with(path: Path, raw: bytes) -> None:
-    fd, tmp = tempfile.mkstemp(prefix="." + path.name + ".", suffix=".part", dir=path.parent)
-    try:
-        # mkstemp makes the file private (0600); a result file should be as
-        # readable as any other file the user writes, so follow the umask.
-        os.chmod(tmp, 0o666 & ~_umask())
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(raw)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except FileNotFoundError:
-            pass
-        raise
+    return write_all_atomic([(path, data)], force)[0]
 
 
 def write_all_atomic(items, force: bool = False) -> list[Path]:
