@@ -26,6 +26,7 @@ __all__ = [
     "UNITS",
     "RESOLUTION_KIND",
     "FAMILY_OF",
+    "LOSS_MODEL_UNITS",
 ]
 
 
@@ -100,3 +101,13 @@ RESOLUTION_KIND = MappingProxyType({p.key: p.resolution_kind for p in _ALL})
 
 #: Family of every parameter key.
 FAMILY_OF = MappingProxyType({p.key: p.family for p in _ALL})
+
+#: Unit of every element of the frequency-dependent loss models
+#: (`zfit.fit._loss_circuits`: skin-effect winding, relaxing core, constant
+#: loss tangent, resonant sections).  They are kept apart from `PARAMETERS`,
+#: whose order is the column order of a lot's summary.
+LOSS_MODEL_UNITS = MappingProxyType({
+    "L": "H", "R_dc": "ohm", "f_c": "Hz", "C_p": "F", "L_i": "H", "L_inf": "H", "f_r": "Hz",
+    "C": "F", "D": "", "ESR_0": "ohm", "ESL": "H",
+    **{f"{k}_{i}": u for i in (1, 2, 3) for k, u in (("R", "ohm"), ("L", "H"), ("C", "F"))},
+})

@@ -47,6 +47,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .._parameters import LOSS_MODEL_UNITS
 from ._circuits import Circuit
 
 __all__ = [
@@ -54,20 +55,11 @@ __all__ = [
     "RelaxingCoreInductor",
     "ConstantLossCapacitor",
     "ResonantSections",
-    "LOSS_UNITS",
     "skin_depth_m",
 ]
 
 _TWO_PI = 2.0 * math.pi
 _MU0 = 4e-7 * math.pi
-
-#: Unit of every loss-model parameter key.
-LOSS_UNITS = {
-    "L": "H", "R_dc": "ohm", "f_c": "Hz", "C_p": "F", "L_i": "H", "L_inf": "H", "f_r": "Hz",
-    "C": "F", "D": "", "ESR_0": "ohm", "ESL": "H",
-    **{f"{k}_{i}": u for i in (1, 2, 3) for k, u in (("R", "ohm"), ("L", "H"), ("C", "F"))},
-}
-
 
 def skin_depth_m(f_hz, resistivity_ohm_m: float, mu_r: float = 1.0):
     """Return the skin depth ``sqrt(rho/(pi f mu))`` in metres [2]_.
@@ -125,7 +117,7 @@ class _LossCircuit(Circuit):
     @property
     def units(self) -> dict:
         """Unit of each parameter, by key."""
-        return {k: LOSS_UNITS[k] for k in self.keys}
+        return {k: LOSS_MODEL_UNITS[k] for k in self.keys}
 
     def starts(self, f_hz, z_ohm, sigma_ohm, rational=None, spread: bool = True) -> list:
         """Return starting points: the data guess and, if `spread`, a few scaled copies."""
