@@ -24,6 +24,11 @@ _sweep_file
     from clear two-port data), the noise model, cleaning, the `Sweep`.
 _prepared
     The sweep as identification sees it: read, port-extended, compensated.
+_standards
+    Fixture compensation from the open/short/load standards' files (read
+    like any sweep, cached for a lot, applied by `zfit.data._fixture`).
+_limits_file
+    The limits TOML of a lot (units checked against each quantity's).
 _capture
     `read_capture`: oscilloscope exports by kind (text, ``.npy``, ``.npz``).
 _capture_record

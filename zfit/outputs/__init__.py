@@ -11,7 +11,12 @@ Modules
 -------
 _views         result -> text and tables: terminal summaries, the ``zfit.info/1`` dict, the response CSV, page notation
 _result_plots  which plots a result gets, from its traces
-_plots         the matplotlib drawing
+_plots         the sweep, Q and ESR/D plots
+_plot_capture  the Bode plot and the time record of a capture
+_plot_schematic the equivalent circuit drawn
+_plot_style    the house style and axis helpers shared by the plots
+_plot_files    a plot as PNG/SVG bytes, saved atomically
+_demo_index    the demo folder's index page
 _netlist       SPICE subcircuit text of a circuit or a realised rational model
 _pages         the report's content (sections, tables, plots)
 _report        rendering a report as self-contained HTML
