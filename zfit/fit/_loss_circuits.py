@@ -142,6 +142,35 @@ class _LossCircuit(Circuit):
         return _srf_by_scan(self, p)
 
 
+
+class _ColumnsCircuit(_LossCircuit):
+    """A loss circuit that computes Z and its log-derivative columns together (`_z_and_cols`)."""
+
+    def impedance(self, p, f_hz) -> np.ndarray:
+        """Return Z in ohm (see the module docstring).
+
+        Parameters
+        ----------
+        p : array_like
+            Parameters in `keys` order (SI units).
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        return self._z_and_cols(p, f_hz)[0]
+
+    def log_jacobian(self, p, f_hz) -> np.ndarray:
+        """Return ``dZ/d(ln p_k)``, shape (len(f), n_params).
+
+        Parameters
+        ----------
+        p : array_like
+            Parameters in `keys` order (SI units).
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        return np.stack(self._z_and_cols(p, f_hz)[1], axis=-1)
+
+
 def _parallel_cp(zs, dzs, s, c_p):
     """Z = zs || 1/(s C_p) and its log-derivatives from those of zs."""
     y = 1.0 / zs + s * c_p
@@ -162,7 +191,7 @@ def _inductor_guess(f, z):
 
 
 @dataclass(frozen=True, init=False)
-class SkinEffectInductor(_LossCircuit):
+class SkinEffectInductor(_ColumnsCircuit):
     """Series L with skin-effect winding R_dc sqrt(1 + j f/f_c) and parallel C_p.
 
     Keys ``(L, R_dc, f_c, C_p)``.
@@ -170,30 +199,6 @@ class SkinEffectInductor(_LossCircuit):
 
     def __init__(self):
         _init(self, "inductor", "series L with skin-effect winding and parallel C_p", ("L", "R_dc", "f_c", "C_p"))
-
-    def impedance(self, p, f_hz) -> np.ndarray:
-        """Return Z in ohm (see the module docstring).
-
-        Parameters
-        ----------
-        p : array_like
-            ``(L, R_dc, f_c, C_p)``.
-        f_hz : array_like
-            Frequencies in Hz.
-        """
-        return self._z_and_cols(p, f_hz)[0]
-
-    def log_jacobian(self, p, f_hz) -> np.ndarray:
-        """Return ``dZ/d(ln p_k)``, shape (len(f), 4).
-
-        Parameters
-        ----------
-        p : array_like
-            ``(L, R_dc, f_c, C_p)``.
-        f_hz : array_like
-            Frequencies in Hz.
-        """
-        return np.stack(self._z_and_cols(p, f_hz)[1], axis=-1)
 
     def _z_and_cols(self, p, f_hz):
         f = np.asarray(f_hz, float)
@@ -225,7 +230,7 @@ class SkinEffectInductor(_LossCircuit):
 
 
 @dataclass(frozen=True, init=False)
-class RelaxingCoreInductor(_LossCircuit):
+class RelaxingCoreInductor(_ColumnsCircuit):
     """Core with Debye-relaxing permeability, winding resistance and parallel C_p.
 
     Keys ``(L_i, L_inf, f_r, R_dc, C_p)``; requires ``L_i > L_inf`` for a
@@ -236,30 +241,6 @@ class RelaxingCoreInductor(_LossCircuit):
     def __init__(self):
         _init(self, "inductor", "core with relaxing permeability, winding resistance and parallel C_p",
               ("L_i", "L_inf", "f_r", "R_dc", "C_p"))
-
-    def impedance(self, p, f_hz) -> np.ndarray:
-        """Return Z in ohm (see the module docstring).
-
-        Parameters
-        ----------
-        p : array_like
-            ``(L_i, L_inf, f_r, R_dc, C_p)``.
-        f_hz : array_like
-            Frequencies in Hz.
-        """
-        return self._z_and_cols(p, f_hz)[0]
-
-    def log_jacobian(self, p, f_hz) -> np.ndarray:
-        """Return ``dZ/d(ln p_k)``, shape (len(f), 5).
-
-        Parameters
-        ----------
-        p : array_like
-            ``(L_i, L_inf, f_r, R_dc, C_p)``.
-        f_hz : array_like
-            Frequencies in Hz.
-        """
-        return np.stack(self._z_and_cols(p, f_hz)[1], axis=-1)
 
     def _z_and_cols(self, p, f_hz):
         f = np.asarray(f_hz, float)
