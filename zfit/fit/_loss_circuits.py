@@ -142,7 +142,6 @@ class _LossCircuit(Circuit):
         return _srf_by_scan(self, p)
 
 
-
 class _ColumnsCircuit(_LossCircuit):
     """A loss circuit that computes Z and its log-derivative columns together (`_z_and_cols`)."""
 
