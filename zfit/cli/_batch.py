@@ -96,16 +96,13 @@ def batch_command(
         inputs, out, limits=lim, model=model, at=quantities(at, "--at"), read=read, jobs=jobs,
         cluster=cluster, plot=plot, plot_format=plot_format, force=force, progress=False if quiet else None,
     )
-    for row in result.rows:
-        if row.verdict == "error":
-            echo(f"{row.name}: error: {row.error}")
-        elif row.verdict in ("fail", "indeterminate"):
-            echo(f"{row.name}: {row.verdict}: " + "; ".join(row.reasons))
+    from ..lot._lot_files import lot_text, verdict_lines
+
+    for line in verdict_lines(result.rows):
+        echo(line)
     n_warn = sum(1 for r in result.rows if r.warnings)
     if n_warn:
         warn_line(f"{n_warn} part(s) have measurement warnings: see the 'warnings' column of {result.summary_path}")
-    from ..lot._lot_files import lot_text
-
     echo(lot_text(result.lot))
     echo(f"{result.identified} identified, {result.skipped} up to date (skipped), {result.errors} error, "
          f"in {result.seconds:.1f} s ({result.workers})")

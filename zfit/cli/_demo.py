@@ -306,7 +306,7 @@ def _demo_lot(folder: Path, force: bool) -> int:
     import numpy as np
 
     from ..io._limits_file import parse_limits
-    from ..lot._lot_files import lot_text
+    from ..lot._lot_files import lot_text, verdict_lines
     from ..lot._run import run_batch
     from ..lot._simulated_lot import SimulatedPart, write_simulated_lot
     from ..lot._tasks import ReadOptions
@@ -328,11 +328,8 @@ def _demo_lot(folder: Path, force: bool) -> int:
     echo(f"$ {cmd}")
     result = run_batch([lot / "sweeps"], lot, limits=parse_limits(LOT_LIMITS, str(limits_path)),
                        read=ReadOptions(connection="shunt-thru"), jobs=1, force=force, progress=False)
-    for row in result.rows:
-        if row.verdict in ("fail", "indeterminate"):
-            echo(f"{row.name}: {row.verdict}: " + "; ".join(row.reasons))
-        elif row.verdict == "error":
-            echo(f"{row.name}: error: {row.error}")
+    for line in verdict_lines(result.rows):
+        echo(line)
     echo(lot_text(result.lot))
     echo(f"wrote {lot}/ (summary.csv, lot.csv, lot.json and a JSON per part)")
     echo()

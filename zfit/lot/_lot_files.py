@@ -19,6 +19,7 @@ from ._rows import PartRow
 from ._statistics import LotSummary, QuantityStats
 
 __all__ = [
+    "verdict_lines",
     "SUMMARY_NAME",
     "LOT_CSV_NAME",
     "LOT_JSON_NAME",
@@ -217,3 +218,20 @@ def lot_text(lot: LotSummary) -> str:
             lines.append(f"Cpk of {q.name} limited by the measurement uncertainty, not the process "
                          f"(lot std {format_eng(q.std, q.unit)} <= u_rms {format_eng(q.u_rms, q.unit)})")
     return "\n".join(lines)
+
+
+def verdict_lines(rows: Sequence[PartRow]) -> list[str]:
+    """Return one line per part that did not pass: its verdict and why (or its error).
+
+    Parameters
+    ----------
+    rows : sequence of PartRow
+        The lot's rows, in order.
+    """
+    out = []
+    for row in rows:
+        if row.verdict == "error":
+            out.append(f"{row.name}: error: {row.error}")
+        elif row.verdict in ("fail", "indeterminate"):
+            out.append(f"{row.name}: {row.verdict}: " + "; ".join(row.reasons))
+    return out
