@@ -96,8 +96,15 @@ OPTIONAL_KEY = MappingProxyType({
 #: Unit of every parameter key.
 UNITS = MappingProxyType({p.key: p.unit for p in _ALL})
 
-#: Side of the resolution limit of every parameter key.
-RESOLUTION_KIND = MappingProxyType({p.key: p.resolution_kind for p in _ALL})
+#: Side of the resolution limit of every parameter key, the loss models' too:
+#: a corner (f_c, f_r) beyond the band, or a section's parallel R so large
+#: that it carries no current, is lost on the upper side.
+RESOLUTION_KIND = MappingProxyType({
+    **{p.key: p.resolution_kind for p in _ALL},
+    "R_dc": "lower", "f_c": "upper", "L_i": "lower", "L_inf": "lower", "f_r": "upper", "D": "lower",
+    "ESR_0": "lower",
+    **{f"{k}_{i}": kind for i in (1, 2, 3) for k, kind in (("R", "upper"), ("L", "lower"), ("C", "lower"))},
+})
 
 #: Family of every parameter key.
 FAMILY_OF = MappingProxyType({p.key: p.family for p in _ALL})

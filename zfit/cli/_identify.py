@@ -35,7 +35,9 @@ from ._common import (
 @guarded
 def identify_command(
     sweep: Path = typer.Argument(..., help="Touchstone (.s1p/.s2p) file or impedance-analyser table (.csv/.txt/.tsv)."),
-    model: str = typer.Option("auto", "--model", "-m", help="auto | inductor | capacitor | rational."),
+    model: str = typer.Option("auto", "--model", "-m", help="auto | inductor | capacitor | rational, or one circuit by its short name "
+                                   "(skin-effect-coil, relaxing-core, constant-loss-capacitor, bead) or its descriptive "
+                                   "name as the JSON 'topology' gives it (quoted)."),
     band: Optional[str] = typer.Option(None, "--band", help="Fit over FMIN:FMAX only, e.g. 1k:10M (the figures read from the measurement still cover the whole file)."),
     at: Optional[List[str]] = typer.Option(None, "--at", help="Spot frequency for R, X, L_eff, C_eff, Q, D readouts, e.g. 100k; repeatable."),
     rdc: Optional[str] = typer.Option(None, "--rdc", help="Measured DC resistance in ohm (four-wire ohmmeter), e.g. 25m: constrains R_s or ESR."),

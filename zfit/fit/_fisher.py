@@ -55,10 +55,16 @@ __all__ = [
 _THRESHOLD = 1.0 / 3.0
 
 
-def _impedance(model, params, f):
-    from ._circuits import circuit_impedance
+def _circuit_of(model, params):
+    """The circuit: `model` itself when it is one, else the family's circuit whose keys `params` has."""
+    from ._circuits import Circuit, circuit_for
 
-    return np.asarray(circuit_impedance(model, params, f), dtype=complex)
+    return model if isinstance(model, Circuit) else circuit_for(model, params)
+
+
+def _impedance(model, params, f):
+    circuit = _circuit_of(model, params)
+    return np.asarray(circuit.impedance(circuit.vector(params), np.asarray(f, dtype=float)), dtype=complex)
 
 
 def fisher_log_covariance(model: str, params, f_hz, sigma_ohm):
@@ -66,8 +72,9 @@ def fisher_log_covariance(model: str, params, f_hz, sigma_ohm):
 
     Parameters
     ----------
-    model : {'inductor', 'capacitor'}
-        The equivalent circuit (`zfit.fit._circuits.circuit_impedance`).
+    model : {'inductor', 'capacitor'} or Circuit
+        The equivalent circuit (`zfit.fit._circuits.circuit_impedance`), or
+        a circuit itself.
     params : mapping
         Parameter values in SI units (the keys present choose the topology).
     f_hz : array_like
@@ -99,9 +106,7 @@ def fisher_log_covariance(model: str, params, f_hz, sigma_ohm):
        Estimation Theory*, Prentice Hall, 1993, sec. 15.7 (complex data;
        from memory).
     """
-    from ._circuits import circuit_for
-
-    circuit = circuit_for(model, params)
+    circuit = _circuit_of(model, params)
     keys = circuit.keys
     theta = circuit.vector(params)
     f = np.asarray(f_hz, dtype=float)
@@ -245,8 +250,10 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
 
     Parameters
     ----------
-    model : {'inductor', 'capacitor'}
-        The equivalent circuit.
+    model : {'inductor', 'capacitor'} or Circuit
+        The equivalent circuit: a family (the keys of `params` choose its
+        topology) or a circuit itself (the loss models of
+        `zfit.fit._loss_circuits`).
     params : mapping
         Parameter values in SI units (the point at which the limits are taken).
     f_hz, sigma_ohm : array_like
@@ -270,7 +277,8 @@ def limits_for(model, params, f_hz, sigma_ohm, connection="impedance", reference
     """
     f = np.asarray(f_hz, dtype=float)
     sigma = np.asarray(sigma_ohm, dtype=float)
-    params = {k: float(v) for k, v in params.items() if k in PARAMETER_KEYS[model] and v is not None and np.isfinite(v)}
+    own = _circuit_of(model, params).keys if not isinstance(model, str) else PARAMETER_KEYS[model]
+    params = {k: float(v) for k, v in params.items() if k in own and v is not None and np.isfinite(v)}
     z0 = 50.0 if reference_ohm is None else float(reference_ohm)
     if noise is None and connection in NA_CONNECTIONS:
         noise = InstrumentNoise()

@@ -113,6 +113,11 @@ def _srf_by_scan(circuit, p, lo=1.0, hi=1e11):
     return math.sqrt(a * b)
 
 
+def _ratio_q(z):
+    """``Im Z / Re Z``: the Q of a series branch."""
+    return z.imag / z.real
+
+
 class _LossCircuit(Circuit):
     @property
     def units(self) -> dict:
@@ -209,6 +214,20 @@ class SkinEffectInductor(_ColumnsCircuit):
         dzw_dfc = r_dc * (-1j * f / f_c) / (2 * root)
         return _parallel_cp(zw + s * L, [s * L, zw, dzw_dfc], s, c_p)
 
+    def model_q(self, p, f_hz) -> np.ndarray:
+        """Return the Q of the winding alone, ``Im/Re`` of ``R_dc sqrt(1 + j f/f_c) + j omega L`` (no C_p).
+
+        Parameters
+        ----------
+        p : array_like
+            ``(L, R_dc, f_c, C_p)``.
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        f = np.asarray(f_hz, float)
+        L, r_dc, f_c, _ = p
+        return _ratio_q(r_dc * np.sqrt(1 + 1j * f / f_c) + 1j * _TWO_PI * f * L)
+
     def guess_from_data(self, f_hz, z_ohm, sigma_ohm=None) -> np.ndarray:
         """Return a start: L and R_dc at the low end, f_c where R has doubled, C_p from the peak.
 
@@ -252,6 +271,20 @@ class RelaxingCoreInductor(_ColumnsCircuit):
         # d g / d ln f_r = g^2 * j f/f_r
         d_fr = s * (l_i - l_inf) * g**2 * (1j * f / f_r)
         return _parallel_cp(r_dc + zc, [d_li, d_linf, d_fr, r_dc + 0 * zc], s, c_p)
+
+    def model_q(self, p, f_hz) -> np.ndarray:
+        """Return the Q of the winding on its core alone, ``Im/Re`` of ``R_dc + Z_core`` (no C_p).
+
+        Parameters
+        ----------
+        p : array_like
+            ``(L_i, L_inf, f_r, R_dc, C_p)``.
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        f = np.asarray(f_hz, float)
+        l_i, l_inf, f_r, r_dc, _ = p
+        return _ratio_q(r_dc + 1j * _TWO_PI * f * (l_inf + (l_i - l_inf) / (1 + 1j * f / f_r)))
 
     def guess_from_data(self, f_hz, z_ohm, sigma_ohm=None) -> np.ndarray:
         """Return a start: L_i at the low end, f_r at the peak of X/(omega) loss, L_inf = L_i/30.
@@ -321,6 +354,21 @@ class ConstantLossCapacitor(_LossCircuit):
         """
         c, d, _, esl = (float(v) for v in p)
         return 1.0 / (_TWO_PI * math.sqrt(esl * c * (1 + d * d)))
+
+    def model_d(self, p, f_hz) -> np.ndarray:
+        """Return the model's dissipation factor without the ESL: ``Re/(-Im)`` of ``ESR_0 + 1/(j omega C (1 - j D))``.
+
+        Parameters
+        ----------
+        p : array_like
+            ``(C, D, ESR_0, ESL)``.
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        s = 1j * _TWO_PI * np.asarray(f_hz, float)
+        c, d, r0, _ = p
+        z = r0 + 1.0 / (s * c * (1 - 1j * d))
+        return z.real / -z.imag
 
     def guess_from_data(self, f_hz, z_ohm, sigma_ohm=None) -> np.ndarray:
         """Return a start: C and D at the low end, ESR_0 at the |Z| minimum, ESL from the top.
@@ -399,6 +447,43 @@ class ResonantSections(_LossCircuit):
             z2 = zk * zk
             cols += [z2 / r, z2 / (s * l), -z2 * s * c]
         return np.stack(cols, axis=-1)
+
+    def model_q(self, p, f_hz) -> np.ndarray:
+        """Return ``Im Z / Re Z`` of the whole network (its sections carry their own capacitance).
+
+        Parameters
+        ----------
+        p : array_like
+            ``(R_dc, R_1, L_1, C_1, ...)``.
+        f_hz : array_like
+            Frequencies in Hz.
+        """
+        return _ratio_q(self.impedance(p, f_hz))
+
+    def starts_after(self, fewer, f_hz, z_ohm) -> list:
+        """Return starts that add one section to a fit with one section fewer.
+
+        The new section is placed at 16 log-spaced resonant frequencies over
+        the band and a decade beyond, its R at the data's |Z| there and its
+        Q = R/(omega L) at 0.5 and 2: a second resonance the data show only
+        as a shoulder has no peak for `guess_from_data` to find.
+
+        Parameters
+        ----------
+        fewer : array_like
+            The fitted parameters of ``ResonantSections(n_sections - 1)``.
+        f_hz, z_ohm : array_like
+            The sweep.
+        """
+        f, z = np.asarray(f_hz, float), np.asarray(z_ohm, complex)
+        mag = np.abs(z)
+        out = []
+        for fk in np.geomspace(f[0], f[-1] * 10.0, 16):
+            rk = float(np.interp(math.log(fk), np.log(f), mag))
+            for q in (0.5, 2.0):
+                lk = rk / (q * _TWO_PI * fk)
+                out.append(np.concatenate([np.asarray(fewer, float), [rk, lk, 1.0 / ((_TWO_PI * fk) ** 2 * lk)]]))
+        return out
 
     def guess_from_data(self, f_hz, z_ohm, sigma_ohm=None) -> np.ndarray:
         """Return a start: R_dc at the low end, sections at the largest |Z| peaks.

@@ -88,6 +88,7 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
     """
     from ..fit._circuits import circuits_of
     from ..fit._lsq import refine
+    from ..fit._models import is_lumped
 
     family, chosen, prior = picked.family, picked.chosen, picked.prior
     band = sweep.band_hz
@@ -121,7 +122,8 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
     # A count of points, not a span: the equations a fit needs.
     min_pts = max(10, 4 * k + 2)
     if width((i0, i1)) < 0.97 * n:
-        base, full = circuits_of(family)
+        # A loss model is refitted as itself: it has no optional element to decide.
+        base, full = circuits_of(family) if is_lumped(chosen.circuit) else (chosen.circuit, None)
 
         def sub_fit(circuit, mask, seed=None):
             sub = obs.subset(mask)
@@ -185,8 +187,8 @@ def valid_band(sweep: Sweep, obs: Observation, picked: Choice, e_rat: np.ndarray
             m[j0:j1] = True
             if m.sum() >= min_pts:
                 got_b = sub_fit(base, m, best[0].values) or best
-                got_f = sub_fit(full, m, np.append(got_b[0].values, np.max(np.abs(sweep.z_ohm)) * 10)
-                                if family == "inductor" else None)
+                got_f = None if full is None else sub_fit(
+                    full, m, np.append(got_b[0].values, np.max(np.abs(sweep.z_ohm)) * 10) if family == "inductor" else None)
                 pick = got_b
                 if got_f is not None:
                     rows_m = 2 * int(m.sum())
@@ -236,4 +238,42 @@ def widest_family_band(sweep: Sweep, obs: Observation, fits, picked: Choice, vb:
     alt_vb = valid_band(sweep, obs, alt, e_rat, rational, margin)
     if band_decades(sweep.f_hz, alt_vb.start, alt_vb.stop)[0] > own:
         return alt, alt_vb
+    return picked, vb
+
+
+def lumped_if_as_wide(sweep: Sweep, obs: Observation, fits, picked: Choice, vb: ValidBand, e_rat, rational,
+                      margin: float, rows: int) -> tuple[Choice, ValidBand]:
+    """Return the lumped circuit instead of a loss model that holds over no wider a band.
+
+    The BIC over all points can prefer a loss model on a part that neither
+    describes over the whole band (a dielectric absorption below a few
+    hundred hertz, say); then the band each holds decides, in log-frequency
+    span, and a tie goes to the lumped circuit, which has fewer parameters.
+
+    Parameters
+    ----------
+    sweep, obs, e_rat, rational, margin
+        As for `valid_band`.
+    fits : CandidateFits
+        The circuits fitted for each family.
+    picked : Choice
+        The circuit chosen by the BIC.
+    vb : ValidBand
+        Its valid band.
+    rows : int
+        Number of real residuals of the full band.
+    """
+    import dataclasses
+
+    from ..fit._models import is_lumped
+    from ._candidates import choice, rdc_prior
+
+    if is_lumped(vb.chosen.circuit) or (vb.start, vb.stop) == (0, sweep.n_points):
+        return picked, vb
+    lumped = choice(dataclasses.replace(fits, loss={}), rows, margin, None, None, required=picked.family)
+    if picked.prior is not None:
+        lumped = dataclasses.replace(lumped, prior=rdc_prior(lumped.chosen.circuit, picked.prior.value, picked.prior.std))
+    lumped_vb = valid_band(sweep, obs, lumped, e_rat, rational, margin)
+    if band_decades(sweep.f_hz, lumped_vb.start, lumped_vb.stop)[0] >= band_decades(sweep.f_hz, vb.start, vb.stop)[0]:
+        return lumped, lumped_vb
     return picked, vb

@@ -7,8 +7,14 @@ only within `_SCREEN_RATIO`: a circuit of the wrong family is far off and
 slow to converge.  (A capacitor with leakage and an inductor whose R_s
 plays the leak can look alike where ESL and ESR are not resolved: then both
 are refined, and the families are compared by the better of their two
-circuits.)  The family and the optional element are then chosen by the
-Bayesian information criterion with a margin.
+circuits.)  Where the best lumped circuit of a family leaves a residual
+above the noise (reduced chi-square over `_LOSS_SCREEN`), the family's
+frequency-dependent loss models (`zfit.fit._models.loss_models_of`: a
+skin-effect winding, a relaxing core, resonant sections; a constant loss
+tangent) are refined too: on a part the lumped circuit describes, none of
+them can win the margin, and they are not worth their cost.  The family,
+the optional element and the loss model are then chosen by the Bayesian
+information criterion, anything beyond the base circuit with a margin.
 
 References
 ----------
@@ -20,6 +26,7 @@ References
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
@@ -47,6 +54,18 @@ _SCREEN_NFEV = 30
 # this fraction of the BIC gain it must reach (see _optional_may_help).
 _OPTIONAL_SCREEN = 0.25
 
+# The loss models are refined only when the best lumped circuit's reduced
+# chi-square exceeds this: below it the residual has too little structure
+# for four or five parameters to win the BIC margin.
+_LOSS_SCREEN = 1.3
+
+# A loss model competes only when the sweep resolves every one of its
+# parameters to this relative uncertainty (the resolution threshold of
+# zfit.fit._fisher).
+_LOSS_RESOLVED = 1.0 / 3.0
+
+# The series loss a measured DC resistance constrains, by circuit key.
+_PRIOR_KEYS = ("R_s", "ESR", "R_dc", "ESR_0")
 _PRIOR_KEY = {"inductor": "R_s", "capacitor": "ESR"}
 
 
@@ -65,12 +84,16 @@ class CandidateFits:
         where it was not tried or failed.
     notes : tuple of str
         Families that could not be fitted.
+    loss : dict
+        Family -> the refined loss models (tuple, empty where they were
+        screened out).
     """
 
     likely: str
     base: dict
     optional: dict
     notes: tuple[str, ...] = ()
+    loss: dict = dataclasses.field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -95,11 +118,25 @@ class Choice:
     ranked: tuple
 
 
-def rdc_prior(family: str, rdc: float | None, rdc_std: float | None) -> Prior | None:
-    """Return the prior of a measured DC resistance on the family's series loss (None without one)."""
+def rdc_prior(family, rdc: float | None, rdc_std: float | None) -> Prior | None:
+    """Return the prior of a measured DC resistance on a circuit's series loss (None without one).
+
+    Parameters
+    ----------
+    family : {'inductor', 'capacitor'} or Circuit
+        The family (its lumped circuit's R_s or ESR) or the circuit itself
+        (its R_s, ESR, R_dc or ESR_0).
+    rdc, rdc_std : float or None
+        The measured DC resistance and its uncertainty.
+    """
     from ..fit._lsq import Prior
 
-    return None if rdc is None else Prior(_PRIOR_KEY[family], rdc, rdc_std)
+    if rdc is None:
+        return None
+    if isinstance(family, str):
+        return Prior(_PRIOR_KEY[family], rdc, rdc_std)
+    key = next((k for k in _PRIOR_KEYS if k in family.keys), None)
+    return None if key is None else Prior(key, rdc, rdc_std)
 
 
 def circuit_bic(ref: Refinement, rows: int) -> float:
@@ -177,14 +214,67 @@ def _optional_may_help(rb, obs, prior, margin) -> bool:
     return gain >= _OPTIONAL_SCREEN * (margin + math.log(rows))
 
 
+def _fit_loss(circuit, obs, rdc, rdc_std, fewer=None):
+    """Refine a circuit from its own data guesses (and from `fewer` sections, for resonant sections); None if it fails."""
+    from ..fit._lsq import refine
+
+    starts = circuit.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm)
+    if fewer is not None:
+        starts = starts + circuit.starts_after(fewer.values, obs.f_hz, obs.z_ohm)
+    try:
+        return refine(circuit, obs, starts, n_best=3, prior=rdc_prior(circuit, rdc, rdc_std))
+    except (FitError, ValueError, ArithmeticError, np.linalg.LinAlgError):
+        return None
+
+
+def _every_parameter_resolved(ref) -> bool:
+    """Whether each parameter's relative uncertainty is below `_LOSS_RESOLVED`."""
+    with np.errstate(all="ignore"):
+        rel = np.sqrt(np.diag(ref.log_cov))
+    return bool(np.all(np.isfinite(rel) & (rel < _LOSS_RESOLVED)))
+
+
+def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple:
+    """Refine each circuit in turn, resonant sections grown from the fit with one section fewer.
+
+    With `resolved_only`, a fit with a parameter the sweep does not resolve
+    is dropped: a relaxation or a skin-effect corner outside the band only
+    mimics a lumped element (a Debye core relaxing below the band is a
+    series resistance), which the lumped circuits already say more simply.
+    """
+    from ..fit._loss_circuits import ResonantSections
+
+    out, sections = [], {}
+    for circuit in circuits:
+        fewer = sections.get(circuit.n_sections - 1) if isinstance(circuit, ResonantSections) else None
+        ref = _fit_loss(circuit, obs, rdc, rdc_std, fewer)
+        if ref is None:
+            continue
+        if isinstance(circuit, ResonantSections):
+            sections[circuit.n_sections] = ref
+        if not resolved_only or _every_parameter_resolved(ref):
+            out.append(ref)
+    return tuple(out)
+
+
+def _named_fits(circuits, obs, rdc, rdc_std) -> CandidateFits:
+    """The circuits asked for by name: the first is the base, the rest compete with it by the BIC."""
+    family = circuits[0].family
+    fitted = _loss_fits(circuits, obs, rdc, rdc_std, resolved_only=False)
+    if not fitted:
+        return CandidateFits(family, {}, {}, (f"{circuits[0].topology} could not be fitted",))
+    return CandidateFits(family, {family: fitted[0]}, {family: None}, (), {family: tuple(fitted[1:])})
+
+
 def candidate_fits(model: str, likely: str, obs: Observation, rational: RationalModel | None,
-                   rdc: float | None, rdc_std: float | None, margin: float) -> CandidateFits:
+                   rdc: float | None, rdc_std: float | None, margin: float, named=None) -> CandidateFits:
     """Return the circuits of each family that compete (module notes).
 
     Parameters
     ----------
-    model : {'auto', 'inductor', 'capacitor'}
-        ``auto`` fits both families, otherwise only the one asked for.
+    model : {'auto', 'inductor', 'capacitor'} or str
+        ``auto`` fits both families, a family only the one asked for, a
+        model name (with `named`) only the circuits it stands for.
     likely : {'inductor', 'capacitor'}
         The family the data look like, fitted first.
     obs : Observation
@@ -195,9 +285,15 @@ def candidate_fits(model: str, likely: str, obs: Observation, rational: Rational
         A measured DC resistance and its uncertainty.
     margin : float
         BIC difference an optional element must win by.
+    named : tuple of Circuit, optional
+        The circuits a model name stands for (`zfit.fit._models.named_models`).
     """
+    from ..fit._models import loss_models_of
+
+    if named:
+        return _named_fits(named, obs, rdc, rdc_std)
     families = (likely, "inductor" if likely == "capacitor" else "capacitor") if model == "auto" else (model,)
-    fitted, optional, notes = {}, {}, []
+    fitted, optional, loss, notes = {}, {}, {}, []
     best_chi2 = math.inf
     for idx, fam in enumerate(families):
         prior = rdc_prior(fam, rdc, rdc_std)
@@ -219,7 +315,12 @@ def candidate_fits(model: str, likely: str, obs: Observation, rational: Rational
         if rb.chi2 <= _SCREEN_RATIO * best_chi2 and _optional_may_help(rb, obs, prior, margin):
             optional[fam] = _fit_optional(rb, obs, rational, prior)
         best_chi2 = min(best_chi2, rb.chi2, math.inf if optional[fam] is None else optional[fam].chi2)
-    return CandidateFits(likely, fitted, optional, tuple(notes))
+        lumped = min((r for r in (rb, optional[fam]) if r is not None), key=lambda r: r.chi2)
+        loss[fam] = ()
+        if lumped.chi2 <= _SCREEN_RATIO * best_chi2 and lumped.reduced_chi2 > _LOSS_SCREEN:
+            loss[fam] = _loss_fits(loss_models_of(fam), obs, rdc, rdc_std)
+            best_chi2 = min([best_chi2] + [r.chi2 for r in loss[fam]])
+    return CandidateFits(likely, fitted, optional, tuple(notes), loss)
 
 
 def choice(fits: CandidateFits, rows: int, margin: float, rdc: float | None, rdc_std: float | None,
@@ -247,24 +348,22 @@ def choice(fits: CandidateFits, rows: int, margin: float, rdc: float | None, rdc
         the other is then ranked but never chosen, since a series R-L fitted
         as a capacitor has a C that runs to infinity.
     """
-    fitted, optional, likely = fits.base, fits.optional, fits.likely
+    fitted, likely = fits.base, fits.likely
     allowed = [fam for fam in fitted if required is None or fam == required] or list(fitted)
 
+    def extras(fam):
+        return [r for r in (fits.optional.get(fam),) + tuple(fits.loss.get(fam, ())) if r is not None]
+
     def family_bic(fam):
-        b = circuit_bic(fitted[fam], rows)
-        rf = optional[fam]
-        return b if rf is None else min(b, circuit_bic(rf, rows) + margin)
+        return min([circuit_bic(fitted[fam], rows)] + [circuit_bic(r, rows) + margin for r in extras(fam)])
 
     family = min(allowed, key=family_bic)
     if likely in allowed and family != likely and family_bic(family) > family_bic(likely) - margin:
         family = likely
-    rb, rf = fitted[family], optional[family]
     ranked = []
     for fam in fitted:
-        ranked.append((circuit_bic(fitted[fam], rows), fitted[fam]))
-        if optional[fam] is not None:
-            ranked.append((circuit_bic(optional[fam], rows), optional[fam]))
-    chosen = rb
-    if rf is not None and circuit_bic(rf, rows) < circuit_bic(rb, rows) - margin:
-        chosen = rf
-    return Choice(family, chosen, rdc_prior(family, rdc, rdc_std), tuple(ranked))
+        ranked += [(circuit_bic(r, rows), r) for r in [fitted[fam]] + extras(fam)]
+    # Anything beyond the base circuit must lower the BIC by more than the margin.
+    chosen = min([fitted[family]] + extras(family),
+                 key=lambda r: circuit_bic(r, rows) + (0.0 if r is fitted[family] else margin))
+    return Choice(family, chosen, rdc_prior(chosen.circuit, rdc, rdc_std), tuple(ranked))

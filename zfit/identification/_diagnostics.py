@@ -164,9 +164,11 @@ def ground_loop_warning(sweep: Sweep, identification: Identification) -> str | N
     if sweep.connection != "shunt-thru" or identification.model != "capacitor":
         return None
     params = {k: float(v.value) for k, v in identification.parameters.items()}
-    if not {"C", "ESL", "ESR"} <= set(params):
+    # The constant-loss capacitor's series plateau ESR_0 plays the ESR here.
+    esr_key = "ESR" if "ESR" in params else "ESR_0"
+    if not {"C", "ESL", esr_key} <= set(params):
         return None
-    c, esl, esr = params["C"], params["ESL"], params["ESR"]
+    c, esl, esr = params["C"], params["ESL"], params[esr_key]
     srf = getattr(getattr(identification, "srf", None), "value_hz", None)
     if srf is None or not np.isfinite(srf):
         srf = 1.0 / (2 * math.pi * math.sqrt(abs(esl * c))) if esl > 0 and c > 0 else None

@@ -100,7 +100,7 @@ def resolution_of(ref: Refinement, sweep: Sweep, mask=None) -> dict:
     for key in needed:
         try:
             floors.update(limits_for(
-                circuit.family, circuit.mapping(values), np.asarray(sweep.f_hz, float)[sel],
+                circuit, circuit.mapping(values), np.asarray(sweep.f_hz, float)[sel],
                 np.asarray(sweep.sigma_ohm, float)[sel], sweep.connection, sweep.reference_ohm, sweep.noise,
                 keys=(key,),
             ))

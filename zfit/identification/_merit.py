@@ -483,10 +483,13 @@ class ModelEvaluator:
     """Where the figures of the measured part are read from, frequency by frequency.
 
     Inside `circuit_band` (the band where the fitted circuit is within the
-    noise, for a sweep fitted on S) the circuit's value is read: it was
+    noise) the circuit's value is read: for a sweep fitted on S it was
     fitted where the noise is Gaussian, whereas the rational model, fitted on
     Z, carries the bias of the S-to-Z conversion wherever the part's
-    impedance sits in the analyser's noise.  Its uncertainty there is the
+    impedance sits in the analyser's noise; on any sweep, a rational model of
+    automatic order bends away from a frequency-dependent loss near the
+    band's edges (a constant loss tangent read 5 standard uncertainties low
+    at 120 Hz), where a circuit within the noise does not.  Its uncertainty there is the
     circuit's plus the rational model's (covariances added): the circuit's
     alone assumes its own structure is exact, the rational model's says what
     the data near that frequency support.  Elsewhere in the band the

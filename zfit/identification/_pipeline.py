@@ -107,8 +107,13 @@ class Readings:
 
 def _checked_options(sweep, model, at, rdc, rdc_std):
     """Return (at, rdc, rdc_std) checked and in SI floats; raise ZfitInputError on bad options."""
+    from ..fit._models import named_models
+
     if model not in MODELS:
-        raise ZfitInputError(f"unknown model {model!r}; use one of {', '.join(MODELS)}", sweep.source)
+        try:
+            named_models(model)
+        except ZfitInputError as exc:
+            raise ZfitInputError(str(exc), sweep.source) from None
     at = tuple(float(x) for x in np.atleast_1d(np.asarray(() if at is None else at, dtype=float)))
     for x in at:
         if not (math.isfinite(x) and x > 0):
@@ -196,11 +201,16 @@ def identify(
     ----------
     sweep : Sweep
         The measured impedance with its per-point uncertainty.
-    model : {'auto', 'inductor', 'capacitor', 'rational'}
+    model : str
         ``auto`` chooses the family by the BIC and adds the optional element
-        (R_p, R_leak) only when it lowers the BIC by more than `margin`;
-        ``inductor`` / ``capacitor`` fix the family (the optional element is
-        still chosen); ``rational`` reports the vector-fitting model alone.
+        (R_p, R_leak) or a frequency-dependent loss model (skin-effect
+        winding, relaxing core, resonant sections, constant loss tangent)
+        only when it lowers the BIC by more than `margin`;
+        ``inductor`` / ``capacitor`` fix the family (the rest is still
+        chosen); ``rational`` reports the vector-fitting model alone; any
+        circuit's descriptive name (its ``topology``) or a short name of
+        `zfit.fit._models.SHORT_NAMES` (``bead``, ``skin-effect-coil``,
+        ``relaxing-core``, ``constant-loss-capacitor``) fits that circuit.
     at : float or sequence of float
         Frequencies (Hz) for spot readouts of R, X, L_eff, C_eff, Q and D.
     rdc : float, optional
@@ -246,8 +256,10 @@ def identify(
     .. [3] R. E. Kass and A. E. Raftery, "Bayes factors", J. Amer. Statist.
        Assoc. 90(430), 773-795, 1995, doi:10.1080/01621459.1995.10476572.
     """
+    from ..fit._models import family_choice
     from ._measured_report import measured_readings
 
+    model = family_choice(model)
     at, _, _ = _checked_options(sweep, model, at, rdc, rdc_std)
     # What the measurement says is read first, over the whole file, whatever model and band follow.
     measured = measured_readings(sweep, at)
@@ -288,8 +300,8 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     """`identify` over the (restricted) sweep, with the measurement already read."""
     from ..fit._lsq import Observation
     from ._adequacy import adequacy, adequacy_notes
-    from ._band import band_decades, valid_band, widest_family_band
-    from ._candidates import candidate_fits, choice
+    from ._band import band_decades, lumped_if_as_wide, valid_band, widest_family_band
+    from ._candidates import candidate_fits, choice, rdc_prior
     from ._criteria import bic
     from ._diagnostics import adequacy_note, ground_loop_warning, parameter_notes, rdc_note
     from ._estimates import correlation_of, parameter_estimates
@@ -298,10 +310,13 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     from ._merit import srf_of_circuit
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
+    from ..fit._models import named_models
+
     at, rdc, rdc_std = _checked_options(sweep, model, at, rdc, rdc_std)
+    named = None if model in MODELS else named_models(model)
     # Too few points for vector fitting and windowed bands: what they resolve, by least squares alone.
     if sweep.n_points < FEW_POINTS and model != "rational":
-        return _finish(*few_point_identification(sweep, model, at, rdc, rdc_std))
+        return _finish(*few_point_identification(sweep, model if named is None else named[0].family, at, rdc, rdc_std))
     band = sweep.band_hz
     obs = Observation.from_sweep(sweep)
     rows_full = 2 * sweep.n_points
@@ -313,7 +328,7 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
 
     # An inductive sweep (Im Z > 0 at low frequency, resolved) is an inductor, a capacitive one a capacitor.
     likely = measured.family or ("capacitor" if looks_capacitive(sweep) else "inductor")
-    fits = candidate_fits(model, likely, obs, stage.rational, rdc, rdc_std, margin)
+    fits = candidate_fits(model, likely, obs, stage.rational, rdc, rdc_std, margin, named=named)
     notes.extend(fits.notes)
     if not fits.base:
         if stage.rational is None:
@@ -324,6 +339,7 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     e_rat = None if stage.score is None else stage.score.energy
     vb = valid_band(sweep, obs, picked, e_rat, stage.rational, margin)
     picked, vb = widest_family_band(sweep, obs, fits, picked, vb, e_rat, stage.rational, margin)
+    picked, vb = lumped_if_as_wide(sweep, obs, fits, picked, vb, e_rat, stage.rational, margin, rows_full)
     chosen, i0, i1, fitted_mask = vb.chosen, vb.start, vb.stop, vb.fitted_mask
     stage = reweighted_rational(sweep, stage, chosen, vb.inside(sweep.n_points), obs)
     rational = stage.rational
@@ -355,12 +371,18 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     est = parameter_estimates(chosen, sweep, fitted_mask)
     notes.extend(parameter_notes(est, rdc))
     pull = rdc_note(chosen, picked.prior, rdc)
+    lumped = fits.base.get(picked.family)
+    if pull is None and lumped is not None and lumped is not chosen and picked.prior is not None:
+        # A loss model may reconcile the DC reading with the sweep; the constant-loss circuit's pull says it did.
+        pull = rdc_note(lumped, rdc_prior(lumped.circuit, rdc, rdc_std), rdc)
+        if pull is not None:
+            pull += f"; the sweep is described by the {chosen.circuit.topology} instead"
     if pull is not None:
         notes.append(pull)
     srf = srf_with_measurement(srf_of_circuit(chosen, band), measured.srf)
     evaluator = ModelEvaluator(
         band, rational=rational, refinement=chosen,
-        circuit_band=valid if (obs.on_s and i1 > i0) else None,
+        circuit_band=valid if i1 > i0 else None,
     )
     # Figures read from the circuit inside its valid band are the measured part to within the noise.
     read, spot_notes = readings(picked.family, srf, evaluator, at, "extrapolated from the circuit")

@@ -34,6 +34,7 @@ from typing import Mapping, Sequence
 
 from .._errors import ZfitInputError
 from .._units import format_eng, format_value_std
+from ..fit._models import is_lumped
 from ..fit._realisation import NetworkElement, rational_elements
 from .._version import __version__
 
@@ -43,6 +44,7 @@ __all__ = [
     "element_line",
     "circuit_elements",
     "circuit_netlist",
+    "loss_model_netlist",
     "rational_netlist",
     "identification_netlist",
 ]
@@ -329,4 +331,57 @@ def identification_netlist(result, kind: str = "auto", name: str | None = None) 
         raise ZfitInputError(
             "the result is a rational model; an equivalent-circuit netlist needs identify with --model inductor or --model capacitor"
         )
+    circuit = None if result.refinement is None else result.refinement.circuit
+    if circuit is not None and not is_lumped(circuit):
+        return loss_model_netlist(circuit, result.refinement.values, _network_band(result), name=name, header=hdr)
     return circuit_netlist(result.model, {k: e.value for k, e in result.parameters.items()}, name=name, header=hdr)
+
+
+def _network_band(result) -> tuple[float, float]:
+    """The band a loss model's network must match: where the model holds, else the measured band."""
+    lo, hi = result.fit.valid_band_hz
+    if not (math.isfinite(lo) and math.isfinite(hi) and hi > lo):
+        lo, hi = result.sweep.band_hz
+    return float(lo), float(hi)
+
+
+def loss_model_netlist(circuit, values, band_hz, *, name: str = "part", header: Mapping[str, str] | None = None) -> str:
+    """Return the SPICE subcircuit of a frequency-dependent loss model as a passive R-L-C network.
+
+    The network is `zfit.fit._loss_networks.loss_network`: exact for the
+    relaxing core and the resonant sections, fitted over `band_hz` for the
+    skin-effect winding and the constant loss tangent; the header states the
+    largest relative error of the network against the model over the band.
+
+    Parameters
+    ----------
+    circuit : Circuit
+        A loss model of `zfit.fit._loss_circuits`.
+    values : array_like
+        Its parameters in `circuit.keys` order (SI units).
+    band_hz : (float, float)
+        Where the network must hold.
+    name : str
+        Subcircuit name.
+    header : mapping of str to str, optional
+        Comment lines for the header.
+
+    References
+    ----------
+    R. M. Foster, "A reactance theorem", Bell Syst. Tech. J. 3(2), 259-267,
+    1924. doi:10.1002/j.1538-7305.1924.tb01358.x
+    C. L. Lawson and R. J. Hanson, *Solving Least Squares Problems*,
+    Prentice-Hall, 1974, ch. 23 (non-negative least squares).
+    """
+    from ..fit._loss_networks import loss_network
+
+    net = loss_network(circuit, values, band_hz)
+    hdr = dict(header or {})
+    lo, hi = net.band_hz
+    hdr["network"] = (
+        f"exact realisation of the model ({len(net.elements)} elements)" if net.exact else
+        f"passive ladder fitted to the model over {format_eng(lo)}Hz..{format_eng(hi)}Hz ({len(net.elements)} elements)"
+    ) + f"; largest |Z_network - Z_model|/|Z_model| over the band {net.max_rel_error:.2g}"
+    if not net.exact:
+        hdr["network"] += "; outside that band the network and the model part"
+    return _subckt_text(name, f"Equivalent circuit: {circuit.topology}", hdr, net.elements)

@@ -15,6 +15,7 @@ from pathlib import Path
 import numpy as np
 
 from .._errors import ZfitInputError
+from ..fit._models import is_lumped
 from ._result_plots import identification_plots, step_page_data, step_plots
 from ._views import band_text, dimensionless, estimate_text, micro, percent_std, pretty, pretty_std, relative_text
 
@@ -115,6 +116,25 @@ def _network_table(result):
     return Table(("branch", "C", "R_p", "L", "R_s"), tuple(rows), numeric=(1, 2, 3, 4), caption=caption)
 
 
+def _loss_model_tree(keys, p, el):
+    """The drawing tree of a frequency-dependent loss model (`zfit.fit._loss_circuits`)."""
+    if "f_c" in keys:  # skin-effect winding: its resistance grows as sqrt(f) past f_c
+        winding = ("R", f"R_dc = {pretty(p['R_dc'], 'ohm', 3)} x sqrt(1 + jf/{pretty(p['f_c'], 'Hz', 3)})")
+        return ("parallel", [("series", [winding, el("L", "L", p["L"], "H")]), el("C", "C_p", p["C_p"], "F")])
+    if "f_r" in keys:  # Debye core: L_inf in series with (L_d || R_d)
+        l_d = p["L_i"] - p["L_inf"]
+        relax = ("parallel", [el("L", "L_i - L_inf", l_d, "H"), el("R", "R_core", 2 * math.pi * p["f_r"] * l_d, "ohm")])
+        series = ("series", [el("R", "R_dc", p["R_dc"], "ohm"), el("L", "L_inf", p["L_inf"], "H"), relax])
+        return ("parallel", [series, el("C", "C_p", p["C_p"], "F")])
+    if "D" in keys:  # constant loss tangent
+        dielectric = ("C", f"C = {pretty(p['C'], 'F', 3)}, tan d = {p['D']:.3g}")
+        return ("series", [el("R", "ESR_0", p["ESR_0"], "ohm"), el("L", "ESL", p["ESL"], "H"), dielectric])
+    n = sum(1 for k in keys if k.startswith("R_") and k != "R_dc")
+    sections = [("parallel", [el("R", f"R_{i}", p[f"R_{i}"], "ohm"), el("L", f"L_{i}", p[f"L_{i}"], "H"),
+                              el("C", f"C_{i}", p[f"C_{i}"], "F")]) for i in range(1, n + 1)]
+    return ("series", [el("R", "R_dc", p["R_dc"], "ohm"), *sections])
+
+
 def schematic_tree(result):
     """Return the drawing tree of a result's circuit for `plot_schematic`, or None.
 
@@ -127,6 +147,9 @@ def schematic_tree(result):
         return (kind, f"{key} = {pretty(value, unit, 3)}")
 
     p = {k: e.value for k, e in result.parameters.items()}
+    circuit = None if result.refinement is None else result.refinement.circuit
+    if circuit is not None and not is_lumped(circuit):
+        return _loss_model_tree(circuit.keys, p, el)
     if result.model == "inductor":
         branches = [("series", [el("R", "R_s", p["R_s"], "ohm"), el("L", "L", p["L"], "H")]), el("C", "C_p", p["C_p"], "F")]
         if "R_p" in p:
