@@ -162,3 +162,14 @@ def test_exported_loss_model_netlist_reproduces_the_model_in_ngspice(maker, band
     z_model = r.refinement.impedance(fs)
     # ngspice, the independent simulator, against the fitted model: 0.1 % over the band (issue 12).
     np.testing.assert_allclose(zs, z_model, rtol=1e-3)
+
+
+def test_a_lot_reads_a_relaxing_core_by_the_lumped_keys():
+    # R_dc is the lumped R_s (the winding at low frequency) and L_i the lumped L (docs/models.md).
+    from zfit.lot._part_summary import part_summary, part_summary_from_json
+
+    f = np.geomspace(1e3, 50e6, 121)
+    r = _identify(_measured(f, _ferrite_coil(f), 9))
+    for summary in (part_summary(r), part_summary_from_json(r.to_dict())):
+        assert summary.figures["L"] == (r.parameters["L_i"].value, r.parameters["L_i"].std)
+        assert summary.figures["R_s"][0] == pytest.approx(0.05, rel=0.2)

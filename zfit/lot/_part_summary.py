@@ -69,6 +69,20 @@ def _spot_figures(f_hz: float, readout: Mapping) -> dict:
     return out
 
 
+# The lumped circuit's keys that a loss model carries under its own name, with
+# the same meaning: the winding's DC resistance is the lumped R_s (its value at
+# low frequency), and a relaxing core's L_i the lumped L (the inductance below
+# the relaxation).  A lot's limits on L and R_s then apply to either model.
+_LUMPED_ALIASES = (("R_s", "R_dc"), ("L", "L_i"))
+
+
+def _with_lumped_aliases(figs: dict) -> dict:
+    for lumped, own in _LUMPED_ALIASES:
+        if lumped not in figs and own in figs:
+            figs[lumped] = figs[own]
+    return figs
+
+
 def part_summary(ident) -> PartSummary:
     """Return the summary of an identification.
 
@@ -77,7 +91,7 @@ def part_summary(ident) -> PartSummary:
     ident : Identification
         The result of `zfit.identify`.
     """
-    figs: dict[str, tuple] = {k: (_finite(e.value), _finite(e.std)) for k, e in ident.parameters.items()}
+    figs: dict[str, tuple] = _with_lumped_aliases({k: (_finite(e.value), _finite(e.std)) for k, e in ident.parameters.items()})
     srf = ident.srf
     bound = _finite(srf.bound_hz) if srf.where == "above-band" else None
     figs["SRF"] = (_finite(srf.value_hz), _finite(srf.std_hz), bound)
@@ -106,7 +120,8 @@ def part_summary_from_json(doc: Mapping) -> PartSummary:
         The parsed JSON object (docs/identify.md).
     """
     params = doc.get("parameters")
-    figs: dict[str, tuple] = {k: _pair(v) for k, v in (params if isinstance(params, Mapping) else {}).items()}
+    figs: dict[str, tuple] = _with_lumped_aliases(
+        {k: _pair(v) for k, v in (params if isinstance(params, Mapping) else {}).items()})
     srf = doc.get("srf") if isinstance(doc.get("srf"), Mapping) else {}
     bound = _finite(srf.get("bound_hz")) if srf.get("where") == "above-band" else None
     figs["SRF"] = (_finite(srf.get("value_hz")), _finite(srf.get("std_hz")), bound)
