@@ -19,7 +19,7 @@ from ._circuits import CapacitorCircuit, Circuit, InductorCircuit
 from ._loss_circuits import ConstantLossCapacitor, RelaxingCoreInductor, ResonantSections, SkinEffectInductor
 
 __all__ = ["FAMILY_MODELS", "SHORT_NAMES", "loss_models_of", "named_models", "model_names", "is_lumped",
-           "family_choice"]
+           "family_choice", "characteristic_keys"]
 
 #: The choices of `--model` that are not one circuit.
 FAMILY_MODELS = ("auto", "inductor", "capacitor", "rational")
@@ -91,6 +91,31 @@ def family_choice(name: str) -> str:
     """Return `name` as a family choice (``auto``, ``inductor``...) when it is one in any case, else unchanged."""
     key = _canonical(name)
     return key if key in FAMILY_MODELS else name
+
+
+def characteristic_keys(circuit: Circuit) -> tuple[str, ...]:
+    """Return the parameters that make a loss model more than a lumped circuit.
+
+    A skin-effect winding's corner f_c, a relaxing core's L_inf and f_r, a
+    constant loss tangent's D, every element of the resonant sections: where
+    the sweep does not resolve them, the model only mimics a lumped circuit
+    (a core relaxing below the band is a series resistance).  None for the
+    lumped circuits.
+
+    Parameters
+    ----------
+    circuit : Circuit
+        Any circuit of this module.
+    """
+    if isinstance(circuit, SkinEffectInductor):
+        return ("f_c",)
+    if isinstance(circuit, RelaxingCoreInductor):
+        return ("L_inf", "f_r")
+    if isinstance(circuit, ConstantLossCapacitor):
+        return ("D",)
+    if isinstance(circuit, ResonantSections):
+        return tuple(k for k in circuit.keys if k != "R_dc")
+    return ()
 
 
 def is_lumped(circuit: Circuit) -> bool:

@@ -59,8 +59,8 @@ _OPTIONAL_SCREEN = 0.25
 # for four or five parameters to win the BIC margin.
 _LOSS_SCREEN = 1.3
 
-# A loss model competes only when the sweep resolves every one of its
-# parameters to this relative uncertainty (the resolution threshold of
+# A loss model competes only when the sweep resolves the parameters that make
+# it one to this relative uncertainty (the resolution threshold of
 # zfit.fit._fisher).
 _LOSS_RESOLVED = 1.0 / 3.0
 
@@ -227,18 +227,22 @@ def _fit_loss(circuit, obs, rdc, rdc_std, fewer=None):
         return None
 
 
-def _every_parameter_resolved(ref) -> bool:
-    """Whether each parameter's relative uncertainty is below `_LOSS_RESOLVED`."""
+def _loss_resolved(ref) -> bool:
+    """Whether the parameters that make a loss model what it is have relative uncertainties below `_LOSS_RESOLVED`."""
+    from ..fit._models import characteristic_keys
+
+    idx = [ref.circuit.keys.index(k) for k in characteristic_keys(ref.circuit)]
     with np.errstate(all="ignore"):
-        rel = np.sqrt(np.diag(ref.log_cov))
+        rel = np.sqrt(np.diag(ref.log_cov))[idx]
     return bool(np.all(np.isfinite(rel) & (rel < _LOSS_RESOLVED)))
 
 
 def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple:
     """Refine each circuit in turn, resonant sections grown from the fit with one section fewer.
 
-    With `resolved_only`, a fit with a parameter the sweep does not resolve
-    is dropped: a relaxation or a skin-effect corner outside the band only
+    With `resolved_only`, a fit whose characteristic parameters
+    (`zfit.fit._models.characteristic_keys`) the sweep does not resolve is
+    dropped: a relaxation or a skin-effect corner outside the band only
     mimics a lumped element (a Debye core relaxing below the band is a
     series resistance), which the lumped circuits already say more simply.
     """
@@ -252,7 +256,7 @@ def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple
             continue
         if isinstance(circuit, ResonantSections):
             sections[circuit.n_sections] = ref
-        if not resolved_only or _every_parameter_resolved(ref):
+        if not resolved_only or _loss_resolved(ref):
             out.append(ref)
     return tuple(out)
 

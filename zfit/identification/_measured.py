@@ -14,7 +14,9 @@ inverse-variance weights of local regression [2]_). The window is a span in
 log-frequency (``half_span_decades``, default 0.04 decade either side),
 widened where needed to hold at least two neighbours on each side, so that a
 linear sweep (dense at the top, sparse at the bottom) is smoothed over the
-same relative bandwidth everywhere. The estimate is linear in the data,
+same relative bandwidth everywhere, and narrowed on a dense sweep to hold
+about 64 points (`_MAX_WINDOW`). The figures of a whole sweep are computed
+for all windows at once (`_smooth_grid`). The estimate is linear in the data,
 ``y_hat = sum a_i y_i``, so its variance ``sum a_i^2 s_i^2`` carries the
 variance reduction of the smoothing. Where the local quadratic does not hold
 (reduced chi-square of the window above 4: a resonance narrower than the
@@ -77,6 +79,10 @@ _LN10 = math.log(10.0)
 _RESOLVED_K = 2.0  # a loss figure below 2 std is below resolution
 _NOISE_K = 3.0  # a reactance beyond 3 std is resolved
 _ZRATIO = 1.0  # |Z| at a resonance against the low-frequency trend
+# The smoothing window holds at most about this many points: on a dense sweep
+# (20 001 linear points) 0.04 decades would hold thousands and cost O(N^2)
+# for a variance already far below what a few dozen points give.
+_MAX_WINDOW = 64
 
 
 @dataclass(frozen=True)
@@ -120,8 +126,9 @@ def _local_weights(x, s, x0, half_span, min_points=5):
     """Return the weights a (y_hat(x0) = a @ y) of the local quadratic, and the window."""
     d = np.abs(x - x0)
     order = np.argsort(d)
-    # At least `min_points` points (two neighbours each side in the interior).
-    h = max(half_span, d[order[min(min_points - 1, x.size - 1)]] * 1.0001)
+    # At least `min_points` points (two neighbours each side in the interior), at most about `_MAX_WINDOW`.
+    h = min(half_span, d[order[min(_MAX_WINDOW - 1, x.size - 1)]] * 1.0001)
+    h = max(h, d[order[min(min_points - 1, x.size - 1)]] * 1.0001)
     idx = np.nonzero(d <= h)[0]
     u = (x[idx] - x0) / h
     w = (1.0 - np.abs(u) ** 3) ** 3 + 1e-3  # tricube, never exactly zero at the edge
@@ -172,6 +179,87 @@ def _smooth(x, r, xr, s_part, x0, half_span, min_points=5):
     # R and X share the weights' support; the larger variance is stated for both (circular noise).
     chi = (cr + cx) / (2 * dof) if dof > 0 else math.nan
     return rh, xh, max(vr, vx), chi
+
+
+def _smooth_grid(x, r, xr, s, half_span, min_points=5):
+    """`_smooth` at every point of the sweep at once: (R_hat, X_hat, var, chi) arrays.
+
+    The same local quadratic after the local power law as `_smooth_part`,
+    computed for many windows together on a padded (points x window) array
+    (the windows are contiguous runs of the sorted log-frequencies), in
+    blocks of rows that keep the array near a million entries.
+    """
+    n = x.size
+    # The window's half-width: `half_span`, narrowed to hold about `_MAX_WINDOW` points on a dense
+    # sweep, widened to hold `min_points` (as `_local_weights`).
+    def kth_distance(k):
+        off = np.arange(-(k - 1), k)
+        nb = np.arange(n)[:, None] + off[None, :]
+        dn = np.where((nb >= 0) & (nb < n), np.abs(x[np.clip(nb, 0, n - 1)] - x[:, None]), np.inf)
+        return np.sort(dn, axis=1)[:, min(k, n) - 1] * 1.0001
+
+    h = np.maximum(np.minimum(half_span, kth_distance(_MAX_WINDOW)), kth_distance(min_points))
+    lo = np.searchsorted(x, x - h, "left") - 1
+    hi = np.searchsorted(x, x + h, "right") + 1
+    out = np.empty((4, n))
+    rows = max(1, 1_000_000 // int(np.max(hi - lo)))
+    for a in range(0, n, rows):
+        b = min(n, a + rows)
+        out[:, a:b] = _smooth_rows(x, r, xr, s, h[a:b], lo[a:b], hi[a:b], np.arange(a, b))
+    return out[0], out[1], out[2], out[3]
+
+
+def _smooth_rows(x, r, xr, s, h, lo, hi, at):
+    """`_smooth_grid` for the windows centred on the points `at`."""
+    n = x.size
+    x0 = x[at]
+    cols = lo[:, None] + np.arange(int(np.max(hi - lo)))[None, :]
+    inside = (cols >= 0) & (cols < n)
+    cols = np.clip(cols, 0, n - 1)
+    xw = x[cols]
+    m = inside & (np.abs(xw - x0[:, None]) <= h[:, None])
+    count = m.sum(axis=1)
+    u = np.where(m, (xw - x0[:, None]) / h[:, None], 0.0)
+    tri = np.where(m, (1.0 - np.abs(u) ** 3) ** 3 + 1e-3, 0.0)
+    sw = s[cols]
+    u2 = u * u
+    powers = (1.0, u, u2, u2 * u, u2 * u2)
+
+    def part(y):
+        yw = y[cols]
+        # The local power law (`_power_slope`), 0 where y changes sign in the window.
+        same = np.all(np.where(m, yw > 0, True), axis=1) | np.all(np.where(m, yw < 0, True), axis=1)
+        wm = np.where(m, (yw / sw) ** 2, 0.0)
+        with np.errstate(all="ignore"):
+            xm = np.sum(wm * xw, axis=1) / np.sum(wm, axis=1)
+            dx = np.where(m, xw - xm[:, None], 0.0)
+            den = np.sum(wm * dx**2, axis=1)
+            ly = np.where(m, np.log(np.abs(np.where(m, yw, 1.0))), 0.0)
+            k = np.sum(wm * dx * ly, axis=1) / den
+        k = np.where(same & (count >= 2) & (den > 0) & np.isfinite(k), k, 0.0)
+        scale = np.exp(-k[:, None] * (xw - x0[:, None]))
+        ys, ss = yw * scale, sw * scale
+        w = np.where(m, tri / ss**2, 0.0)
+        # Normal equations of the weighted quadratic from the moments sum(w u^p).
+        mom = [np.sum(w * u2p, axis=1) for u2p in powers]
+        M = np.stack([np.stack(mom[i:i + 3], axis=-1) for i in range(3)], axis=-2)
+        wy = w * ys
+        b = np.stack([np.sum(wy, axis=1), np.sum(wy * u, axis=1), np.sum(wy * u2, axis=1)], axis=-1)
+        with np.errstate(all="ignore"):
+            minv = np.linalg.inv(M)
+        c0 = minv[:, 0, :]
+        a = w * (c0[:, :1] + c0[:, 1:2] * u + c0[:, 2:] * u2)
+        coef = np.einsum("nij,nj->ni", minv, b)
+        fit = coef[:, :1] + coef[:, 1:2] * u + coef[:, 2:] * u2
+        resid = np.where(m, (ys - fit) / ss, 0.0)
+        return np.sum(a * ys, axis=1), np.sum(a**2 * ss**2, axis=1), np.sum(resid**2, axis=1)
+
+    rh, vr, cr = part(r)
+    xh, vx, cx = part(xr)
+    dof = count - 3
+    with np.errstate(all="ignore"):
+        chi = np.where(dof > 0, (cr + cx) / (2 * dof), np.nan)
+    return rh, xh, np.maximum(vr, vx), chi
 
 
 @dataclass(frozen=True)
@@ -309,14 +397,13 @@ def measured_figures(f_hz, z_ohm, sigma_ohm, half_span_decades: float = 0.04) ->
     f, z, s = _arrays(f_hz, z_ohm, sigma_ohm)
     x = np.log(f)
     h = half_span_decades * _LN10
-    out = np.empty((4, f.size))
-    ok = np.ones(f.size, bool)
-    for i in range(f.size):
-        rh, xh, var, chi = _smooth(x, z.real, z.imag, s, x[i], h)
-        if not np.isfinite(chi) or chi > 4.0:
-            rh, xh, var, ok[i] = z.real[i], z.imag[i], s[i] ** 2, False
-        out[:, i] = rh, xh, math.sqrt(var), 0.0
-    return MeasuredFigures(f, out[0], out[1], out[2], ok, float(half_span_decades))
+    if f.size < 5:
+        rh, xh, var, chi = (np.array(v) for v in zip(*(_smooth(x, z.real, z.imag, s, xi, h) for xi in x)))
+    else:
+        rh, xh, var, chi = _smooth_grid(x, z.real, z.imag, s, h)
+    ok = np.isfinite(chi) & (chi <= 4.0) & np.isfinite(rh) & np.isfinite(xh) & np.isfinite(var)
+    rh, xh, var = np.where(ok, rh, z.real), np.where(ok, xh, z.imag), np.where(ok, var, s**2)
+    return MeasuredFigures(f, rh, xh, np.sqrt(var), ok, float(half_span_decades))
 
 
 def spot_figures(f_hz, z_ohm, sigma_ohm, at_hz: float, half_span_decades: float = 0.04) -> dict:

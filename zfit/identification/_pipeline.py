@@ -308,6 +308,7 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     from ._few_points import FEW_POINTS, few_point_identification
     from ._measured_report import srf_with_measurement
     from ._merit import srf_of_circuit
+    from ._model_error import split_band_check, split_band_note
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
     from ..fit._models import named_models
@@ -366,8 +367,12 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     adq = adequacy(sweep.f_hz, vb.energy, chosen.reduced_chi2, chosen.rows - chosen.circuit.n_params)
     if (i0, i1) == (0, sweep.n_points):  # a narrower valid band has its own note (_band)
         notes.extend(adequacy_notes(adq, chosen.circuit.topology))
-    # The model-error term is already in the estimates: the least squares scales its covariance by the
-    # reduced chi-square (fit/_lsq.refine), so a structured residual widens every uncertainty once.
+    # The model-error terms: the least squares scales its covariance by the reduced chi-square
+    # (fit/_lsq.refine); the same circuit over two halves of its band widens what its form biases.
+    split = split_band_check(chosen, obs, fitted_mask, picked.prior)
+    chosen = split.refinement
+    if split.widened:
+        notes.append(split_band_note(split, chosen.circuit.topology))
     est = parameter_estimates(chosen, sweep, fitted_mask)
     notes.extend(parameter_notes(est, rdc))
     pull = rdc_note(chosen, picked.prior, rdc)
@@ -393,7 +398,7 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
         valid_band_hz=valid, fitted_band_hz=fitted_band, reduced_chi_square=chosen.reduced_chi2,
         domain="S" if obs.on_s else "Z", rational_rms_normalized_residual=rat_rms,
         rational_poles=None if rational is None else n_poles_of(rational), worse_than_rational=bool(worse),
-        starts=chosen.starts, adequacy=adq,
+        starts=chosen.starts, adequacy=adq, split_band=split,
     )
     candidates = tuple(
         Candidate(ref.circuit.topology, ref.circuit.n_params, b, ref.rms_normalized_residual,

@@ -26,6 +26,7 @@ if TYPE_CHECKING:
     from ..fit._vectfit import RationalModel
     from ._adequacy import Adequacy
     from ._measured_report import MeasuredReadings
+    from ._model_error import SplitBandCheck
 
 __all__ = ["Identification", "FitQuality", "Candidate", "ModelChoice", "ParameterMap", "SCHEMA"]
 
@@ -139,6 +140,9 @@ class FitQuality:
     adequacy : Adequacy or None
         Where the circuit holds within the noise (log-frequency span) and the
         model-error factor of its uncertainties (`_adequacy`).
+    split_band : SplitBandCheck or None
+        The circuit refitted over the lower and upper part of its band, and
+        the parameters whose uncertainty that widened (`_model_error`).
     """
 
     rms_normalized_residual: float
@@ -155,6 +159,7 @@ class FitQuality:
     worse_than_rational: bool = False
     starts: int = 0
     adequacy: Adequacy | None = None
+    split_band: SplitBandCheck | None = None
 
     def to_dict(self) -> dict:
         """Return the ``fit`` object of the JSON contract."""
@@ -175,6 +180,8 @@ class FitQuality:
         }
         if self.adequacy is not None:
             out.update(self.adequacy.to_dict())
+        if self.split_band is not None:
+            out["split_band_check"] = self.split_band.to_dict()
         return out
 
 
