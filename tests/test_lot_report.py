@@ -12,6 +12,7 @@ from typer.testing import CliRunner
 
 from zfit.cli._app import app
 from zfit.io._limits_file import parse_limits
+from zfit.lot._lot_files import DECISION_RULE, MEASUREMENT_LIMITED_RULE
 from zfit.lot._part_summary import PartSummary
 from zfit.lot._rows import part_row
 from zfit.lot._statistics import lot_summary
@@ -66,7 +67,8 @@ def _table(root, caption):
 
 def test_lot_report_tables_hold_the_lot_numbers(lot):
     rows, summary, limits, values, u = lot
-    page = lot_report_html(rows, summary, limits, command="zfit batch sweeps --out out --limits limits.toml")
+    page = lot_report_html(rows, summary, limits, decision_rule=DECISION_RULE, limited_rule=MEASUREMENT_LIMITED_RULE,
+                           command="zfit batch sweeps --out out --limits limits.toml")
     root = ET.fromstring(page.encode("utf-8"))
     head, body = _table(root, "process capability")
     col = {h: i for i, h in enumerate(head)}
@@ -109,14 +111,14 @@ def test_measurement_limited_capability_is_said(lot):
             figs["SRF"] = (figs["SRF"][0], 5e6, None)  # u = 5 MHz > the lot's 1.5 MHz spread
             worse.append(r.__class__(**{**r.__dict__, "figures": figs}))
     summary = lot_summary(worse, limits)
-    page = lot_report_html(worse, summary, limits)
+    page = lot_report_html(worse, summary, limits, limited_rule=MEASUREMENT_LIMITED_RULE)
     root = ET.fromstring(page.encode("utf-8"))
     head, body = _table(root, "process capability")
     srf = next(r for r in body if r[0] == "SRF")
     q = next(q for q in summary.quantities if q.name == "SRF")
     assert q.measurement_limited is True
     assert srf[head.index("note")] == "limited by the measurement"
-    assert "Limited by the measurement" in page
+    assert "Limited by the measurement: true when std &lt;= u_rms" in page  # (HTML-escaped)
 
 
 def test_histograms_draw_limits_and_guard_bands(lot):
@@ -151,7 +153,8 @@ def test_lot_report_renders_on_one_page(lot, tmp_path):
     exe = _chromium()
     rows, summary, limits, _, _ = lot
     path = tmp_path / "lot.html"
-    path.write_text(lot_report_html(rows, summary, limits), encoding="utf-8")
+    path.write_text(lot_report_html(rows, summary, limits, decision_rule=DECISION_RULE,
+                                    limited_rule=MEASUREMENT_LIMITED_RULE), encoding="utf-8")
     pdf, png = tmp_path / "lot.pdf", tmp_path / "lot.png"
     base = [exe, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
             "--disable-background-networking", "--disable-component-update", "--disable-sync",

@@ -161,7 +161,10 @@ def _write_report(path: Path, result, limits, out: Path) -> None:
     from ..outputs._lot_report import lot_report_html
     from ._common import command_line
 
-    text = lot_report_html(result.rows, result.lot, limits, command=command_line())
+    from ..lot._lot_files import DECISION_RULE, MEASUREMENT_LIMITED_RULE
+
+    text = lot_report_html(result.rows, result.lot, limits, decision_rule=DECISION_RULE,
+                           limited_rule=MEASUREMENT_LIMITED_RULE, command=command_line())
     write_atomic(path, text, force=True)  # checked before the run (_report_target)
     if _inside(path, out):
         manifest = read_manifest(out, force=True)

@@ -97,7 +97,8 @@ def _not_passed(rows):
     return Table(("part", "verdict", "why"), cells, nowrap=(1,), caption=f"{len(bad)} part(s) did not pass")
 
 
-def lot_report(rows: Sequence, lot, limits=None, *, command=None, title: str = ""):
+def lot_report(rows: Sequence, lot, limits=None, *, decision_rule: str = "", limited_rule: str = "", command=None,
+               title: str = ""):
     """Return the `Report` of a lot.
 
     Parameters
@@ -108,12 +109,16 @@ def lot_report(rows: Sequence, lot, limits=None, *, command=None, title: str = "
         Their statistics (`BatchResult.lot`).
     limits : Limits, optional
         The limits the lot was checked against (their guard bands are drawn).
+    decision_rule, limited_rule : str
+        The decision rule and the rule of a measurement-limited capability
+        in words, as the lot's files state them
+        (`zfit.lot._lot_files.DECISION_RULE`, `MEASUREMENT_LIMITED_RULE`;
+        the lot stage comes after this one, so the caller passes them).
     command : str or sequence of str, optional
         The command line that reproduced the run.
     title : str
         The headline; the limits file's title, else "Lot of N parts".
     """
-    from ..lot._lot_files import DECISION_RULE, MEASUREMENT_LIMITED_RULE
     from ._pages import _command_text
     from ._report import Report, Section
 
@@ -129,14 +134,14 @@ def lot_report(rows: Sequence, lot, limits=None, *, command=None, title: str = "
     facts += [(k, str(v.get(k, 0))) for k in ("pass", "indeterminate", "fail", "error") if lot.limits_path or k == "error"]
     if lot.limits_path:
         facts += [("limits file", lot.limits_path), ("guard band", f"k = {lot.guard_band_k:g} standard uncertainties"),
-                  ("decision rule", DECISION_RULE)]
+                  ("decision rule", decision_rule)]
     sections.append(Section("Verdicts", facts=tuple(facts), css_class="full twocol"))
     limited = [q for q in lot.quantities if q.cpk is not None and q.measurement_limited]
     notes = ["Cp = (USL - LSL)/(6 s), Cpk = min(USL - mean, mean - LSL)/(3 s), s = the lot's sample standard "
              "deviation, for a normal distribution (Montgomery 2013, 8.3; ISO 22514-2); u_rms = RMS of the parts' "
              "standard uncertainties."]
     if limited:
-        notes.append("Limited by the measurement: " + MEASUREMENT_LIMITED_RULE + ". Here: "
+        notes.append("Limited by the measurement: " + (limited_rule + ". Here: " if limited_rule else "")
                      + "; ".join(f"{q.name} (lot std {_num(q.std, q.unit)} <= u_rms {_num(q.u_rms, q.unit)})"
                                  for q in limited) + ".")
     sections.append(Section("Capability", tables=(_capability_table(lot),), notes=tuple(notes), css_class="full"))
@@ -150,8 +155,10 @@ def lot_report(rows: Sequence, lot, limits=None, *, command=None, title: str = "
     return Report(title=title, subtitle=sub, verdict=verdict, sections=tuple(sections), command=_command_text(command))
 
 
-def lot_report_html(rows: Sequence, lot, limits=None, *, command=None, title: str = "") -> str:
+def lot_report_html(rows: Sequence, lot, limits=None, *, decision_rule: str = "", limited_rule: str = "",
+                    command=None, title: str = "") -> str:
     """Return the lot report as one self-contained HTML page (see `lot_report`)."""
     from ._report import report_html
 
-    return report_html(lot_report(rows, lot, limits, command=command, title=title))
+    return report_html(lot_report(rows, lot, limits, decision_rule=decision_rule, limited_rule=limited_rule,
+                                  command=command, title=title))
