@@ -44,7 +44,7 @@ def test_time_record_tail_is_drawn_not_ramped(rng):
     idx = np.rint(x / dt).astype(int)
     np.testing.assert_array_equal(y, v[idx])  # every point a sample of the record
     assert idx[-1] == n - 1  # the record's last sample ends the line
-    last_edge = 6160e-6 - 20e-6 * 0  # falls at t = 6.16 ms (period 40 us: 154 periods), inside the tail
+    last_edge = 6160e-6  # the wave falls at even multiples of 20 us: 6.16 ms lies in the tail (6.0-6.18 ms)
     tail = x > 150_000 * dt
     assert tail.sum() >= 2 * (4499 // 103) - 2  # the tail is drawn run by run, not as two points
     # After the last edge the line stays at the low level: no ramp from 5 V down to 0 V.

@@ -226,7 +226,7 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
         rows = tuple(
             (k, estimate_text(e), relative_text(e), _ROLE.get(k, "")) for k, e in params.items()
         )
-        # The drawing goes under the shorter of the two top blocks (the page is one page).
+        # The drawing goes under the table, unless the spot readouts already make that block the longer.
         left = bool(schematic) and not extra
         sections.append(Section(
             "Equivalent circuit",
