@@ -212,3 +212,78 @@ def test_small_dimensionless_values_share_one_power_of_ten():
     assert _dimensionless(SimpleNamespace(value=123456.0, std=789.0)) == "(123.46 ± 0.79)e3"
     assert _dimensionless(SimpleNamespace(value=0.0176, std=0.0003)) == "0.01760 ± 0.00030"
     assert _percent_std(8.198770868, 0.0826699) == "8.199 ± 0.083 %"
+
+
+def _print_pages(html_text, tmp_path, name="page"):
+    """Print a page with headless Chromium (its default paper, US Letter) and count the PDF's pages."""
+    exe = _chromium()
+    path = tmp_path / f"{name}.html"
+    path.write_text(html_text, encoding="utf-8")
+    pdf = tmp_path / f"{name}.pdf"
+    subprocess.run([exe, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+                    "--disable-background-networking", "--disable-component-update", "--disable-sync",
+                    f"--user-data-dir={tmp_path / 'profile'}", f"--print-to-pdf={pdf}", "--no-pdf-header-footer",
+                    path.as_uri()], capture_output=True, timeout=120, check=False)
+    return len(re.findall(rb"/Type\s*/Page(?!s)", pdf.read_bytes()))
+
+
+def _panel_heights_in(page, figure):
+    """Heights on paper (inches) of the axes of one inline figure of the page.
+
+    The axes' background patch is the first path of each ``<figure>-axes_N``
+    group of matplotlib's SVG (in pt); the figure is shown at the column's
+    width, 186 mm (the page's max-width), and printed at the print zoom 0.9
+    (both in zfit.outputs._report.PAGE_CSS).
+    """
+    svg = re.search(r'<svg viewBox="0 0 ([\d.]+) ([\d.]+)"[^>]*aria-label="' + re.escape(figure), page)
+    assert svg, figure
+    start = svg.start()
+    end = page.index("</svg>", start)
+    body = page[start:end]
+    width_pt = float(svg.group(1))
+    scale = (186 / 25.4) / (width_pt / 72.0) * 0.9
+    heights = []
+    for m in re.finditer(r'-axes_\d+">\s*<g id="[^"]*-patch_\d+">\s*<path d="M [\d.]+ ([\d.]+)\s*L [\d.]+ [\d.]+\s*'
+                         r'L [\d.]+ ([\d.]+)', body):
+        heights.append(abs(float(m.group(1)) - float(m.group(2))) / 72.0 * scale)
+    return heights
+
+
+def test_report_impedance_panels_are_readable(page):
+    # Phase and residual panels used to print 0.5 in tall, their tick labels run together.
+    # Five 7.5 pt tick labels with gaps need about 0.6 in ("from memory" of print practice).
+    h = _panel_heights_in(page, "impedance against frequency")
+    assert len(h) == 3
+    assert h[0] >= 1.0 and h[1] >= 0.6 and h[2] >= 0.6
+
+
+@pytest.fixture(scope="module")
+def capture_with_shunt():
+    # The demo's capture: a 4.7 mH coil driven by a 10 kHz square wave through a 1 kohm
+    # sense resistor (demo_sweeps/make_demo_capture.py simulates it with scipy.signal).
+    from pathlib import Path
+
+    from zfit.capture._analysis import analyse_capture
+    from zfit.io._capture import read_capture
+
+    path = Path(__file__).parents[1] / "demo_sweeps" / "coil_4m7_square_1k.csv"
+    return analyse_capture(read_capture(path), input="CH1", output="CH2", shunt_ohm=1e3)
+
+
+def test_capture_report_is_one_page(capture_with_shunt, tmp_path):
+    from zfit.outputs._pages import step_report
+
+    text = report_html(step_report(capture_with_shunt, "zfit step coil_4m7_square_1k.csv -i CH1 -o CH2 --shunt 1k"))
+    ET.fromstring(text.encode("utf-8"))
+    # The time record, the response and the impedance are on it, and the facts in two columns.
+    for label in ("impedance against frequency", "The record:", "H = V_out/V_in"):
+        assert label in text
+    assert text.count('<div class="facts-2">') == 1
+    h = _panel_heights_in(text, "impedance against frequency")
+    assert len(h) == 3 and min(h[1:]) >= 0.5
+    assert 4.6 < capture_with_shunt.identification.parameters["L"].value * 1e3 < 4.8  # the demo's 4.7 mH
+    assert _print_pages(text, tmp_path, "capture") == 1
+
+
+def test_capacitor_report_is_one_page(capacitor, tmp_path):
+    assert _print_pages(report_html(identification_report(capacitor, "zfit identify c.csv")), tmp_path, "cap") == 1

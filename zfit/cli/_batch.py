@@ -36,8 +36,9 @@ def batch_command(
     at: Optional[List[str]] = typer.Option(None, "--at", help="Extra spot frequency for the summary (R, X, L_eff or C_eff, Q or D), e.g. 1M; repeatable."),
     jobs: Optional[int] = typer.Option(None, "--jobs", "-j", help="Local worker processes (default: all cores; 1 = in this process)."),
     cluster: Optional[str] = typer.Option(None, "--cluster", help="Address of a Dask distributed scheduler (tcp://host:8786) to run the parts on; needs the 'cluster' extra and the same file paths on every worker."),
-    plot: bool = typer.Option(False, "--plot", help="Also write a plot per part."),
+    plot: bool = typer.Option(False, "--plot", help="Also write the plots of each part into --out: <part>.png and <part>-q or <part>-esr-d (as identify --plot; here a flag, the names come from the parts)."),
     plot_format: str = typer.Option("png", "--plot-format", help="png | svg."),
+    report: Optional[Path] = typer.Option(None, "--report", help="Write the lot report here (.html): one self-contained page with a histogram of each limited quantity (limits, guard bands), the capability table and the parts that did not pass."),
     connection: ConnectionOpt = None,
     noise_rel: NoiseRelOpt = None,
     noise_floor: NoiseFloorOpt = None,
@@ -85,6 +86,7 @@ def batch_command(
 
         raise ZfitInputError(f"--model {model!r}: use auto, inductor, capacitor or rational")
     lim = read_limits(limits) if limits is not None else None
+    report_path = _report_target(report, out, force) if report is not None else None
     read = ReadOptions(
         connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns,
         open_=None if open_ is None else str(Path(open_).resolve()),
@@ -113,6 +115,58 @@ def batch_command(
         more = f" (and {len(result.unwritten) - 1} more file(s))" if len(result.unwritten) > 1 else ""
         raise ZfitInputError(result.unwritten[0] + more)
     echo(f"wrote {result.summary_path}, {result.lot_csv_path.name}, {result.lot_json_path.name}")
+    if report_path is not None:
+        _write_report(report_path, result, lim, out)
+        echo(f"wrote {report_path}")
     v = result.lot.verdicts
     if v.get("error", 0) or v.get("fail", 0) or v.get("indeterminate", 0):
         raise typer.Exit(1)
+
+
+def _report_target(report: Path, out: Path, force: bool) -> Path:
+    """Return the lot report's path once it may be written, else raise (before the run).
+
+    In the output folder the report is one of the batch's files (its
+    manifest lists it, so a rerun replaces it); elsewhere it is the user's
+    file like any other output, replaced only with --force.
+    """
+    import os
+
+    from ..lot._manifest import read_manifest
+    from ..outputs._outputs import check_output_path, check_output_suffix
+
+    path = check_output_suffix(report, "report")
+    if _inside(path, out) and os.path.lexists(path) and not force:
+        if not read_manifest(out).owns(path):
+            from .._errors import OutputExistsError
+
+            raise OutputExistsError(path)
+        return path
+    return check_output_path(path, force)
+
+
+def _inside(path: Path, folder: Path) -> bool:
+    try:
+        path.resolve().relative_to(folder.resolve())
+    except ValueError:
+        return False
+    return True
+
+
+def _write_report(path: Path, result, limits, out: Path) -> None:
+    import hashlib
+
+    from .._atomic import write_atomic
+    from ..lot._manifest import MANIFEST_NAME, manifest_text, read_manifest
+    from ..outputs._lot_report import lot_report_html
+    from ._common import command_line
+
+    from ..lot._lot_files import DECISION_RULE, MEASUREMENT_LIMITED_RULE
+
+    text = lot_report_html(result.rows, result.lot, limits, decision_rule=DECISION_RULE,
+                           limited_rule=MEASUREMENT_LIMITED_RULE, command=command_line())
+    write_atomic(path, text, force=True)  # checked before the run (_report_target)
+    if _inside(path, out):
+        manifest = read_manifest(out, force=True)
+        manifest.record(path, hashlib.sha256(text.encode("utf-8")).hexdigest())
+        write_atomic(out / MANIFEST_NAME, manifest_text(manifest), force=True)

@@ -43,7 +43,7 @@ def identify_command(
     rdc: Optional[str] = typer.Option(None, "--rdc", help="Measured DC resistance in ohm (four-wire ohmmeter), e.g. 25m: constrains R_s or ESR."),
     rdc_std: Optional[str] = typer.Option(None, "--rdc-std", help="Standard uncertainty of --rdc in ohm (default 1 % of it)."),
     json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.identify/1 JSON result here ('-' for standard output)."),
-    plot: Optional[Path] = typer.Option(None, "--plot", help="Write a plot of data, models and residuals (.png or .svg)."),
+    plot: Optional[Path] = typer.Option(None, "--plot", help="Write the plots (.png or .svg): --plot x.png writes x.png (|Z|, phase, residuals) and x-q.png (inductor) or x-esr-d.png (capacitor); each file written is listed."),
     netlist: Optional[Path] = typer.Option(None, "--netlist", help="Write a SPICE subcircuit of the model (.cir, .sp or .lib)."),
     netlist_kind: str = typer.Option(
         "auto", "--netlist-kind",

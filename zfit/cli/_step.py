@@ -41,7 +41,7 @@ def step_command(
     shunt: Optional[str] = typer.Option(None, "--shunt", help="Sense resistor in ohm at the part's return (e.g. 100, 2.2k): identify the part's impedance."),
     json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.step/1 JSON result here ('-' for standard output)."),
     response: Optional[Path] = typer.Option(None, "--response", help="Write the frequency response (CSV: f, |H| dB, phase, uncertainties, coherence, usable)."),
-    plot: Optional[Path] = typer.Option(None, "--plot", help="Write the figures (.png or .svg): time record, Bode, and with --shunt the impedance."),
+    plot: Optional[Path] = typer.Option(None, "--plot", help="Write the figures (.png or .svg): --plot x.png writes x.png (time record) and x-bode.png, and with --shunt x-sweep.png and x-q.png (or x-esr-d.png); each file written is listed."),
     netlist: Optional[Path] = typer.Option(None, "--netlist", help="With --shunt: write a SPICE subcircuit of the identified part (.cir, .sp or .lib)."),
     report: Optional[Path] = typer.Option(None, "--report", help="Write a self-contained HTML report (.html)."),
     inductance: Optional[str] = typer.Option(None, "--inductance", help="The coil's inductance in H (e.g. 25m): turns the ringing into its stray capacitance."),

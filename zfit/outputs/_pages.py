@@ -54,11 +54,6 @@ def _svg(plot, salt: str, label: str) -> str:
         _pyplot().close(plot)
 
 
-def _resize(plot, w, h):
-    plot.set_size_inches(w, h)
-    return plot
-
-
 def _merit_rows(result) -> list:
     merit = result.figures
     rows = []
@@ -204,7 +199,17 @@ def _spot_table(result):
     return Table(("f", *cols), rows, numeric=(1, 2, 3, 4), caption=caption), False
 
 
-def identification_report(result, command=None, *, netlist_text: str | None = None):
+#: Plot sizes on a page (inches): drawn at the size shown (the page's column is
+#: 186 mm = 7.3 in wide, a half column 3.6 in), so that text prints at its
+#: size and each panel keeps the height its ticks need (tests/test_report.py
+#: measures them).
+SWEEP_PAGE_SIZES = {"sweep": (7.3, 3.7), "q": (3.6, 2.2), "esr_d": (3.6, 2.4)}
+#: The same on a capture's page, which holds the capture's plots too.
+CAPTURE_PAGE_SIZES = {"sweep": (7.3, 3.4)}
+
+
+def identification_report(result, command=None, *, netlist_text: str | None = None, sizes: dict | None = None,
+                          drawing: bool = True):
     """Return the `Report` of an identification.
 
     Parameters
@@ -215,35 +220,45 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
         The command line that reproduced it.
     netlist_text : str, optional
         A SPICE netlist to print on the page.
+    sizes : dict, optional
+        Plot sizes in inches by name; `SWEEP_PAGE_SIZES` by default.
+    drawing : bool
+        Whether the page draws the circuit (a capture's page, which holds
+        more plots, leaves it out: the table names each element).
     """
     from ._report import FigureBlock, Report, Section, Table, facts
 
     sw = result.sweep
     fit = result.fit
     src = Path(str(sw.source)).name or str(sw.source)
-    plots = identification_plots(result, titles=False)
+    plots = identification_plots(result, titles=False, sizes={**SWEEP_PAGE_SIZES, **(sizes or {})})
     sections = []
 
     params = result.parameters
     spot, compact = _spot_table(result)
     extra = (spot,) if compact else ()
-    tree = schematic_tree(result)
+    tree = schematic_tree(result) if drawing else None
     schematic = ()
     if tree is not None:
         from ._plot_schematic import plot_schematic
 
-        # Drawn at the size it is shown (55 % of a column), so its labels print at the page's size.
+        # Drawn 1.95 in wide and shown at 48 % of a column (1.7 in): its labels print near the page's size.
         schematic = (FigureBlock(_svg(plot_schematic(tree, width_in=1.95), "schematic", "the circuit"),
-                                 "", width_pct=55),)
+                                 "", width_pct=48),)
     if params:
         rows = tuple(
             (k, estimate_text(e), relative_text(e), _ROLE.get(k, "")) for k, e in params.items()
         )
+        # The drawing goes under the table, unless the spot readouts already make that block the longer.
+        left = bool(schematic) and not extra
         sections.append(Section(
             "Equivalent circuit",
             tables=(Table(("", "value ± std. uncertainty", "rel.", ""), rows, numeric=(1, 2), nowrap=(3,),
                           caption=result.topology), *extra),
+            figures=schematic if left else (),
         ))
+        if left:
+            schematic = ()
     elif result.rational is not None:
         rm = result.rational
         prow = []
@@ -272,7 +287,7 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
         sections.append(Section("Warnings", notes=tuple(notes), css_class="warn"))
     sections.append(Section(
         "Impedance",
-        figures=(FigureBlock(_svg(_resize(plots.pop("sweep"), 7.3, 3.2), "sweep", "impedance against frequency"),
+        figures=(FigureBlock(_svg(plots.pop("sweep"), "sweep", "impedance against frequency"),
                  ("Measurement with ±2σ band, equivalent circuit (solid), rational model (dashed); below: normalised "
                   "residual against the 1σ and 3σ noise levels; shaded: outside the circuit's band of validity."
                   if params else "Measurement with ±2σ band and the rational model (dashed); below: normalised "
@@ -281,11 +296,12 @@ def identification_report(result, command=None, *, netlist_text: str | None = No
     ))
     for key, plot in plots.items():
         cap = ("Q = |X|/R below the SRF: measured (dots; line: rational model), circuit, and the textbook ωL/R_s, "
-               "which ignores C_p." if key == "q" else
-               "ESR (Re Z) and D = tan δ = R/|X|, measured and circuit.")
+               "which ignores C_p; band: ±2σ of one measured point." if key == "q" else
+               "ESR (Re Z) and D = tan δ = R/|X|, measured and circuit; band: ±2σ of one measured point; "
+               "D is not shown above the SRF.")
         sections.append(Section(
             "Quality factor" if key == "q" else "Losses",
-            figures=(FigureBlock(_svg(_resize(plot, 3.6, 2.25 if key == "q" else 2.35), key, cap), cap),),
+            figures=(FigureBlock(_svg(plot, key, cap), cap),),
         ))
     chosen = [c for c in result.candidates if c.chosen]
     others = sorted((c for c in result.candidates if not c.chosen), key=lambda c: c.bic)
@@ -381,27 +397,35 @@ def step_report(result, command=None, *, netlist_text: str | None = None):
 
     d = step_page_data(result)
     ident = d.get("identification")
-    facts_section = Section("Time-domain figures (IEEE Std 181)", facts=tuple(_step_facts(result)))
-    plots = step_plots(result, titles=False, impedance=False, sizes={"time": (3.6, 2.9), "bode": (3.6, 3.0)})
+    # Drawn at the size shown; with an impedance the page holds it too, so the capture's plots are shorter.
+    h_time, h_bode = (2.2, 2.2) if ident is not None else (2.9, 3.0)
+    plots = step_plots(result, titles=False, impedance=False, sizes={"time": (3.6, h_time), "bode": (3.6, h_bode)})
     capture_sections = []
-    for key, title, cap, h in (
-        ("time", "Time record", "The record: state levels (dashed), edge times (ticks), fitted response (dash-dot).", 2.9),
+    for key, title, cap in (
+        ("time", "Time record", "The record: state levels (dashed), edge times (ticks), fitted response (dash-dot)."),
         ("bode", "Frequency response", "H = V_out/V_in from all edges (H1) with ±2σ band; shaded: usable band; "
-                                       "coherence below.", 3.0),
+                                       "coherence below."),
     ):
         if key in plots:
-            plot = _resize(plots.pop(key), 3.6, h)
-            capture_sections.append(Section(title, figures=(FigureBlock(_svg(plot, key, cap), cap),)))
-    sections = []
-    if ident is not None:
-        sub = [s for s in identification_report(ident, None, netlist_text=netlist_text).sections]
+            capture_sections.append(Section(title, figures=(FigureBlock(_svg(plots.pop(key), key, cap), cap),)))
+    if ident is None:
+        sections = [Section("Time-domain figures (IEEE Std 181)", facts=tuple(_step_facts(result)))] + capture_sections
+    else:
+        # One page: the circuit, the impedance, the capture's two plots, and one block of
+        # facts (the time-domain figures and the fit) in two columns.  The Q (or ESR/D)
+        # plot is the --plot file <stem>-q (-esr-d); its peak is among the figures.
+        sub = identification_report(ident, None, netlist_text=netlist_text, sizes=CAPTURE_PAGE_SIZES,
+                                    drawing=False).sections
+        by_title = {s.title: s for s in sub}
         head = [s for s in sub if s.title in ("Equivalent circuit", "Rational model", "Self-resonance and figures",
                                                "Warnings", "Impedance")]
-        rest = [s for s in sub if s not in head]
-        sections = head + capture_sections + [s for s in rest if s.title in ("Quality factor", "Losses")] + \
-            [facts_section] + [s for s in rest if s.title not in ("Quality factor", "Losses")]
-    else:
-        sections = [facts_section] + capture_sections
+        fit = by_title.get("Measurement and fit")
+        keep = ("noise model", "band of validity", "fitted over", "residual", "rational model", "model choice")
+        fit_facts = tuple((k, v) for k, v in (fit.facts if fit is not None else ()) if k in keep)
+        facts_section = Section("Time-domain figures (IEEE Std 181) and the fit",
+                                facts=tuple(_step_facts(result)) + fit_facts, css_class="full twocol")
+        tail = [s for s in sub if s.title in ("Spot readouts", "SPICE subcircuit")]
+        sections = head + capture_sections + [facts_section] + tail
     src = Path(str(d["source"])).name
     title = "Capture: " + (f"{ident.model}, " + next((f"{k} = {estimate_text(e)}" for k, e in ident.parameters.items()), "")
                            if ident is not None else src)

@@ -28,7 +28,7 @@ from .._units import PREFIXES
 
 __all__ = [
     "eng_tick", "envelope", "pyplot", "styled", "figure_grid", "apply_layout", "set_title", "legend_below",
-    "style_axis", "markevery", "shade_outside", "INK", "CIRCUIT", "RATIONAL", "MARK", "BAND", "SHADE",
+    "style_axis", "markevery", "shade_outside", "band_label", "percent_text", "place_label", "INK", "CIRCUIT", "RATIONAL", "MARK", "BAND", "SHADE",
 ]
 
 
@@ -88,28 +88,31 @@ def envelope(x, y, buckets: int = 1500):
     Returns
     -------
     (numpy.ndarray, numpy.ndarray)
-        The envelope; the input itself when it is short enough.
+        The envelope, every point a sample of the record, the record's last
+        sample last; the input itself when it is short enough.
     """
     x = np.asarray(x, dtype=float)
     y = np.asarray(y, dtype=float)
     n = y.size
     if n <= 2 * buckets:
         return x, y
-    k = n // buckets
-    m = k * buckets
-    yb = y[:m].reshape(buckets, k)
-    xb = x[:m].reshape(buckets, k)
+    # Every sample belongs to a run: the last run is padded with copies of
+    # the last sample (which change neither its minimum nor its maximum), so
+    # that the samples past the last whole run are drawn like the others,
+    # not collapsed into a straight line from the first to the last of them.
+    k = -(-n // buckets)
+    runs = -(-n // k)
+    yb = np.pad(y, (0, runs * k - n), mode="edge").reshape(runs, k)
     imin = np.argmin(yb, axis=1)
     imax = np.argmax(yb, axis=1)
-    first = np.minimum(imin, imax)
-    second = np.maximum(imin, imax)
-    rows = np.arange(buckets)
-    xe = np.column_stack([xb[rows, first], xb[rows, second]]).ravel()
-    ye = np.column_stack([yb[rows, first], yb[rows, second]]).ravel()
-    if m < n:
-        xe = np.concatenate([xe, x[m:][[0, -1]]])
-        ye = np.concatenate([ye, y[m:][[0, -1]]])
-    return xe, ye
+    start = np.arange(runs) * k
+    first = np.minimum(start + np.minimum(imin, imax), n - 1)
+    second = np.minimum(start + np.maximum(imin, imax), n - 1)
+    idx = np.column_stack([first, second]).ravel()
+    # The record's last sample closes the envelope where the axis ends.
+    if idx[-1] != n - 1:
+        idx = np.append(idx, n - 1)
+    return x[idx], y[idx]
 
 
 def pyplot():
@@ -260,3 +263,91 @@ def shade_outside(ax, f, band, label=None, gid=None):
             if gid:
                 span.set_gid(gid)
             first = False
+
+
+def band_label(of: str) -> str:
+    """Return the legend text of a +-2 sigma band: whose uncertainty it is.
+
+    Parameters
+    ----------
+    of : {'point', 'model'}
+        ``'point'``: the uncertainty of one measured point (what the scatter
+        of the points lies in, about 95 % of them for normal noise);
+        ``'model'``: that of the smooth model curve the band surrounds.
+    """
+    if of == "point":
+        return "±2σ of one measured point"
+    if of == "model":
+        return "±2σ of the rational model"
+    raise ValueError(f"band of {of!r}: use 'point' or 'model'")
+
+
+def percent_text(fraction: float) -> str:
+    """Return a fraction as a per-cent text with two significant digits (``0.0021`` -> ``"0.21 %"``)."""
+    if not math.isfinite(fraction):
+        return "? %"
+    return f"{100.0 * fraction:.2g} %"
+
+
+def _crossings(box, ax, renderer) -> int:
+    """Count the plotted points (and points along each segment) of `ax`'s lines inside `box` (display units)."""
+    n = 0
+    for line in ax.get_lines():
+        if not line.get_visible() or line.get_gid() in (None, ""):
+            continue
+        xy = line.get_transform().transform(np.column_stack([line.get_xdata(), line.get_ydata()]).astype(float))
+        xy = xy[np.isfinite(xy).all(axis=1)]
+        if xy.shape[0] >= 2:
+            # Points along each segment too, so that a sparse line is not stepped over.
+            t = np.linspace(0.0, 1.0, 5)[:, None, None]
+            xy = (xy[:-1][None] * (1 - t) + xy[1:][None] * t).reshape(-1, 2)
+        n += int(np.count_nonzero((xy[:, 0] >= box.x0) & (xy[:, 0] <= box.x1) & (xy[:, 1] >= box.y0)
+                                  & (xy[:, 1] <= box.y1)))
+    return n
+
+
+def place_label(ax, xy, text: str, gid: str | None = None):
+    """Annotate the data point `xy` where the text crosses no plotted line, the legend or the frame.
+
+    Tries positions around the point, nearest first, and keeps the first
+    whose box (with a small margin) holds no point of any line with a gid
+    and overlaps no legend; the least crowded one when none is free.  A
+    leader line joins a label set away from its point.  Call it after the
+    limits and the layout are final.
+
+    Returns
+    -------
+    matplotlib.text.Annotation
+    """
+    fig = ax.figure
+    apply_layout(fig)
+    fig.draw_without_rendering()  # where a loc="best" legend went
+    renderer = fig.canvas.get_renderer()
+    legends = [lg.get_window_extent(renderer) for lg in (ax.get_legend(), *fig.legends) if lg is not None]
+    frame = ax.get_window_extent(renderer)
+    best = None
+    for dx, dy in ((8, 8), (-8, 8), (8, -16), (-8, -16), (0, 22), (0, -28), (30, 22), (-30, 22), (30, -30),
+                   (-30, -30), (0, 40), (0, -44), (60, 34), (-60, 34), (60, -44), (-60, -44)):
+        # A leader line joins a label set away from its point.
+        far = abs(dx) > 8 or abs(dy) > 16
+        ann = ax.annotate(text, xy=xy, xytext=(dx, dy), textcoords="offset points", ha="left" if dx >= 0 else "right",
+                          va="bottom" if dy >= 0 else "top", fontsize=7.5, zorder=6,
+                          arrowprops={"arrowstyle": "-", "lw": 0.6, "color": MARK, "shrinkA": 0, "shrinkB": 4}
+                          if far else None,
+                          bbox={"boxstyle": "square,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.9})
+        box = ann.get_window_extent(renderer).expanded(1.04, 1.15)
+        inside = frame.x0 <= box.x0 and box.x1 <= frame.x1 and frame.y0 <= box.y0 and box.y1 <= frame.y1
+        score = _crossings(box, ax, renderer) + (0 if inside else 10_000) + 1000 * sum(
+            box.overlaps(lg) for lg in legends)
+        if best is None or score < best[0]:
+            if best is not None:
+                best[1].remove()
+            best = (score, ann)
+        else:
+            ann.remove()
+        if score == 0:
+            break
+    ann = best[1]
+    if gid:
+        ann.set_gid(gid)
+    return ann

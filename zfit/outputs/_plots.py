@@ -16,8 +16,8 @@ import math
 import numpy as np
 
 from ._plot_style import (
-    BAND, CIRCUIT, INK, MARK, RATIONAL, eng_tick, figure_grid, legend_below, markevery, set_title,
-    shade_outside, style_axis, styled,
+    BAND, CIRCUIT, INK, MARK, RATIONAL, SHADE, band_label, eng_tick, figure_grid, legend_below, markevery, percent_text,
+    place_label, set_title, shade_outside, style_axis, styled,
 )
 
 __all__ = ["plot_sweep", "plot_q", "plot_esr_d"]
@@ -76,11 +76,17 @@ def plot_sweep(
     f = np.asarray(f_hz, dtype=float)
     z = np.asarray(z_ohm, dtype=complex)
     sig = np.asarray(sigma_ohm, dtype=float)
-    fig, (ax_m, ax_p, ax_r) = figure_grid(width_in, height_in, [3.2, 1.4, 1.3])
+    # A short figure (a report's) gives phase and residual a larger share, so
+    # that each keeps the 0.7 in its five tick labels need.
+    fig, (ax_m, ax_p, ax_r) = figure_grid(width_in, height_in, [3.2, 1.4, 1.3] if height_in >= 5.5 else [2.1, 1.3, 1.3])
     mag = np.abs(z)
     s_mag = sig / math.sqrt(2.0)
     lo = np.maximum(mag - 2 * s_mag, mag * 1e-3)
-    band = ax_m.fill_between(f, lo, mag + 2 * s_mag, color=BAND, lw=0, label="measured ±2σ", zorder=1)
+    # On a log axis spanning decades a 0.1 % band is thinner than the line:
+    # the legend says how wide it is, so that its absence is not read as none.
+    rel = float(np.median(2 * s_mag / np.maximum(mag, 1e-300))) if f.size else 0.0
+    band = ax_m.fill_between(f, lo, mag + 2 * s_mag, color=BAND, lw=0,
+                             label=f"measured ±2σ (median ±{percent_text(rel)} of |Z|)", zorder=1)
     band.set_gid("measured-band")
     me = markevery(f.size)
     ax_m.plot(f, mag, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=me,
@@ -152,6 +158,7 @@ def plot_q(
     q_rational=None,
     peak: tuple[float, float] | None = None,
     f_max_hz: float | None = None,
+    band_of: str = "point",
     title: str = "",
     width_in: float = 7.2,
     height_in: float = 2.8,
@@ -166,8 +173,8 @@ def plot_q(
         Q of the measured part, |X|/R at each point (points with R <= 0 are
         left out of the plot: their Q is undefined).
     q_std : array_like, optional
-        Standard uncertainty of `q_rational` if given, else of `q_measured`;
-        a +-2 sigma band is drawn around that curve.
+        Standard uncertainty drawn as a +-2 sigma band around `q_rational`
+        if given, else around `q_measured`; `band_of` says whose it is.
     q_circuit : array_like, optional
         |X|/R of the equivalent circuit's impedance (follows the resonance).
     q_textbook : array_like, optional
@@ -181,6 +188,11 @@ def plot_q(
     f_max_hz : float, optional
         Highest frequency shown, normally the SRF: above it the part is
         capacitive and an inductor's Q means nothing.
+    band_of : {'point', 'model'}
+        Whose uncertainty `q_std` is: ``'point'``, that of one measured
+        point (the band the scatter of the dots lies in), or ``'model'``,
+        that of the smooth curve itself (the rational model's, from its
+        covariance, much narrower).  The legend says which.
     title : str
         Figure title.
     width_in, height_in : float
@@ -209,8 +221,10 @@ def plot_q(
     if q_std is not None:
         c = q if q_rational is None else q_rational
         okc = np.isfinite(c) & (c > 0)
-        lo = np.where(okc, np.maximum(c - 2 * q_std, c * 1e-2), np.nan)
-        b = ax.fill_between(f, lo, np.where(okc, c + 2 * q_std, np.nan), color=BAND, lw=0, label="measured ±2σ", zorder=1)
+        # Where Q - 2 sigma <= 0 the band reaches below the axis.
+        lo = np.where(okc, np.maximum(c - 2 * q_std, c * 1e-9), np.nan)
+        b = ax.fill_between(f, lo, np.where(okc, c + 2 * q_std, np.nan), color=BAND, lw=0, label=band_label(band_of),
+                            zorder=1)
         b.set_gid("q-band")
     if q_rational is None:
         ax.plot(f, qm, color=INK, lw=0.8, marker="o", ms=3, mfc="white", mew=0.7, markevery=markevery(f.size),
@@ -225,13 +239,9 @@ def plot_q(
     if q_textbook is not None:
         ax.plot(f, q_textbook, color=RATIONAL, ls=(0, (2, 2)), lw=1.2,
                 label="ωL/R_s of the circuit", gid="q-textbook", zorder=4)
-    if peak is not None and all(map(math.isfinite, peak)):
+    has_peak = peak is not None and all(map(math.isfinite, peak))
+    if has_peak:
         ax.plot([peak[0]], [peak[1]], ls="none", marker="v", ms=6, color=INK, gid="q-peak", zorder=5)
-        right = math.log(peak[0] / f[0]) > 0.6 * math.log(f[-1] / f[0])
-        qtext = f"{peak[1]:.0f}" if peak[1] >= 100 else f"{peak[1]:.3g}"
-        ax.annotate(f"peak Q {qtext} at {eng_tick(peak[0], 'Hz', 4)}", xy=peak, xytext=(-6 if right else 6, 6),
-                    textcoords="offset points", ha="right" if right else "left", fontsize=7.5,
-                    bbox={"boxstyle": "square,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.85})
     style_axis(ax, xunit="Hz", ylog=True)
     from matplotlib.ticker import FuncFormatter
 
@@ -248,6 +258,18 @@ def plot_q(
     ax.legend(loc="best", handlelength=2.6)
     if title:
         set_title(fig, title)
+    if has_peak:
+        # Placed last, where it crosses no curve and no legend (limits and layout are final).
+        qtext = f"{peak[1]:.0f}" if peak[1] >= 100 else f"{peak[1]:.3g}"
+        label = place_label(ax, peak, f"peak Q {qtext} at {eng_tick(peak[0], 'Hz', 4)}", gid="q-peak-label")
+        renderer = fig.canvas.get_renderer()
+        box = label.get_window_extent(renderer)
+        # A small figure may leave the label no free place but the legend's: the legend moves.
+        for loc in ("lower left", "lower right", "lower center", "upper left", "center left", "center right"):
+            if not ax.get_legend().get_window_extent(renderer).overlaps(box):
+                break
+            ax.legend(loc=loc, handlelength=2.6)
+            fig.draw_without_rendering()
     return fig
 
 
@@ -262,6 +284,8 @@ def plot_esr_d(
     d_circuit=None,
     esr_rational=None,
     d_rational=None,
+    srf_hz: float | None = None,
+    band_of: str = "point",
     title: str = "",
     width_in: float = 7.2,
     height_in: float = 4.0,
@@ -277,14 +301,22 @@ def plot_esr_d(
     d_measured : array_like
         D = tan(delta) = Re Z / |Im Z| of the measured part.
     esr_std : array_like, optional
-        Standard uncertainty of `esr_rational` if given, else of
-        `esr_measured` (sigma/sqrt 2); a +-2 sigma band around that curve.
+        Standard uncertainty drawn as a +-2 sigma band around `esr_rational`
+        if given, else around `esr_measured`; `band_of` says whose it is.
     esr_circuit, d_circuit : array_like, optional
         The same figures of the equivalent circuit.
     esr_rational, d_rational : array_like, optional
         The same figures of the rational model (the measurement without its
         noise); when given, the measured points are drawn as dots and these
         as the lines.
+    srf_hz : float, optional
+        The self-resonant frequency: above it the part is inductive and a
+        capacitor's D = R/|X| describes no capacitor, so D is not drawn
+        there (the panel says so).
+    band_of : {'point', 'model'}
+        Whose uncertainty `esr_std` is: ``'point'``, that of one measured
+        point (sigma/sqrt 2 of Re Z: the band the scatter lies in), or
+        ``'model'``, that of the smooth curve itself.  The legend says which.
     title : str
         Figure title.
     width_in, height_in : float
@@ -294,11 +326,19 @@ def plot_esr_d(
     -------
     matplotlib.figure.Figure
         Artists' gids: ``esr-measured``, ``esr-band``, ``esr-circuit``,
-        ``esr-rational``, ``d-measured``, ``d-circuit``, ``d-rational``.
+        ``esr-rational``, ``d-measured``, ``d-circuit``, ``d-rational``,
+        ``d-above-srf`` (the shaded band where D is not drawn, and its note).
     """
     f = np.asarray(f_hz, dtype=float)
     esr = np.asarray(esr_measured, dtype=float)
-    d = np.asarray(d_measured, dtype=float)
+    above = np.zeros(f.size, dtype=bool)
+    if srf_hz is not None and math.isfinite(srf_hz) and f.size and f[0] < srf_hz < f[-1]:
+        above = f > srf_hz
+
+    def below_srf(a):
+        return None if a is None else np.where(above, np.nan, np.asarray(a, dtype=float))
+
+    d, d_circuit, d_rational = below_srf(d_measured), below_srf(d_circuit), below_srf(d_rational)
     fig, (ax_e, ax_d) = figure_grid(width_in, height_in, [1.0, 1.0])
     me = markevery(f.size)
     pos = np.where(esr > 0, esr, np.nan)
@@ -306,7 +346,7 @@ def plot_esr_d(
         s = np.asarray(esr_std, dtype=float)
         c = esr if esr_rational is None else np.asarray(esr_rational, dtype=float)
         b = ax_e.fill_between(f, np.maximum(c - 2 * s, np.abs(c) * 1e-2 + 1e-300), c + 2 * s, color=BAND, lw=0,
-                              label="measured ±2σ", zorder=1)
+                              label=band_label(band_of), zorder=1)
         b.set_gid("esr-band")
     dpos = np.where(d > 0, d, np.nan)
     if esr_rational is None:
@@ -345,6 +385,11 @@ def plot_esr_d(
             lo = min(r[0] for r in ref)
             hi = max(r[1] for r in ref)
             ax.set_ylim(lo / 3, hi * 3)
+    if above.any():
+        span = ax_d.axvspan(srf_hz, f[-1], color=SHADE, lw=0, zorder=0,
+                            label="above the SRF (the part is inductive): D not shown")
+        span.set_gid("d-above-srf")
+        ax_d.legend(loc="best", handlelength=2.6)
     ax_e.tick_params(labelbottom=False)
     ax_e.set_ylabel("ESR (Re Z)")
     ax_d.set_ylabel("D = tan δ")

@@ -96,7 +96,7 @@ class Section:
         Preformatted blocks (a netlist, say).
     css_class : str
         Layout class: ``"half"`` (half the width), ``"full"``, ``"warn"``
-        (a warning box).
+        (a warning box); ``"full twocol"`` sets the facts in two columns.
     """
 
     title: str
@@ -151,6 +151,7 @@ header .verdict { margin-top: 1.6mm; font-weight: 600; font-size: 9.5pt; }
 main { display: grid; grid-template-columns: minmax(0, 1fr) minmax(0, 1fr); gap: 2mm 6mm; align-items: start; }
 section { break-inside: avoid; page-break-inside: avoid; min-width: 0; }
 section.full, section.warn { grid-column: 1 / -1; }
+.facts-2 { display: grid; grid-template-columns: minmax(0, 1fr) minmax(0, 1fr); gap: 0 6mm; }
 section.warn { border-left: 3pt solid #111; padding: 1mm 0 1mm 3mm; background: #f3f3f3; }
 h2 { font-size: 8.5pt; text-transform: uppercase; letter-spacing: 0.06em; margin: 0 0 0.8mm 0;
   border-bottom: 0.5pt solid #999; padding-bottom: 0.4mm; }
@@ -243,7 +244,13 @@ def _table_html(t: Table) -> str:
 
 def _section_html(s: Section) -> str:
     out = [f'<section class="{_esc(s.css_class)}">', f"<h2>{_esc(s.title)}</h2>"]
-    if s.facts:
+    if s.facts and "twocol" in s.css_class.split():
+        # A full-width block of facts in two columns, each a list of its own (half the height).
+        half = (len(s.facts) + 1) // 2
+        out.append('<div class="facts-2">' + "".join(
+            "<dl>" + "".join(f"<dt>{_esc(k)}</dt><dd>{_esc(v)}</dd>" for k, v in part) + "</dl>"
+            for part in (s.facts[:half], s.facts[half:])) + "</div>")
+    elif s.facts:
         out.append("<dl>" + "".join(f"<dt>{_esc(k)}</dt><dd>{_esc(v)}</dd>" for k, v in s.facts) + "</dl>")
     for t in s.tables:
         out.append(_table_html(t))

@@ -14,10 +14,41 @@ import numpy as np
 from .._errors import ZfitInputError
 from ._views import pretty, pretty_std
 
-__all__ = ["identification_plots", "step_plots", "step_page_data"]
+__all__ = ["identification_plots", "point_std", "step_plots", "step_page_data"]
 
 
-def identification_plots(result, titles: bool = True) -> dict:
+def point_std(traces) -> tuple:
+    """Return the standard uncertainty of one measured point's Q (or ESR), to draw around the smooth curve.
+
+    The sweep's ``sigma`` is complex-circular: each of Re Z and Im Z has
+    ``sigma/sqrt 2``.  ESR = Re Z carries that; Q = |X|/R carries, to first
+    order, ``(sigma/sqrt 2)/|R| * sqrt(1 + Q^2)`` (the two components'
+    contributions added in quadrature).  This is the band the scatter of
+    the measured points lies in; the rational model's own band (its
+    covariance) is far narrower, and is not what the dots are compared to.
+
+    Returns
+    -------
+    (numpy.ndarray or None, numpy.ndarray or None)
+        Per-point std of Q (inductor traces) and of ESR (loss traces).
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), 5.1.2: the law of propagation of uncertainty.
+    """
+    s = np.asarray(traces.sigma_ohm, dtype=float) / np.sqrt(2.0)
+    q_std = esr_std = None
+    with np.errstate(divide="ignore", invalid="ignore"):
+        if traces.q is not None:
+            ref = traces.rational_ohm if traces.rational_ohm is not None else traces.z_ohm
+            q = np.abs(ref.imag) / np.abs(ref.real)
+            q_std = s / np.abs(ref.real) * np.sqrt(1.0 + q * q)
+        if traces.losses is not None:
+            esr_std = s
+    return q_std, esr_std
+
+
+def identification_plots(result, titles: bool = True, sizes: dict | None = None) -> dict:
     """Return the plots of an identification by name.
 
     Parameters
@@ -26,16 +57,24 @@ def identification_plots(result, titles: bool = True) -> dict:
         The result of `zfit.identify`.
     titles : bool
         Whether the plots carry titles (a report has its own headings).
+    sizes : dict, optional
+        Plot sizes in inches by name (``{"sweep": (7.3, 4.4)}``): a plot is
+        drawn at the size it is shown, so that its labels are placed for it.
 
     Returns
     -------
     dict of str to matplotlib.figure.Figure
         ``"sweep"`` (|Z|, phase, normalised residual with the circuit and the
         rational model), and ``"q"`` for an inductor or ``"esr_d"`` for a
-        capacitor.
+        capacitor, whose +-2 sigma band is that of one measured point.
     """
     from ..identification._traces import sweep_traces
     from ._plots import plot_esr_d, plot_q, plot_sweep
+
+    sizes = sizes or {}
+
+    def size(name):
+        return {"width_in": sizes[name][0], "height_in": sizes[name][1]} if name in sizes else {}
 
     sw = result.sweep
     tr = sweep_traces(result)
@@ -47,18 +86,21 @@ def identification_plots(result, titles: bool = True) -> dict:
             tr.f_hz, tr.z_ohm, tr.sigma_ohm, circuit_ohm=circuit, rational_ohm=tr.rational_ohm, srf_hz=tr.srf_hz,
             valid_band_hz=tuple(result.fit.valid_band_hz) if circuit is not None else None,
             circuit_label=result.topology if circuit is not None else "equivalent circuit", title=title,
+            **size("sweep"),
         )
     }
+    q_std, esr_std = point_std(tr)
     if tr.q is not None:
         q = tr.q
-        plots["q"] = plot_q(tr.f_hz, q.q, q_std=q.q_std, q_rational=q.q_rational, q_circuit=q.q_circuit,
-                            q_textbook=q.q_model, peak=q.peak, f_max_hz=tr.srf_hz,
-                            title="Quality factor below the self-resonance" if titles else "")
+        plots["q"] = plot_q(tr.f_hz, q.q, q_std=q_std, q_rational=q.q_rational, q_circuit=q.q_circuit,
+                            q_textbook=q.q_model, peak=q.peak, f_max_hz=tr.srf_hz, band_of="point",
+                            title="Quality factor below the self-resonance" if titles else "", **size("q"))
     else:
         ls = tr.losses
-        plots["esr_d"] = plot_esr_d(tr.f_hz, ls.esr, ls.d, esr_std=ls.esr_std, esr_circuit=ls.esr_circuit,
+        plots["esr_d"] = plot_esr_d(tr.f_hz, ls.esr, ls.d, esr_std=esr_std, esr_circuit=ls.esr_circuit,
                                     d_circuit=ls.d_circuit, esr_rational=ls.esr_rational, d_rational=ls.d_rational,
-                                    title="ESR and dissipation factor" if titles else "")
+                                    srf_hz=tr.srf_hz, band_of="point",
+                                    title="ESR and dissipation factor" if titles else "", **size("esr_d"))
     return plots
 
 
@@ -174,5 +216,5 @@ def step_plots(result, titles: bool = True, impedance: bool = True, sizes: dict 
                                  title="Response H = V_out / V_in (H1 estimate)" if titles else "", **size("bode"))
     ident = d.get("identification")
     if ident is not None and impedance:
-        plots.update(identification_plots(ident, titles=titles))
+        plots.update(identification_plots(ident, titles=titles, sizes=sizes))
     return plots
