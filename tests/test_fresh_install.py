@@ -22,8 +22,8 @@ import pytest
 
 ROOT = Path(__file__).resolve().parent.parent
 
-pytestmark = pytest.mark.skipif(os.environ.get("ZFIT_FRESH_INSTALL") != "1",
-                                reason="set ZFIT_FRESH_INSTALL=1 to install into a fresh venv (CI does)")
+fresh_install = pytest.mark.skipif(os.environ.get("ZFIT_FRESH_INSTALL") != "1",
+                                   reason="set ZFIT_FRESH_INSTALL=1 to install into a fresh venv (CI does)")
 
 
 def readme_commands() -> list[str]:
@@ -42,6 +42,7 @@ def test_readme_has_two_commands_and_the_ci_runs_the_second_ones_test_command():
     assert ci[-1] == "python -m pytest"
 
 
+@fresh_install
 def test_readme_commands_work_in_a_fresh_venv(tmp_path):
     tree = tmp_path / "zfit"
     shutil.copytree(ROOT, tree, ignore=shutil.ignore_patterns(".git", "*.egg-info", "__pycache__", ".pytest_cache",

@@ -275,8 +275,14 @@ def test_single_step_with_sense_resistor_has_honest_bins():
     # dominant in the lowest bins), so those bins were several sigma off and
     # the sweep failed its passivity check (Re Z < -5 sigma).
     (L, Rw, Cp, Rs), (num, den), cap = single_step_coil_capture(5)
-    with pytest.warns(MeasurementWarning, match="only 1 edge to average"):
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", MeasurementWarning)
         r = analyse_capture(cap, "CH1", "CH2", shunt_ohm=Rs)
+    texts = [str(w.message) for w in caught]
+    assert any("only 1 edge to average" in t for t in texts)
+    # C_p from a single step comes out a few % high, beyond its noise-only uncertainty (docs/capture.md):
+    # the split-band check widens it rather than let it pass as exact.
+    assert any("fitted over the lower and the upper part of its band" in t and "C_p" in t for t in texts)
     assert r.edges == 1 and r.response.n_averages == 1
     resp = r.response
     m = resp.usable

@@ -191,6 +191,16 @@ class Circuit:
                         out.append(self._with_resonance(base, f0, scale, mag[k]))
         return out
 
+    def is_passive(self, p) -> bool:
+        """Whether the parameters give a passive part: every element positive, as the refinement keeps them.
+
+        Parameters
+        ----------
+        p : array_like
+            Parameter values in `keys` order.
+        """
+        return bool(np.all(np.asarray(p, float) > 0))
+
     def _with_resonance(self, p, f0, loss_scale, z_extreme):  # pragma: no cover - abstract
         raise NotImplementedError
 

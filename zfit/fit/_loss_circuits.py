@@ -272,6 +272,16 @@ class RelaxingCoreInductor(_ColumnsCircuit):
         d_fr = s * (l_i - l_inf) * g**2 * (1j * f / f_r)
         return _parallel_cp(r_dc + zc, [d_li, d_linf, d_fr, r_dc + 0 * zc], s, c_p)
 
+    def is_passive(self, p) -> bool:
+        """Whether ``L_inf < L_i``: a permeability that relaxes downward (the other way is an active part).
+
+        Parameters
+        ----------
+        p : array_like
+            ``(L_i, L_inf, f_r, R_dc, C_p)``.
+        """
+        return bool(np.all(np.asarray(p, float) > 0) and p[1] < p[0])
+
     def model_q(self, p, f_hz) -> np.ndarray:
         """Return the Q of the winding on its core alone, ``Im/Re`` of ``R_dc + Z_core`` (no C_p).
 

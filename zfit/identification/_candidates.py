@@ -256,7 +256,8 @@ def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple
             continue
         if isinstance(circuit, ResonantSections):
             sections[circuit.n_sections] = ref
-        if not resolved_only or _loss_resolved(ref):
+        # A core whose permeability would rise with frequency is an active part: a calibration error, not a core.
+        if circuit.is_passive(ref.values) and (not resolved_only or _loss_resolved(ref)):
             out.append(ref)
     return tuple(out)
 
