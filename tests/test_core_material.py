@@ -134,3 +134,29 @@ def test_given_rdc_is_removed_as_given(tmp_path):
         if lf.tan_delta > 5 * lf.tan_delta_std:
             assert lf.tan_delta == pytest.approx(td, rel=0.05)
     assert [lf.f_hz for lf in mat.loss_factors] == [1e4, 1e5]
+
+
+def test_cole_cole_core_is_recognised(tmp_path):
+    # Cole-Cole form (Cole and Cole 1941), written out: mu = mu_inf + D/(1 + (j f/f_r)^(1 - alpha)); its mu''
+    # peaks at f_r (symmetric in ln f, exact). The choice rule (BIC lower by 10, alpha resolved) must pick it.
+    mu_i, mu_inf, f_r, alpha = 800.0, 10.0, 3e6, 0.3
+    f = np.geomspace(f_r / 300, f_r * 10, 301)
+    c1 = 2 * math.pi / (H * math.log(OD / ID))
+    l0 = MU0 * 16 / c1
+    mu = mu_inf + (mu_i - mu_inf) / (1 + (1j * f / f_r) ** (1 - alpha))
+    z = 1 / (1 / (0.01 + 2j * math.pi * f * l0 * mu) + 2j * math.pi * f * 1e-12)
+    mat = core_material(measured(tmp_path, f, z, "reflection", 99), core_constant(core_spec(4, 25, 15, 10)))
+    assert mat.relaxation.form == "Cole-Cole"
+    assert mat.relaxation.alpha == pytest.approx(alpha, abs=0.02)
+    assert mat.mu_i == pytest.approx(mu_i, rel=0.03)
+    assert mat.mu_imag_peak.value_hz == pytest.approx(f_r, rel=0.05)
+
+
+def test_debye_core_is_not_given_a_distribution(tmp_path):
+    f_r, mu_i = 1e6, 2000.0
+    f = np.geomspace(f_r / 300, f_r * 10, 301)
+    z = debye_winding(f, mu_i, 40.0, f_r, 5, 0.02, 3e-12)
+    mat = core_material(measured(tmp_path, f, z, "series-thru", 12), core_constant(core_spec(5, 25, 15, 10)))
+    # The choice rule keeps one relaxation time for data made with one (zfit.fit._relaxation).
+    assert mat.relaxation.form == "Debye" and mat.relaxation.alpha == 0.0
+    assert mat.relaxation.f_r_hz == pytest.approx(f_r, rel=0.01)

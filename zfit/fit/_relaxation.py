@@ -51,7 +51,8 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import least_squares
 
-__all__ = ["Relaxation", "relaxation_permeability", "fitted_relaxation", "BIC_MARGIN"]
+__all__ = ["Relaxation", "WindingParts", "relaxation_permeability", "fitted_relaxation", "fitted_winding_parts",
+           "BIC_MARGIN"]
 
 #: BIC margin for the Cole-Cole form (Kass and Raftery 1995: > 10 is very strong evidence).
 BIC_MARGIN = 10.0
@@ -206,6 +207,92 @@ def fitted_relaxation(f_hz, mu, sigma_part) -> Relaxation | None:
     sharp = s / np.abs(mu) < 0.01
     dev_all = np.abs(_model(x, f, form == "Cole-Cole") - mu) / np.abs(mu)
     dev = float(np.max(dev_all[sharp])) if np.any(sharp) else math.nan
-    return Relaxation(form, mu_i, x[1] * mu_i, f_r, float(x[3]) if form == "Cole-Cole" else 0.0,
+    return Relaxation(form, mu_i, float(x[1] * mu_i), f_r, float(x[3]) if form == "Cole-Cole" else 0.0,
                       mu_i * float(sd[0]), mu_inf_std, f_r * float(sd[2]),
                       float(sd[3]) if form == "Cole-Cole" else 0.0, (float(f[0]), float(f[-1])), float(red), bic, dev)
+
+
+@dataclass(frozen=True)
+class WindingParts:
+    """R_dc and C_p of a winding fitted together with a Cole-Cole core.
+
+    Attributes
+    ----------
+    r_dc_ohm, r_dc_std_ohm : float
+        Series resistance (the given value and its uncertainty when fixed).
+    c_p_f, c_p_std_f : float
+        Parallel capacitance.
+    reduced_chi2 : float
+    """
+
+    r_dc_ohm: float
+    r_dc_std_ohm: float
+    c_p_f: float
+    c_p_std_f: float
+    reduced_chi2: float
+
+
+def fitted_winding_parts(f_hz, z_ohm, sigma_part, l0_h: float, r_dc: float, c_p: float, relaxation: Relaxation,
+                         *, r_dc_fixed: bool = False) -> WindingParts | None:
+    """Return R_dc and C_p fitted with the core's Cole-Cole permeability, on the impedance.
+
+    ``Z = (R_dc + j omega L_0 mu(f)) || 1/(j omega C_p)``, mu of the Cole-Cole
+    form; all of R_dc, C_p, mu_i, mu_inf, f_r and alpha free (R_dc fixed
+    when measured). A Debye circuit fitted to a core whose relaxation is
+    distributed puts the misfit into R_dc and C_p; this fit does not.
+
+    Parameters
+    ----------
+    f_hz, z_ohm : array_like
+        The winding's sweep over the band of validity.
+    sigma_part : array_like
+        Standard uncertainty of each of R and X.
+    l0_h : float
+        ``mu_0 N^2 / C1``.
+    r_dc, c_p : float
+        Starting values.
+    relaxation : Relaxation
+        Starting permeability.
+    r_dc_fixed : bool
+        Keep R_dc at `r_dc` (measured by the user).
+
+    Returns
+    -------
+    WindingParts or None
+        None when the fit fails.
+    """
+    f = np.asarray(f_hz, float)
+    z = np.asarray(z_ohm, complex)
+    s = np.asarray(sigma_part, float)
+    w = 2.0 * math.pi * f
+
+    def unpack(t):
+        rd = r_dc if r_dc_fixed else math.exp(t[0])
+        return rd, math.exp(t[1]), t[2:]
+
+    def resid(t):
+        rd, cp, m = unpack(t)
+        mu = _model(m, f, True)
+        zm = 1.0 / (1.0 / (rd + 1j * w * l0_h * mu) + 1j * w * cp)
+        d = (zm - z) / s
+        return np.concatenate([d.real, d.imag])
+
+    rel = relaxation
+    t0 = np.array([math.log(max(r_dc, 1e-9)), math.log(max(c_p, 1e-18)), math.log(rel.mu_i),
+                   min(rel.mu_inf / rel.mu_i, 0.99), math.log(rel.f_r_hz), min(rel.alpha, 0.9)])
+    lo = [-np.inf, -np.inf, -np.inf, 0.0, -np.inf, 0.0]
+    hi = [np.inf, np.inf, np.inf, 0.999, np.inf, 0.95]
+    try:
+        sol = least_squares(resid, t0, bounds=(lo, hi), method="trf", x_scale="jac", max_nfev=600)
+    except (ValueError, np.linalg.LinAlgError):
+        return None
+    chi2 = float(sol.fun @ sol.fun)
+    k = 5 if r_dc_fixed else 6
+    red = chi2 / max(sol.fun.size - k, 1)
+    J = sol.jac[:, 1:] if r_dc_fixed else sol.jac
+    cov = np.linalg.pinv(J.T @ J, rcond=1e-12) * max(red, 1.0)
+    sd = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    rd, cp, _ = unpack(sol.x)
+    if r_dc_fixed:
+        return WindingParts(rd, math.nan, cp, cp * float(sd[0]), red)
+    return WindingParts(rd, rd * float(sd[0]), cp, cp * float(sd[1]), red)

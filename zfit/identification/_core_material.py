@@ -15,7 +15,11 @@ Then, point by point,
     ``mu' = X_core / (omega L_0)``,  ``mu'' = R_core / (omega L_0)``.
 
 C_p is removed where the data show it: when the fitted C_p is above three
-standard uncertainties; otherwise it is left at zero and said so.
+standard uncertainties; otherwise it is left at zero and said so. When the
+permeability then calls for a distribution of relaxation times (Cole-Cole,
+`zfit.fit._relaxation`), the Debye circuit has put its misfit into R_dc and
+C_p: both are fitted again together with the Cole-Cole core on the
+impedance, and the permeability is computed with those.
 
 Band of validity
 ----------------
@@ -56,7 +60,7 @@ import numpy as np
 from .._errors import FitError, ZfitInputError
 from ..fit._loss_circuits import RelaxingCoreInductor
 from ..fit._lsq import Observation, Prior, refine
-from ..fit._relaxation import Relaxation, fitted_relaxation
+from ..fit._relaxation import Relaxation, fitted_relaxation, fitted_winding_parts
 from ._core_geometry import CoreConstant
 from ._crossings import Located, first_falling_crossing, peak_frequency
 from ._measured import MeasuredFigures, low_frequency_value, measured_figures, spot_figures
@@ -367,21 +371,34 @@ def core_material(sweep, constant: CoreConstant, *, rdc: float | None = None, rd
         warn.append("the relaxing-core circuit could not be fitted: R_dc is the median R of the lowest points "
                     "and C_p is not removed")
     c_p, c_p_std = (float(fit.values[4]), float(fit.stds[4])) if fit is not None else (math.nan, math.nan)
-    removed = fit is not None and math.isfinite(c_p_std) and c_p > 3.0 * c_p_std
-    c_used = c_p if removed else 0.0
+    l0 = constant.l0_h
+
+    def band_and_pass(r_dc, c_p, c_p_std):
+        removed = math.isfinite(c_p_std) and c_p > 3.0 * c_p_std
+        c_used = c_p if removed else 0.0
+        zc, _, corr = _core_impedance(f, z, sigma, r_dc, c_used)
+        mask = _valid_band(zc, corr)
+        if mask.sum() < _MIN_POINTS:
+            raise ZfitInputError(f"no inductive region of at least {_MIN_POINTS} points where the winding "
+                                 f"capacitance is a small correction (|omega C_p Z| <= {MAX_CP_CORRECTION:g})", where)
+        return removed, c_used, mask, _one_pass(f, z, sigma, mask, r_dc, c_used, l0, ())
+
+    removed, c_used, mask, nominal = band_and_pass(r_dc, c_p, c_p_std)
+    if nominal.relaxation is not None and nominal.relaxation.form == "Cole-Cole":
+        # The Debye circuit misreads R_dc and C_p of a distributed relaxation: fit them again with it.
+        parts = fitted_winding_parts(f, z, sigma / math.sqrt(2.0), l0, r_dc, c_p if math.isfinite(c_p) else 0.0,
+                                     nominal.relaxation, r_dc_fixed=rdc is not None)
+        if parts is not None:
+            if rdc is None:
+                r_dc, r_dc_std, r_src = parts.r_dc_ohm, parts.r_dc_std_ohm, "fitted"
+            c_p, c_p_std = parts.c_p_f, parts.c_p_std_f
+            removed, c_used, mask, nominal = band_and_pass(r_dc, c_p, c_p_std)
     if fit is not None and not removed:
         warn.append("the winding capacitance C_p is not resolved by the data: it is not removed")
-    zc, _, corr = _core_impedance(f, z, sigma, r_dc, c_used)
-    mask = _valid_band(zc, corr)
-    if mask.sum() < _MIN_POINTS:
-        raise ZfitInputError(f"no inductive region of at least {_MIN_POINTS} points where the winding "
-                             f"capacitance is a small correction (|omega C_p Z| <= {MAX_CP_CORRECTION:g})", where)
     if not mask[-1]:
         warn.append(f"mu is given up to {f[mask][-1]:.4g} Hz only: above, the winding capacitance dominates")
     fv = f[mask]
-    l0 = constant.l0_h
     band = (float(fv[0]), float(fv[-1]))
-    nominal = _one_pass(f, z, sigma, mask, r_dc, c_used, l0, ())
     if at:
         freqs = tuple(float(x) for x in at)
         outside = [x for x in freqs if not band[0] <= x <= band[1]]
