@@ -125,7 +125,8 @@ def plot_bead(bead, *, title: str = "", width_in: float = 7.2, height_in: float 
         marks.append((f0, y0, f"R = X at {eng_tick(f0, 'Hz', 4)}", "bead-rx"))
     for i, s in enumerate(bead.spot):
         if s.in_band:
-            marks.append((s.f_hz, s.z_abs_ohm, f"|Z| {eng_tick(s.z_abs_ohm, 'Ω', 4)}", f"bead-spot-{i}"))
+            marks.append((s.f_hz, s.z_abs_ohm, f"|Z| {eng_tick(s.z_abs_ohm, 'Ω', 4)} at {eng_tick(s.f_hz, 'Hz', 4)}",
+                          f"bead-spot-{i}"))
     _impedance_axis(ax, meas, marks)
     ax.set_xlabel("frequency")
     set_title(fig, title or f"{bead.source}: bead impedance")
