@@ -195,12 +195,14 @@ def _grown_starts(f, z, previous, n_new=12):
     return out
 
 
-def _best_refinement(circ, obs, starts, n_refined=6):
-    """The lowest-chi^2 refinement of the `n_refined` best-ranked starts, each refined on its own.
+def _best_refinement(circ, obs, starts, n_refined=6, n_final=3, short_nfev=25):
+    """The lowest-chi^2 refinement from the `n_refined` best-ranked starts.
 
-    Each is taken to its own minimum (not stopped once one reaches the
-    noise, as `refine` does for speed): the number of sections is chosen
-    by BIC, which needs each N at its best minimum.
+    Each start is first taken a short way on its own (`short_nfev`
+    evaluations), then the `n_final` best of those are refined to their
+    minimum: not stopped once one reaches the noise, as `refine` does for
+    speed, since the number of sections is chosen by BIC, which needs each
+    N at its best minimum.
     """
     ranked = []
     for p in starts:
@@ -212,14 +214,20 @@ def _best_refinement(circ, obs, starts, n_refined=6):
         if math.isfinite(cost):
             ranked.append((cost, len(ranked), p))
     ranked.sort(key=lambda t: (t[0], t[1]))
-    best = None
-    for _, _, p in ranked[:n_refined]:
+
+    def run(p, nfev):
         try:
             with np.errstate(all="ignore"):
-                ref = refine(circ, obs, [p], n_best=1)
+                return refine(circ, obs, [p], n_best=1, max_nfev=nfev)
         except FitError:
-            continue
-        if best is None or ref.chi2 < best.chi2:
+            return None
+
+    short = [r for r in (run(p, short_nfev) for _, _, p in ranked[:n_refined]) if r is not None]
+    short.sort(key=lambda r: r.chi2)
+    best = None
+    for r in short[:n_final]:
+        ref = run(r.values, 200)
+        if ref is not None and (best is None or ref.chi2 < best.chi2):
             best = ref
     return best
 
