@@ -53,7 +53,7 @@ and added in quadrature.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -282,14 +282,23 @@ class _Pass:
     mu_real: np.ndarray
     mu_imag: np.ndarray
     noise: np.ndarray
-    raw: np.ndarray
-    raw_std: np.ndarray
     scalars: dict
     relaxation: Relaxation | None
     spots: list
 
 
-def _one_pass(f, z, sigma, mask, r_dc, c_p, l0, at, relax=True):
+def _spot_mu(fv, zv, sv, l0, at):
+    """(mu', mu'', std of each) at each frequency of `at`, by the local smoothing of the core's impedance."""
+    out = []
+    for fa in at:
+        sp = spot_figures(fv, zv, sv, fa)
+        wa = _TWO_PI * fa
+        out.append((sp["X"].value / (wa * l0), sp["R"].value / (wa * l0), sp["X"].std / (wa * l0)))
+    return out
+
+
+def _one_pass(f, z, sigma, mask, r_dc, c_p, l0, at):
+    """The permeability over the band `mask` and its figures, for one choice of R_dc and C_p."""
     zc, sc, _ = _core_impedance(f, z, sigma, r_dc, c_p)
     fv, zv, sv = f[mask], zc[mask], sc[mask]
     w = _TWO_PI * fv
@@ -297,18 +306,13 @@ def _one_pass(f, z, sigma, mask, r_dc, c_p, l0, at, relax=True):
     mu1, mu2, noise = fig.x_ohm / (w * l0), fig.r_ohm / (w * l0), fig.std_ohm / (w * l0)
     raw = zv / (1j * w * l0)  # mu' - j mu''
     raw_std = sv / math.sqrt(2.0) / (w * l0)
-    rel = fitted_relaxation(fv, raw, raw_std) if relax else None
+    rel = fitted_relaxation(fv, raw, raw_std)
     peak = peak_frequency(fv, -raw.imag, raw_std)
     cross = first_falling_crossing(fv, raw.real + raw.imag, math.sqrt(2.0) * raw_std)
     mu_i = rel.mu_i if rel is not None else float(mu1[0])
-    spots = []
-    for fa in at:
-        sp = spot_figures(fv, zv, sv, fa)
-        wa = _TWO_PI * fa
-        m1, m2, sd = sp["X"].value / (wa * l0), sp["R"].value / (wa * l0), sp["X"].std / (wa * l0)
-        spots.append((m1, m2, sd))
+    spots = _spot_mu(fv, zv, sv, l0, at)
     scalars = {"mu_i": mu_i, "peak": peak.value_hz, "cross": cross.value_hz, "mu_low": float(mu1[0])}
-    return _Pass(mu1, mu2, noise, raw, raw_std, {**scalars, "_peak": peak, "_cross": cross}, rel, spots)
+    return _Pass(mu1, mu2, noise, {**scalars, "_peak": peak, "_cross": cross}, rel, spots)
 
 
 def _default_loss_frequencies(band, peak_hz, f, mu_imag, noise):
@@ -407,7 +411,8 @@ def core_material(sweep, constant: CoreConstant, *, rdc: float | None = None, rd
                                  f"{band[0]:.4g} .. {band[1]:.4g} Hz", where)
     else:
         freqs = _default_loss_frequencies(band, nominal.scalars["peak"], fv, nominal.mu_imag, nominal.noise)
-    nominal = _one_pass(f, z, sigma, mask, r_dc, c_used, l0, freqs)
+    zc, sc, _ = _core_impedance(f, z, sigma, r_dc, c_used)
+    nominal = replace(nominal, spots=_spot_mu(fv, zc[mask], sc[mask], l0, freqs))
 
     # Systematic components: R_dc and C_p each moved by one standard uncertainty.
     shifts = []
