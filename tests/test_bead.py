@@ -1,11 +1,8 @@
 """Bead figures (zfit.identification._bead): |Z| at 100 MHz, the R = X frequency, the netlist.
 
 The bead is two parallel R-L-C sections in series with a winding
-resistance, ``Z = R_dc + sum_k (1/R_k + 1/(j omega L_k) + j omega C_k)^-1``
-(the usual circuit of a bead's impedance, common practice), written out
-here; measured by series-thru, ``S21 = 2 Z0/(2 Z0 + Z)``, ``S11 = Z/(Z + 2 Z0)``
-(Pozar 2012, Tables 4.1-4.2), with an analyser's trace noise of 0.005 dB
-and 0.05 degree plus a 2e-5 floor (common practice), seeded.
+resistance, written out in tests/core_sweeps.py with the series-thru
+measurement and the analyser's noise.
 """
 
 import math
@@ -14,42 +11,15 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq
 
+from core_sweeps import bead_z, measured
 from ngspice import run_ac
 from zfit.identification._bead import bead_figures
-from zfit.io._sweep_file import read_sweep
-
-Z0 = 50.0
-SECTIONS = [(300.0, 1.0e-6, 1.5e-12), (80.0, 0.15e-6, 0.8e-12)]
-R_DC = 0.02
-
-
-def bead_z(f):
-    s = 2j * math.pi * np.asarray(f, float)
-    z = R_DC + 0 * s
-    for r, l, c in SECTIONS:
-        z = z + 1 / (1 / r + 1 / (s * l) + s * c)
-    return z
-
-
-def noisy(s, rng):
-    mag_db = 0.005 * rng.standard_normal(s.shape)
-    ph = math.radians(0.05) * rng.standard_normal(s.shape)
-    floor = 2e-5 / math.sqrt(2) * (rng.standard_normal(s.shape) + 1j * rng.standard_normal(s.shape))
-    return s * 10 ** (mag_db / 20) * np.exp(1j * ph) + floor
 
 
 @pytest.fixture(scope="module")
 def bead_sweep(tmp_path_factory):
     f = np.geomspace(1e6, 3e9, 401)
-    z = bead_z(f)
-    rng = np.random.default_rng(1313)
-    s21, s11 = noisy(2 * Z0 / (2 * Z0 + z), rng), noisy(z / (z + 2 * Z0), rng)
-    lines = ["# Hz S RI R 50"] + [
-        f"{f[i]:.10g} " + " ".join(f"{c.real:.9e} {c.imag:.9e}" for c in (s11[i], s21[i], s21[i], s11[i]))
-        for i in range(f.size)]
-    p = tmp_path_factory.mktemp("bead") / "bead.s2p"
-    p.write_text("\n".join(lines) + "\n")
-    return read_sweep(p, "series-thru")
+    return measured(tmp_path_factory.mktemp("bead"), f, bead_z(f), "series-thru", 1313, name="bead")
 
 
 def test_bead_impedance_at_100_mhz_and_r_equals_x(bead_sweep):

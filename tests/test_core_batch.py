@@ -1,17 +1,14 @@
 """``zfit batch`` on a lot of cores and a lot of beads: the material figures in the limits file.
 
-The cores are generated from the Debye form written out in tests/test_core_material.py,
-the beads from the two-section circuit of tests/test_bead.py, both measured with the
-analyser noise written out there.
+The cores and beads are generated from the forms written out in tests/core_sweeps.py
+and measured with the analyser noise written out there.
 """
 
-import math
 
 import numpy as np
 import pytest
 
-from test_bead import SECTIONS, noisy
-from test_core_material import debye_winding, measured
+from core_sweeps import bead_z, debye_winding, measured
 from zfit._errors import ZfitInputError
 from zfit.io._limits_file import parse_limits
 from zfit.lot._run import run_batch
@@ -44,7 +41,7 @@ def test_lot_of_cores_gets_verdicts(tmp_path):
     f = np.geomspace(1e3, 3e7, 201)
     for i, mu_i in enumerate((1800.0, 2000.0, 2200.0, 2700.0)):
         (lot / f"ring{i}").mkdir()
-        sw = measured(lot / f"ring{i}", f, debye_winding(f, mu_i, 0.02 * mu_i, 1e6, 5, 0.02, 3e-12), "reflection", 40 + i)
+        measured(lot / f"ring{i}", f, debye_winding(f, mu_i, 0.02 * mu_i, 1e6, 5, 0.02, 3e-12), "reflection", 40 + i)
     lim = parse_limits(CORE_LIMITS, "cores.toml")
     res = run_batch([lot], tmp_path / "out", limits=lim, jobs=1, progress=False)
     rows = {r.name.replace("\\", "/").split("/")[-2]: r for r in res.rows}
@@ -64,14 +61,8 @@ def test_lot_of_beads_gets_verdicts(tmp_path):
     lot = tmp_path / "beads"
     lot.mkdir()
     f = np.geomspace(1e6, 3e9, 301)
-    s = 2j * math.pi * f
     for i, scale in enumerate((1.0, 0.6)):
-        z = 0.02 + sum(1 / (1 / (r * scale) + 1 / (s * l) + s * c) for r, l, c in SECTIONS)
-        rng = np.random.default_rng(70 + i)
-        s21, s11 = noisy(100 / (100 + z), rng), noisy(z / (z + 100), rng)
-        (lot / f"b{i}.s2p").write_text("# Hz S RI R 50\n" + "".join(
-            f"{f[k]:.10g} " + " ".join(f"{c.real:.9e} {c.imag:.9e}" for c in (s11[k], s21[k], s21[k], s11[k])) + "\n"
-            for k in range(f.size)))
+        measured(lot, f, bead_z(f, scale), "series-thru", 70 + i, name=f"b{i}")
     from zfit.lot._tasks import ReadOptions
 
     lim = parse_limits('[[limit.Z_mag]]\nat = "100M"\nmin = 300\n[limit.f_RX]\nmax = "200M"\n', "beads.toml")

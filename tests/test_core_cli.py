@@ -1,6 +1,6 @@
 """``zfit core`` on the command line: outputs, the JSON contract zfit.core/1, one-line errors with exit status 2.
 
-The winding is generated from the Debye form written out in tests/test_core_material.py;
+The winding and the bead are generated from the forms written out in tests/core_sweeps.py;
 the schema is checked with the validator of tests/test_identify_schema.py.
 """
 
@@ -12,8 +12,7 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from test_bead import bead_z, noisy
-from test_core_material import debye_winding, measured
+from core_sweeps import bead_z, debye_winding, measured
 from test_identify_schema import validate
 from zfit.cli._app import app
 
@@ -49,13 +48,7 @@ def test_core_command_writes_json_and_plot(core_file, tmp_path):
 
 def test_bead_command_writes_netlist(tmp_path):
     f = np.geomspace(1e6, 3e9, 401)
-    z = bead_z(f)
-    rng = np.random.default_rng(3)
-    s21, s11 = noisy(100 / (100 + z), rng), noisy(z / (z + 100), rng)
-    p = tmp_path / "bead.s2p"
-    p.write_text("# Hz S RI R 50\n" + "".join(
-        f"{f[i]:.10g} " + " ".join(f"{c.real:.9e} {c.imag:.9e}" for c in (s11[i], s21[i], s21[i], s11[i])) + "\n"
-        for i in range(f.size)))
+    p = measured(tmp_path, f, bead_z(f), "series-thru", 3, name="bead").source
     out, cir = tmp_path / "b.json", tmp_path / "b.cir"
     res = run("core", p, "--bead", "-c", "series-thru", "--json", out, "--netlist", cir)
     assert res.exit_code == 0, res.output

@@ -1,16 +1,8 @@
 """Complex permeability of a wound core (zfit.identification._core_material).
 
-The windings are generated here from the Debye form of the permeability,
-``mu = mu_inf + (mu_i - mu_inf)/(1 + j f/f_r)`` (Debye 1929; Snoek 1948),
-``Z = (R_dc + j omega mu_0 N^2/C1 mu) || 1/(j omega C_p)``, with C1 of the
-toroid ``2 pi/(h ln(OD/ID))`` written out. They are "measured" by
-reflection, ``S11 = (Z - Z0)/(Z + Z0)``, and series-thru,
-``S21 = 2 Z0/(2 Z0 + Z)``, ``S11 = Z/(Z + 2 Z0)`` (Pozar, *Microwave
-Engineering*, 4th ed., 2012, Tables 4.1-4.2), written to Touchstone files
-and read back as a user's files are. Noise: the trace noise of an analyser's
-specification as it is usually stated (common practice): 0.005 dB on |S|
-and 0.05 degree on its phase, gaussian, plus a complex-circular floor of
-2e-5 (-94 dB), from a seeded generator.
+The windings are generated from the Debye form written out in tests/core_sweeps.py (not
+from zfit's circuits), measured by reflection and series-thru with an analyser's noise
+written out there, and read back from Touchstone files.
 """
 
 import math
@@ -18,51 +10,10 @@ import math
 import numpy as np
 import pytest
 
+from core_sweeps import H, ID, MU0, OD, debye_winding, measured
 from zfit.identification._core_geometry import core_constant
 from zfit.identification._core_material import core_material
 from zfit.io._core_spec import core_spec
-from zfit.io._sweep_file import read_sweep
-
-MU0 = 4e-7 * math.pi
-Z0 = 50.0
-OD, ID, H = 25e-3, 15e-3, 10e-3
-
-
-def debye_winding(f, mu_i, mu_inf, f_r, turns, r_dc, c_p):
-    c1 = 2 * math.pi / (H * math.log(OD / ID))
-    l0 = MU0 * turns**2 / c1
-    mu = mu_inf + (mu_i - mu_inf) / (1 + 1j * f / f_r)
-    zw = r_dc + 2j * math.pi * f * l0 * mu
-    return 1 / (1 / zw + 2j * math.pi * f * c_p)
-
-
-def analyser_noise(s, rng):
-    mag_db = 0.005 * rng.standard_normal(s.shape)
-    ph = math.radians(0.05) * rng.standard_normal(s.shape)
-    floor = 2e-5 / math.sqrt(2) * (rng.standard_normal(s.shape) + 1j * rng.standard_normal(s.shape))
-    return s * 10 ** (mag_db / 20) * np.exp(1j * ph) + floor
-
-
-def write_touchstone(path, f, columns):
-    lines = ["# Hz S RI R 50"]
-    for i in range(f.size):
-        lines.append(f"{f[i]:.10g} " + " ".join(f"{c[i].real:.9e} {c[i].imag:.9e}" for c in columns))
-    path.write_text("\n".join(lines) + "\n")
-
-
-def measured(tmp_path, f, z, connection, seed):
-    rng = np.random.default_rng(seed)
-    if connection == "reflection":
-        s11 = analyser_noise((z - Z0) / (z + Z0), rng)
-        p = tmp_path / "core.s1p"
-        write_touchstone(p, f, [s11])
-        return read_sweep(p)
-    s21 = 2 * Z0 / (2 * Z0 + z)
-    s11 = z / (z + 2 * Z0)
-    n21, n11 = analyser_noise(s21, rng), analyser_noise(s11, rng)
-    p = tmp_path / "core.s2p"
-    write_touchstone(p, f, [n11, n21, n21, n11])
-    return read_sweep(p, "series-thru")
 
 
 def crossover(mu_i, mu_inf, f_r):
