@@ -4,7 +4,6 @@ The cores and beads are generated from the forms written out in tests/core_sweep
 and measured with the analyser noise written out there.
 """
 
-
 import numpy as np
 import pytest
 
