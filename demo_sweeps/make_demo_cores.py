@@ -8,10 +8,11 @@ unmarked beads. Every part, material and value is invented.
   invented ferrite whose permeability relaxes with one time constant
   (Debye): ``mu = mu_inf + (mu_i - mu_inf)/(1 + j f/f_r)`` with mu_i = 2300,
   mu_inf = 30, f_r = 1.4 MHz; wound with 8 turns (R_dc = 35 mohm, C_p =
-  4.2 pF across the winding). Measured by reflection (``S11 = (Z - Z0)/(Z + Z0)``).
+  4.2 pF across the winding). Measured series-thru, as a winding of up to a
+  kilohm is best measured (``S21 = 2 Z0/(2 Z0 + Z)``, ``S11 = Z/(Z + 2 Z0)``).
 * B-0612: a bead, a winding resistance of 15 mohm with two parallel R-L-C
   sections (330 ohm, 1.1 uH, 1.3 pF and 90 ohm, 0.12 uH, 0.7 pF). Measured
-  series-thru (``S21 = 2 Z0/(2 Z0 + Z)``, ``S11 = Z/(Z + 2 Z0)``).
+  series-thru too.
 
 The analyser's noise is written out here, in the form its specification
 usually states (common practice, not any instrument's figures): 0.005 dB on
@@ -73,10 +74,11 @@ def main():
     rng = np.random.default_rng(SEED)
     f = np.geomspace(1e3, 50e6, 601)
     z = ring_winding(f)
-    s11 = analyser_noise((z - Z0) / (z + Z0), rng)
-    (HERE / "core_ring_8t_reflection.s1p").write_text(touchstone(f, [s11], [
+    s21 = analyser_noise(2 * Z0 / (2 * Z0 + z), rng)
+    s11 = analyser_noise(z / (z + 2 * Z0), rng)
+    (HERE / "core_ring_8t_series_thru.s2p").write_text(touchstone(f, [s11, s21, s21, s11], [
         "Larkspur Yard incoming inspection: R-0907 unmarked ferrite ring 25/15/10 mm, 8 turns",
-        "Network analyser, reflection on port 1, calibrated at the fixture, 601 points 1 kHz - 50 MHz",
+        "Network analyser, series-thru fixture, calibrated at the fixture, 601 points 1 kHz - 50 MHz",
     ]), encoding="utf-8", newline="\n")
     f = np.geomspace(1e6, 3e9, 601)
     z = bead(f)
@@ -86,7 +88,7 @@ def main():
         "Larkspur Yard incoming inspection: B-0612 unmarked ferrite bead",
         "Network analyser, series-thru fixture, 601 points 1 MHz - 3 GHz",
     ]), encoding="utf-8", newline="\n")
-    print("wrote core_ring_8t_reflection.s1p, bead_series_thru.s2p")
+    print("wrote core_ring_8t_series_thru.s2p, bead_series_thru.s2p")
 
 
 if __name__ == "__main__":

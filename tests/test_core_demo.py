@@ -17,11 +17,11 @@ from zfit.io._core_spec import core_spec
 from zfit.io._sweep_file import read_sweep
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_sweeps"
-pytestmark = pytest.mark.skipif(not (DEMO / "core_ring_8t_reflection.s1p").is_file(), reason="demo_sweeps/ not present")
+pytestmark = pytest.mark.skipif(not (DEMO / "core_ring_8t_series_thru.s2p").is_file(), reason="demo_sweeps/ not present")
 
 
 def test_demo_ring_figures():
-    mat = core_material(read_sweep(DEMO / "core_ring_8t_reflection.s1p"), core_constant(core_spec(8, 25, 15, 10)))
+    mat = core_material(read_sweep(DEMO / "core_ring_8t_series_thru.s2p", "series-thru"), core_constant(core_spec(8, 25, 15, 10)))
     # Issue 13 tolerances against the generator's values: mu_i 3 %, mu'' peak (f_r, Debye) 5 %.
     assert mat.mu_i == pytest.approx(2300, rel=0.03)
     assert mat.mu_imag_peak.value_hz == pytest.approx(1.4e6, rel=0.05)
