@@ -400,7 +400,8 @@ def core_material(sweep, constant: CoreConstant, *, rdc: float | None = None, rd
     if fit is not None and not removed:
         warn.append("the winding capacitance C_p is not resolved by the data: it is not removed")
     if not mask[-1]:
-        warn.append(f"mu is given up to {f[mask][-1]:.4g} Hz only: above, the winding capacitance dominates")
+        warn.append(f"mu is given up to {f[mask][-1]:.4g} Hz only: above, the winding capacitance dominates "
+                    "or the core is no longer inductive")
     fv = f[mask]
     band = (float(fv[0]), float(fv[-1]))
     if at:
