@@ -40,8 +40,9 @@ class Parameter:
         Its name in results, limits files and JSON (``"R_s"``).
     unit : str
         SI unit (``"H"``, ``"F"``, ``"ohm"``).
-    family : {'inductor', 'capacitor'}
-        The kind of part whose circuit has it.
+    family : {'inductor', 'capacitor', 'core', 'bead'}
+        The kind of part whose circuit has it (``core`` and ``bead``: the
+        material figures of `zfit core`, which no circuit has).
     optional : bool
         Whether the element is the family's optional one (part of the
         circuit only when the data ask for it).
@@ -73,6 +74,12 @@ _ALL = (
     Parameter("ESR", "ohm", "capacitor", False, "lower", "equivalent series resistance"),
     Parameter("ESL", "H", "capacitor", False, "lower", "equivalent series inductance"),
     Parameter("R_leak", "ohm", "capacitor", True, "upper", "leakage resistance across the capacitance"),
+    # Material figures of a wound core and of a bead (zfit core, docs/cores.md): read from the
+    # measurement, not elements of a circuit; a limits file names them like the parameters.
+    Parameter("mu_i", "", "core", False, "lower", "initial permeability (mu' at low frequency)"),
+    Parameter("f_mu_peak", "Hz", "core", False, "lower", "frequency where mu'' peaks"),
+    Parameter("f_mu_cross", "Hz", "core", False, "lower", "frequency where mu' = mu''"),
+    Parameter("f_RX", "Hz", "bead", False, "lower", "frequency where R = X (a bead's)"),
 )
 
 #: Every parameter by key, in the order of the JSON contract and the summary columns.

@@ -18,6 +18,7 @@ _COMMAND_MODULES = (
     "_batch",
     "_plan",
     "_demo",
+    "_core",
 )
 
 

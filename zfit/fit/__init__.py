@@ -26,6 +26,8 @@ Equivalent circuits
                    winding, relaxing (Debye) core, constant loss tangent,
                    parallel R-L-C sections (beads)
     _lsq           weighted nonlinear least squares with covariance (`refine`)
+    _relaxation    Debye and Cole-Cole permeability fitted to a measured
+                   mu' - j mu'', and a winding's R_dc, C_p with a Cole-Cole core
     _fisher        resolution limits from the Fisher information, the
                    measurement's sigma at a model impedance
 Passive networks

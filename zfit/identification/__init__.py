@@ -23,4 +23,9 @@ _traces       the figures of merit at every sweep point (what a plot draws)
 _diagnostics  adequacy, resolution, DC-resistance and shunt-thru ground-loop warnings
 _result       `Identification`, `FitQuality`, `Candidate`, `ParameterMap` and ``to_dict``
 _plan         the measurement planner
+_core_geometry  the core constant C1 (IEC 60205 effective parameters) and its uncertainty
+_core_material  the complex permeability of a wound core and its material figures (``zfit core``)
+_core_result  the ``zfit.core/1`` JSON object
+_bead         a bead's |Z|, R, X, R = X frequency, |Z| at spot frequencies, multi-section model
+_crossings    where a measured curve crosses zero or peaks, with uncertainty
 """

@@ -29,6 +29,9 @@ _standards
     like any sweep, cached for a lot, applied by `zfit.data._fixture`).
 _limits_file
     The limits TOML of a lot (units checked against each quantity's).
+_core_spec
+    A winding on a core as written (turns, geometry, tolerance), from the
+    command line or a limits file's ``[core]`` table.
 _capture
     `read_capture`: oscilloscope exports by kind (text, ``.npy``, ``.npz``).
 _capture_record

@@ -21,6 +21,11 @@ layout of zfit's own, described in ``docs/batch.md``::
     at = "1M"
     min = 150
 
+A lot of wound cores adds a ``[core]`` table (turns and geometry, the
+options of ``zfit core``) and may then limit the material figures ``mu_i``,
+``f_mu_peak``, ``f_mu_cross`` and ``loss_factor`` (at a frequency); a lot
+of beads may limit ``f_RX`` and ``Z_mag`` at 100 MHz (docs/cores.md).
+
 The decision rule that checks a part against these limits is in
 `zfit.lot._conformity`.
 """
@@ -36,6 +41,7 @@ from pathlib import Path
 from .._errors import ZfitInputError
 from .._units import format_eng, parse_quantity, written_unit
 from .._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
+from ._core_spec import CORE_TABLE_KEYS, CoreSpec, core_spec
 
 __all__ = [
     "Limit",
@@ -45,14 +51,20 @@ __all__ = [
     "figure_name",
     "SPOT_UNITS",
     "DEFAULT_GUARD_K",
+    "CORE_FIGURES",
 ]
 
 #: Figures read at a named frequency (``at = ...``), with their units.
 #: ``ESR`` at a frequency is the real part of Z there (not the circuit's ESR).
 SPOT_UNITS = {"Q": "", "D": "", "ESR": "ohm", "R": "ohm", "X": "ohm", "L_eff": "H", "C_eff": "F", "Z_mag": "ohm"}
+#: A core's loss factor tan(delta)/mu_i at a frequency (docs/cores.md); needs the ``[core]`` table.
+SPOT_UNITS["loss_factor"] = ""
+
+#: Figures that need the ``[core]`` table (the winding's turns and the core's geometry).
+CORE_FIGURES = ("mu_i", "f_mu_peak", "f_mu_cross", "loss_factor")
 
 _LIMIT_KEYS = {"nominal", "tolerance_percent", "tolerance", "min", "max", "at", "guard_band_k"}
-_TOP_KEYS = {"title", "model", "guard_band_k", "limit"}
+_TOP_KEYS = {"title", "model", "guard_band_k", "limit", "core"}
 _MODELS = tuple(PARAMETER_KEYS)
 
 #: Guard band in standard uncertainties when the file gives none (JCGM 106:2012, 8.3.2).
@@ -134,6 +146,8 @@ class Limits:
         The family the file is for (``inductor``/``capacitor``), if stated.
     guard_band_k : float
         The file's default guard band in standard uncertainties.
+    core : CoreSpec or None
+        The ``[core]`` table: turns and geometry of the lot's cores (docs/cores.md).
     """
 
     limits: tuple[Limit, ...]
@@ -141,6 +155,7 @@ class Limits:
     title: str = ""
     model: str | None = None
     guard_band_k: float = DEFAULT_GUARD_K
+    core: CoreSpec | None = None
 
     @property
     def frequencies_hz(self) -> tuple[float, ...]:
@@ -272,7 +287,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
         unit = SPOT_UNITS[quantity]
     elif quantity in UNITS:
         unit = UNITS[quantity]
-        if model is not None and FAMILY_OF[quantity] != model:
+        if model is not None and FAMILY_OF[quantity] in _MODELS and FAMILY_OF[quantity] != model:
             family = FAMILY_OF[quantity]
             article = "an" if family[0] in "aeiou" else "a"
             raise where_for()(f"{quantity} is {article} {family} parameter but the file is for model {model!r}")
@@ -395,6 +410,7 @@ def parse_limits(text: str, path: str = "<limits>") -> Limits:
         k = _number(data["guard_band_k"], "guard_band_k", w)
         if k < 0:
             raise w("guard_band_k must be >= 0")
+    core = _core_table(data.get("core"), lines, str(path))
     table = data.get("limit")
     if not isinstance(table, dict) or not table:
         raise ZfitInputError("no limits: add tables such as [limit.L] with nominal and tolerance_percent",
@@ -414,7 +430,30 @@ def parse_limits(text: str, path: str = "<limits>") -> Limits:
                                      path, lim.line)
             seen[lim.name] = lim
             out.append(lim)
-    return Limits(tuple(out), path=str(path), title=title, model=model, guard_band_k=k)
+    needs_core = next((lim for lim in out if lim.quantity in CORE_FIGURES), None)
+    if needs_core is not None and core is None:
+        raise ZfitInputError(f"limit {needs_core.quantity} needs the cores' turns and geometry: add a [core] table "
+                             "with turns and od, id, height (or core_constant)", path, needs_core.line)
+    return Limits(tuple(out), path=str(path), title=title, model=model, guard_band_k=k, core=core)
+
+
+def _core_table(table, lines: _Lines, path: str) -> CoreSpec | None:
+    """The ``[core]`` table as a `CoreSpec` (keys as the options of ``zfit core``)."""
+    if table is None:
+        return None
+    if not isinstance(table, dict):
+        raise ZfitInputError("core must be a table: [core] with turns, od, id, height", path, lines.first("core"))
+    for key in table:
+        if key not in CORE_TABLE_KEYS:
+            raise ZfitInputError(f"core: unknown key {key!r}; use {', '.join(CORE_TABLE_KEYS)}", path,
+                                 lines.line(("core",), key))
+
+    def fail(message):
+        return ZfitInputError(f"core: {message}", path, lines.line(("core",)))
+
+    return core_spec(table.get("turns"), table.get("od"), table.get("id"), table.get("height"),
+                     table.get("core_constant"), table.get("le"), table.get("ae"), table.get("geometry_tol"),
+                     table.get("rdc"), fail=fail)
 
 
 def read_limits(path) -> Limits:

@@ -31,7 +31,7 @@ __all__ = [
 ]
 
 #: Spot readouts in the order of the summary's columns.
-_SPOT_KEYS = (*SPOT_READOUTS, "ESR")
+_SPOT_KEYS = (*SPOT_READOUTS, "ESR", "loss_factor")
 
 #: The summary files of a run, in its output folder.
 SUMMARY_NAME, LOT_CSV_NAME, LOT_JSON_NAME = "summary.csv", "lot.csv", "lot.json"

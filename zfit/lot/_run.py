@@ -154,12 +154,16 @@ def run_batch(
     read = read or ReadOptions()
     freqs = tuple(sorted({*(limits.frequencies_hz if limits else ()), *(float(f) for f in at)}))
     stems = output_names(items)
+    core = limits.core if limits is not None else None
+    core_at = tuple(lim.f_hz for lim in limits.limits if lim.quantity == "loss_factor") if limits else ()
+    bead = bool(limits) and any(lim.quantity == "f_RX" for lim in limits.limits)
     tasks = []
     for i, ((path, name), stem) in enumerate(zip(items, stems)):
         base = out / stem
         tasks.append(PartTask(
             i, str(path), name, str(base.with_name(base.name + ".json")),
-            str(base.with_name(base.name + "." + plot_format)) if plot else None, model, freqs, read))
+            str(base.with_name(base.name + "." + plot_format)) if plot else None, model, freqs, read,
+            core, core_at, bead))
     out.mkdir(parents=True, exist_ok=True)
     manifest = read_manifest(out, force)
     digest = read_options_digest(read)

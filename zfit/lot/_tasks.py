@@ -70,6 +70,13 @@ class PartTask:
         Spot frequencies (Hz) to read out.
     read : ReadOptions
         How to read the sweep.
+    core : CoreSpec or None
+        The lot's cores (the limits file's ``[core]``): the material figures
+        (``mu_i``, ...) are added to the part's summary.
+    core_at : tuple of float
+        Frequencies of the core's loss factor to add.
+    bead : bool
+        Add the bead's ``f_RX`` to the summary.
     """
 
     index: int
@@ -80,6 +87,9 @@ class PartTask:
     model: str = "auto"
     at: tuple = ()
     read: ReadOptions = field(default_factory=ReadOptions)
+    core: object = None
+    core_at: tuple = ()
+    bead: bool = False
 
     def output_paths(self) -> tuple:
         """Return every file the part may write: its JSON, and its plots when asked."""

@@ -78,6 +78,8 @@ def identify_part(task: PartTask) -> PartOutcome:
                 for p in write_outputs(ident, plot=task.plot_path, force=True):
                     written.append((str(p), file_sha256(p)))
             summary = part_summary(ident)
+            if task.core is not None or task.bead:
+                summary = _with_material(summary, sweep, task)
         except Exception as exc:  # one bad part must not stop the lot
             summary, error = None, _one_line(exc, task)
     seen = []
@@ -89,6 +91,28 @@ def identify_part(task: PartTask) -> PartOutcome:
             seen.append(w)
     return PartOutcome(task.index, task.name, summary, error, tuple(seen), False, time.perf_counter() - t0,
                        tuple(written) if error is None else ())
+
+
+def _with_material(summary, sweep, task: PartTask):
+    """The summary with the core's material figures or the bead's R = X frequency (docs/cores.md)."""
+    from dataclasses import replace
+
+    from ..io._limits_file import figure_name
+
+    figs = dict(summary.figures)
+    if task.core is not None:
+        from ..identification._core_geometry import core_constant
+        from ..identification._core_material import core_material
+
+        mat = core_material(sweep, core_constant(task.core), rdc=task.core.rdc_ohm, at=task.core_at)
+        figs.update(mat.figures())
+        for lf in mat.loss_factors:
+            figs[figure_name("loss_factor", lf.f_hz)] = (lf.tan_delta_over_mu_i, lf.tan_delta_over_mu_i_std)
+    if task.bead:
+        from ..identification._bead import bead_figures
+
+        figs.update(bead_figures(sweep, at=(), model=False).figures())
+    return replace(summary, figures=figs)
 
 
 #: How often a worker looks whether its parent is still there, in seconds.
