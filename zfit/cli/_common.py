@@ -15,13 +15,13 @@ from pathlib import Path
 from typing import Annotated, Optional
 
 import typer
-from typer.core import TyperGroup
+from typer.core import TyperCommand, TyperGroup
 
 from .._errors import MeasurementWarning, ZfitError, ZfitInputError
 from .._units import bounded, parse_quantity
 
 __all__ = [
-    "app", "guarded", "command_line", "emit_json", "quantity", "quantities", "SHUNT_RANGE_OHM", "echo", "warn_line", "sweep_from_options",
+    "app", "CommandGroup", "guarded", "command_line", "emit_json", "quantity", "quantities", "SHUNT_RANGE_OHM", "echo", "warn_line", "sweep_from_options",
     "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
     "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
 ]
@@ -52,7 +52,74 @@ class _Commands(TyperGroup):
             raise _OneLineError(exc.format_message()) from None
 
 
-app = typer.Typer(
+#: The placeholder of an option's value in help, by its Python type, where the
+#: option does not name its own (``--L HENRY``): typer's own are ``<str>``,
+#: ``<list[str]>``, ``<path>``, which read as code, not as what to type.
+_METAVAR_BY_TYPE = {"str": "VALUE", "int": "N", "float": "VALUE", "Path": "PATH", "bool": ""}
+
+
+def _metavar(param) -> str:
+    """The placeholder of an option's value: its own metavar, else one by its type."""
+    if param.metavar:
+        return param.metavar
+    annotation = getattr(getattr(param, "type_descriptor", None), "annotation", None)
+    name = getattr(annotation, "__name__", str(annotation))
+    for key, word in _METAVAR_BY_TYPE.items():
+        if key in name:
+            return word
+    return "VALUE"
+
+
+class _Command(TyperCommand):
+    """A zfit command: its usage line names the required options, its help plain placeholders.
+
+    ``Usage: zfit plan inductor --L HENRY --C_p FARAD --R_s OHM [OPTIONS]``
+    says how to call at a glance; an argument is written ``SWEEP`` (``[SWEEP]``
+    when optional), as POSIX utility syntax does, not ``{sweep}``.
+    """
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        for param in self.params:
+            if param.param_type_name == "option" and not param.is_flag and not param.metavar:
+                param.metavar = _metavar(param) or None
+
+    def collect_usage_pieces(self, ctx):
+        required = [f"{p.opts[0]} {_metavar(p)}".rstrip() for p in self.get_params(ctx)
+                    if p.param_type_name == "option" and p.required]
+        arguments = []
+        for p in self.get_params(ctx):
+            if p.param_type_name == "argument":
+                name = (p.metavar or p.name).upper() + ("..." if p.nargs != 1 else "")
+                arguments.append(name if p.required else f"[{name}]")
+        return required + [self.options_metavar] + arguments
+
+    def format_options(self, ctx, formatter):
+        arguments, options = [], []
+        for p in self.get_params(ctx):
+            if p.param_type_name == "argument":
+                name = (p.metavar or p.name).upper() + ("..." if p.nargs != 1 else "")
+                arguments.append((name, (p.help or "") + ("  [required]" if p.required else "")))
+            else:
+                record = p.get_help_record(ctx)
+                if record is not None:
+                    options.append(record)
+        if arguments:
+            with formatter.section("Arguments"):
+                formatter.write_dl(arguments)
+        if options:
+            with formatter.section("Options"):
+                formatter.write_dl(options)
+
+
+class CommandGroup(typer.Typer):
+    """A typer app whose commands are `_Command` (zfit's usage line and placeholders)."""
+
+    def command(self, *args, cls=None, **kwargs):
+        return super().command(*args, cls=cls or _Command, **kwargs)
+
+
+app = CommandGroup(
     name="zfit",
     cls=_Commands,
     help=(
