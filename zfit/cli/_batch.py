@@ -76,6 +76,7 @@ def batch_command(
     Safety: discharge capacitors before connecting them to an analyser; for
     parts on mains or high voltage follow local codes and licensed practice.
     """
+    from ..data._sweep import FREQUENCY_RANGE_HZ
     from ..io._limits_file import read_limits
     from ..lot._run import run_batch
     from ..lot._tasks import ReadOptions
@@ -93,7 +94,7 @@ def batch_command(
         load_value=load_value, port_delay=port_delay, port_loss=port_loss,
     )
     result = run_batch(
-        inputs, out, limits=lim, model=model, at=quantities(at, "--at"), read=read, jobs=jobs,
+        inputs, out, limits=lim, model=model, at=quantities(at, "--at", *FREQUENCY_RANGE_HZ, unit="Hz"), read=read, jobs=jobs,
         cluster=cluster, plot=plot, plot_format=plot_format, force=force, progress=False if quiet else None,
     )
     from ..lot._lot_files import lot_text, verdict_lines

@@ -41,6 +41,7 @@ from types import MappingProxyType
 import numpy as np
 
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise
+from ..data._sweep import ELEMENT_RANGES
 from ..fit._simulate import SIMULATED_CONNECTIONS, simulated_sweep
 from ..io._sweep_file import S_NOISE_DEFAULT, TABLE_NOISE_DEFAULT
 from .._parameters import OPTIONAL_KEY, REQUIRED_KEYS, UNITS
@@ -293,14 +294,9 @@ class Plan:
         }
 
 
-#: The values a plan accepts, by unit (inclusive).  They span every passive
-#: part made, with decades to spare (1 fH of an on-chip trace to 1 kH of a
-#: mains choke; 1 aF to the 1 kF of a supercapacitor; 1 nohm to 1 Pohm of a
-#: film capacitor's leakage), and within them the circuit's impedance, its S
-#: parameters and their Fisher information stay inside double precision
-#: (checked at every corner of the box by tests/test_bounds.py).  Beyond them
-#: the products ``s L``, ``1 / (s C)`` overflow or vanish and the plan means nothing.
-PLAN_VALUE_RANGES = MappingProxyType({"H": (1e-15, 1e3), "F": (1e-18, 1e3), "ohm": (1e-9, 1e15)})
+#: The values a plan accepts, by unit: those zfit computes with
+#: (`zfit.data._sweep.ELEMENT_RANGES`).
+PLAN_VALUE_RANGES = ELEMENT_RANGES
 
 
 def _check_params(model, params):

@@ -11,6 +11,8 @@ from typing import Mapping
 import numpy as np
 
 from .._errors import ZfitInputError
+from .._units import format_eng
+from ..data._sweep import SAMPLE_INTERVAL_RANGE_S
 
 __all__ = ["Capture", "make_capture", "clipped_fraction", "check_finite", "MIN_SAMPLES", "MAX_SAMPLE"]
 
@@ -131,6 +133,10 @@ class Capture:
         return self.channels[self.channel_name(key)]
 
 
+#: The farthest start of a record from time zero, in sample intervals (see `make_capture`).
+MAX_START_INTERVALS = 1e12
+
+
 def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "", notes=(), file_columns=()) -> Capture:
     """Return a validated `Capture` from arrays.
 
@@ -170,8 +176,17 @@ def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "",
     dt = float(dt)
     if not (math.isfinite(dt) and dt > 0):
         raise ZfitInputError(f"sample interval {dt!r} s is not a positive number", source)
+    lo, hi = SAMPLE_INTERVAL_RANGE_S
+    if not lo <= dt <= hi:
+        raise ZfitInputError(f"sample interval {format_eng(dt, 's')} is outside {format_eng(lo, 's')} .. "
+                             f"{format_eng(hi, 's')}, the range zfit computes in (a unit error?)", source)
     if not math.isfinite(float(t0)):
         raise ZfitInputError("start time is not a finite number", source)
+    # Sample times are t0 + k dt: a start more than 1e12 intervals from the trigger leaves
+    # double precision too few digits of dt to tell the samples apart.
+    if abs(float(t0)) > MAX_START_INTERVALS * dt:
+        raise ZfitInputError(f"start time {format_eng(float(t0), 's')} is more than {MAX_START_INTERVALS:.0e} sample "
+                             f"intervals ({format_eng(dt, 's')}) from zero; give times relative to the trigger", source)
     arrs = []
     for name, a in zip(names, arrays):
         a = np.asarray(a, dtype=float)
