@@ -238,3 +238,19 @@ def test_touchstone_frequencies_in_the_denormal_range_are_one_line(tmp_path):
     p = tmp_path / "den.s1p"
     p.write_text("\n".join(lines) + "\n")
     assert_refused(run("info", p), re.escape(str(p)) + r":6: frequency .* Hz is outside 1u Hz \.\. 10T Hz")
+
+
+@pytest.mark.parametrize("column, text", [(2, "Rs"), (1, "Ls")])
+def test_an_exact_zero_resistance_or_reactance_in_a_table_is_read(tmp_path, column, text):
+    # An LCR meter prints 0.000 for a resistance (or inductance) below its last digit: the
+    # point is a measurement (Q or D infinite there), not an error; nothing divides by it.
+    lines = (DEMO / "ind_47u_lcr_ls_rs.txt").read_text().splitlines()
+    cells = lines[10].split("\t")
+    cells[column] = "0"
+    lines[10] = "\t".join(cells)
+    p = tmp_path / f"zero_{text}.txt"
+    p.write_text("\n".join(lines) + "\n")
+    r = run("identify", p, "--at", "1k", "--plot", tmp_path / "x.png", "--report", tmp_path / "x.html")
+    assert r.exit_code == 0, r.output
+    assert "Traceback" not in r.output and "divide" not in r.output
+    assert (tmp_path / "x.png").stat().st_size > 10_000

@@ -249,8 +249,9 @@ class MeasuredFigures:
 
     @property
     def d(self) -> np.ndarray:
-        """Dissipation factor R/|X|."""
-        return self.r_ohm / np.abs(self.x_ohm)
+        """Dissipation factor R/|X| (infinite where a file gives X = 0 exactly)."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return self.r_ohm / np.abs(self.x_ohm)
 
     @property
     def d_std(self) -> np.ndarray:

@@ -558,10 +558,14 @@ def _reason(ranked, reference_ohm: float = 50.0) -> str:
     key = _deciding(best, rival) if rival is not None and best.error is None else None
     if key is not None and key in best.determined_ohm:
         lo, hi = best.determined_ohm[key]
-        where = impedance_range(math.sqrt(lo * hi), reference_ohm)
+        span = (f"|Z| is {format_eng(lo, 'ohm')} to {format_eng(hi, 'ohm')}" if hi > 1.01 * lo
+                else f"|Z| is about {format_eng(math.sqrt(lo * hi), 'ohm')}")
         head += (f"; it wins on {key} ({_rel_text(best.parameters[key]).split(' to ')[1]} against "
-                 f"{_rel_text(rival.parameters[key]).split(' to ')[-1]} in {rival.label}), determined where |Z| is "
-                 f"{format_eng(lo, 'ohm')} to {format_eng(hi, 'ohm')}: {_RANGE_WORDS[where]}, {where}'s range")
+                 f"{_rel_text(rival.parameters[key]).split(' to ')[-1]} in {rival.label}), determined where {span}")
+        if best.connection in NA_CONNECTIONS:
+            # The network analyser's connections each have their range; the table has none.
+            where = impedance_range(math.sqrt(lo * hi), reference_ohm)
+            head += f": {_RANGE_WORDS[where]}, {where}'s range"
     others = []
     for c in ranked[1:]:
         if c.error is not None:
