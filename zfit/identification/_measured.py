@@ -153,10 +153,10 @@ def _smooth_part(x, y, s, x0, half_span, min_points):
     the sparse low end of a linear sweep.
     """
     idx0 = _local_weights(x, s, x0, half_span, min_points)[0]
-    # A passive part's impedance follows f^k with |k| <= 1 per reactance; a steeper
-    # slope is a jump in the data (a decades-off row), and exp(-k dx) would overflow.
-    k = float(np.clip(_power_slope(x[idx0], y[idx0], s[idx0]), -4.0, 4.0))
-    scale = np.exp(-k * (x - x0))
+    k = _power_slope(x[idx0], y[idx0], s[idx0])
+    # Saturated at e^300 (1e130), far beyond the factor of any point a window uses: a
+    # jump of decades in the data (a row off by a unit) must not overflow y and s.
+    scale = np.exp(np.clip(-k * (x - x0), -300.0, 300.0))
     y, s = y * scale, s * scale
     idx, a, A, w = _local_weights(x, s, x0, half_span, min_points)
     var = float(np.sum(a**2 * s[idx] ** 2))
