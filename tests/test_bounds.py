@@ -254,3 +254,48 @@ def test_an_exact_zero_resistance_or_reactance_in_a_table_is_read(tmp_path, colu
     assert r.exit_code == 0, r.output
     assert "Traceback" not in r.output and "divide" not in r.output
     assert (tmp_path / "x.png").stat().st_size > 10_000
+
+
+LIMITS = '''title = "t"
+model = "inductor"
+guard_band_k = {gb}
+[limit.L]
+nominal = {nom}
+tolerance_percent = {tol}
+[limit.R_s]
+max = {mx}
+[limit.SRF]
+min = {srf}
+[[limit.Q]]
+at = {at}
+min = 150
+'''
+LIMITS_OK = dict(gb="2", nom='"10u"', tol="10", mx='"250m"', srf='"20M"', at='"1M"')
+
+
+@pytest.mark.parametrize("key, value, message", [
+    # JCGM 106:2012 works with guard bands of 1 to 3 standard uncertainties; 10 is the bound.
+    ("gb", "1e300", r":3: guard_band_k 1e\+300 is out of range: give a value between 0 and 10$"),
+    ("nom", "1e300", r":5: limit L: nominal 1e\+300 H is out of range: give a value between 1f H and 1k H$"),
+    ("tol", "1e300", r":6: limit L: tolerance_percent 1e\+300 % is out of range: give a value between 0 % and 1k %$"),
+    ("tol", "[-20, 1e300]", r":6: limit L: tolerance_percent 1e\+300 % is out of range"),
+    ("mx", "-1", r":8: limit R_s: max -1 ohm is out of range: give a value between 0 ohm and 1P ohm$"),
+    ("srf", "1e300", r":10: limit SRF: min 1e\+300 Hz is out of range: give a value between 0 Hz and 10T Hz$"),
+    ("at", "1e-320", r":12: limit Q: at .* Hz is out of range: give a value between 1u Hz and 10T Hz$"),
+])
+def test_limits_file_values_are_bounded(tmp_path, key, value, message):
+    p = tmp_path / "limits.toml"
+    p.write_text(LIMITS.format(**{**LIMITS_OK, key: value}))
+    r = run("batch", S1P, "-o", tmp_path / "out", "--limits", p, "-q", "-j", "1")
+    assert_refused(r, re.escape(str(p)) + message)
+    assert not (tmp_path / "out").exists()
+
+
+def test_limits_file_within_the_bounds_reads(tmp_path):
+    from zfit.io._limits_file import read_limits
+
+    p = tmp_path / "limits.toml"
+    p.write_text(LIMITS.format(**{**LIMITS_OK, "tol": "[-20, 80]"}))
+    lim = read_limits(p)
+    low, high = next((x.lower, x.upper) for x in lim.limits if x.name == "L")
+    assert low == pytest.approx(8e-6, rel=1e-12) and high == pytest.approx(18e-6, rel=1e-12)  # 10 uH -20 %/+80 %
