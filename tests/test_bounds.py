@@ -307,16 +307,3 @@ def test_the_part_given_as_its_own_short_is_one_line():
     assert_refused(r, re.escape(str(S1P)) + r": compensation leaves Z = 0 exactly at every point: the part measures "
                    r"exactly as the short standard")
 
-
-def test_a_negative_port_delay_within_its_range_is_applied():
-    # --port-delay is bounded to -100n .. 100n s (READING_OPTION_RANGES); a negative delay moves the
-    # plane back.  Removing +35 ps and then -35 ps is the identity: S11 exp(+j2wt) exp(-j2wt) (Pozar, sec. 2.3).
-    from zfit.data._fixture import port_extended
-    from zfit.io._sweep_file import read_sweep
-
-    s = read_sweep(S1P)
-    back = port_extended(port_extended(s, 35e-12), -35e-12)
-    assert np.max(np.abs(back.s_param - s.s_param)) < 1e-12  # float rounding of two rotations
-    r = run("info", S1P, "--port-delay", "-35p")
-    assert r.exit_code == 0, r.output
-    assert "port extension by -35p s removed from S11" in r.output

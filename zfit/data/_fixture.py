@@ -331,9 +331,7 @@ def port_extended(sweep, delay_s: float, loss=None):
         impedance and noise model.
     delay_s : float
         One-way electrical delay of the line to remove, seconds (about
-        5 ps per mm of PTFE coax, common practice).  Negative moves the
-        plane back towards the analyser (a calibration plane that lies
-        beyond the part's terminals), as analysers' port extension allows.
+        5 ps per mm of PTFE coax, common practice).
     loss : float, optional
         One-way loss of the line in dB at 1 GHz, scaled with ``sqrt(f)``
         (conductor skin effect, the dominant loss of short coax; dielectric
@@ -352,8 +350,7 @@ def port_extended(sweep, delay_s: float, loss=None):
     ZfitInputError
         For a sweep that is not a reflection measurement with its S11, or
         whose impedance was already changed (port extension comes before
-        fixture compensation), for a delay that is not finite, or for a
-        negative loss.
+        fixture compensation), or for a negative delay or loss.
 
     References
     ----------
@@ -368,8 +365,8 @@ def port_extended(sweep, delay_s: float, loss=None):
             f"{sweep.connection}" + ("" if sweep.s_param is not None else " without S-parameters"),
             src,
         )
-    if not np.isfinite(delay_s):
-        raise ZfitInputError(f"port delay must be a finite number of seconds (got {delay_s:g})", src)
+    if not np.isfinite(delay_s) or delay_s < 0:
+        raise ZfitInputError(f"port delay must be a non-negative number of seconds (got {delay_s:g})", src)
     loss_db = 0.0 if loss is None else float(loss)
     if not np.isfinite(loss_db) or loss_db < 0:
         raise ZfitInputError(f"port loss must be a non-negative number of dB at 1 GHz (got {loss_db:g})", src)
