@@ -129,7 +129,7 @@ def _npz(tmp_path, name="cap.npz", **arrays):
     ({"t": np.arange(4000) * 1e292}, r"the time column's sample interval 1e\+292 s is outside 1f s \.\. 1k s"),
     ({"t": np.arange(4000) * 1e-318}, r"the time column's sample interval .* s is outside 1f s \.\. 1k s"),
     # A start 1e20 s away from the trigger leaves no digit of a 10 ns interval (double has 16).
-    ({"t": 1e20 + np.arange(4000) * 1e-8}, r"the time column (does not increase|starts at 100E s, more than 1e\+12 sample intervals)"),
+    ({"t": 1e20 + np.arange(4000) * 1e-8}, r"(the time column does not increase|start time 100E s is more than 1e\+12 sample intervals)"),
     ({"dt": np.array(1e-8), "t0": np.array(1e10)}, r"start time 10G s is more than 1e\+12 sample intervals \(10n s\) from zero"),
 ])
 def test_capture_time_base_is_bounded(tmp_path, arrays, message):

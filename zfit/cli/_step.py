@@ -55,9 +55,8 @@ def step_command(
     from ..io._capture import read_capture
     from .._errors import ZfitInputError
     from ..capture._analysis import analyse_capture
-    from ..outputs._views import response_csv, step_summary
-
     from ..data._sweep import ELEMENT_RANGES, SAMPLE_INTERVAL_RANGE_S
+    from ..outputs._views import response_csv, step_summary
 
     shunt_ohm = quantity(shunt, "--shunt", *SHUNT_RANGE_OHM, unit="ohm")
     inductance_h = quantity(inductance, "--inductance", *ELEMENT_RANGES["H"], unit="H")
@@ -65,9 +64,6 @@ def step_command(
     dt_s = quantity(dt, "--dt", *SAMPLE_INTERVAL_RANGE_S, unit="s")
     if (added_capture is None) != (added_f is None):
         raise ZfitInputError("--added-capture and --added-capacitance go together")
-    for name, v in (("--shunt", shunt_ohm), ("--inductance", inductance_h), ("--added-capacitance", added_f), ("--dt", dt_s)):
-        if v is not None and not v > 0:
-            raise ZfitInputError(f"{name} must be positive")
     if response is not None and response.suffix.lower() not in (".csv", ".txt"):
         raise ZfitInputError("the response file is written as CSV: give a .csv path", response)
     if netlist is not None and shunt_ohm is None:

@@ -56,7 +56,6 @@ __all__ = [
     "ConnectionPlan",
     "Plan",
     "plan_measurement",
-    "PLAN_VALUE_RANGES",
     "impedance_range",
 ]
 
@@ -294,11 +293,6 @@ class Plan:
         }
 
 
-#: The values a plan accepts, by unit: those zfit computes with
-#: (`zfit.data._sweep.ELEMENT_RANGES`).
-PLAN_VALUE_RANGES = ELEMENT_RANGES
-
-
 def _check_params(model, params):
     if model not in REQUIRED_KEYS:
         raise ZfitInputError(f"unknown model {model!r}; use inductor or capacitor")
@@ -309,7 +303,8 @@ def _check_params(model, params):
             if k in REQUIRED_KEYS[model]:
                 raise ZfitInputError(f"a {model} plan needs --{k} (the part's expected value)")
             continue
-        out[k] = bounded(v, f"--{k}", *PLAN_VALUE_RANGES[UNITS[k]], unit=UNITS[k])
+        # The values zfit computes with (ELEMENT_RANGES): beyond them s L or 1/(s C) overflows.
+        out[k] = bounded(v, f"--{k}", *ELEMENT_RANGES[UNITS[k]], unit=UNITS[k])
     extra = set(params) - set(out) - {k for k, v in params.items() if v is None}
     if extra:
         raise ZfitInputError(f"a {model} has no parameter {', '.join(sorted(extra))}")

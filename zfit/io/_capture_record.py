@@ -14,7 +14,8 @@ from .._errors import ZfitInputError
 from .._units import format_eng
 from ..data._sweep import SAMPLE_INTERVAL_RANGE_S
 
-__all__ = ["Capture", "make_capture", "clipped_fraction", "check_finite", "MIN_SAMPLES", "MAX_SAMPLE"]
+__all__ = ["Capture", "make_capture", "clipped_fraction", "check_finite", "check_time_base", "MIN_SAMPLES", "MAX_SAMPLE",
+           "MAX_START_INTERVALS"]
 
 #: A record shorter than this cannot hold an edge with its settled levels.
 MIN_SAMPLES = 16
@@ -133,8 +134,36 @@ class Capture:
         return self.channels[self.channel_name(key)]
 
 
-#: The farthest start of a record from time zero, in sample intervals (see `make_capture`).
+#: The farthest start of a record from time zero, in sample intervals: sample
+#: times are t0 + k dt, and beyond 1e12 intervals double precision keeps too
+#: few digits of dt to tell the samples apart.
 MAX_START_INTERVALS = 1e12
+
+
+def check_time_base(dt: float, t0: float, source, line: int | None = None, what: str = "sample interval") -> None:
+    """Refuse a sample interval outside `SAMPLE_INTERVAL_RANGE_S` or a start too far from zero.
+
+    Parameters
+    ----------
+    dt, t0 : float
+        Sample interval (positive) and time of the first sample, s.
+    source, line
+        The file and line, for the message.
+    what : str
+        What the interval is called in the message.
+
+    Raises
+    ------
+    ZfitInputError
+        With the range in the message.
+    """
+    lo, hi = SAMPLE_INTERVAL_RANGE_S
+    if not lo <= dt <= hi:
+        raise ZfitInputError(f"{what} {format_eng(dt, 's')} is outside {format_eng(lo, 's')} .. {format_eng(hi, 's')}, "
+                             "the range zfit computes in (a unit error?)", source, line)
+    if abs(t0) > MAX_START_INTERVALS * dt:
+        raise ZfitInputError(f"start time {format_eng(t0, 's')} is more than {MAX_START_INTERVALS:.0e} sample "
+                             f"intervals ({format_eng(dt, 's')}) from zero; give times relative to the trigger", source, line)
 
 
 def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "", notes=(), file_columns=()) -> Capture:
@@ -176,17 +205,9 @@ def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "",
     dt = float(dt)
     if not (math.isfinite(dt) and dt > 0):
         raise ZfitInputError(f"sample interval {dt!r} s is not a positive number", source)
-    lo, hi = SAMPLE_INTERVAL_RANGE_S
-    if not lo <= dt <= hi:
-        raise ZfitInputError(f"sample interval {format_eng(dt, 's')} is outside {format_eng(lo, 's')} .. "
-                             f"{format_eng(hi, 's')}, the range zfit computes in (a unit error?)", source)
     if not math.isfinite(float(t0)):
         raise ZfitInputError("start time is not a finite number", source)
-    # Sample times are t0 + k dt: a start more than 1e12 intervals from the trigger leaves
-    # double precision too few digits of dt to tell the samples apart.
-    if abs(float(t0)) > MAX_START_INTERVALS * dt:
-        raise ZfitInputError(f"start time {format_eng(float(t0), 's')} is more than {MAX_START_INTERVALS:.0e} sample "
-                             f"intervals ({format_eng(dt, 's')}) from zero; give times relative to the trigger", source)
+    check_time_base(dt, float(t0), source)
     arrs = []
     for name, a in zip(names, arrays):
         a = np.asarray(a, dtype=float)
