@@ -307,3 +307,30 @@ def test_the_part_given_as_its_own_short_is_one_line():
     assert_refused(r, re.escape(str(S1P)) + r": compensation leaves Z = 0 exactly at every point: the part measures "
                    r"exactly as the short standard")
 
+
+
+@pytest.mark.parametrize("grid, message", [
+    ("1e-300:1G", r"--touchstone-grid 1e-300 Hz is out of range: give a value between 1u Hz and 10T Hz$"),
+    ("1k:1e300:11", r"--touchstone-grid 1e\+300 Hz is out of range"),
+    ("0:1e300:11lin", r"--touchstone-grid 1e\+300 Hz is out of range"),
+])
+def test_touchstone_grid_is_bounded(tmp_path, grid, message):
+    r = run("identify", S1P, "--touchstone", tmp_path / "m.s1p", "--touchstone-grid", grid)
+    assert_refused(r, message)
+    assert not (tmp_path / "m.s1p").exists()
+
+
+def test_linear_touchstone_grid_from_zero_still_written(tmp_path):
+    # 0:1G:11lin is 0, 100M, ..., 1G; the 0 Hz row is dropped (no S11 at DC): 10 rows.
+    out = tmp_path / "m.s1p"
+    r = run("identify", S1P, "--touchstone", out, "--touchstone-grid", "0:1G:11lin")
+    assert r.exit_code == 0, r.output
+    rows = [x for x in out.read_text().splitlines() if x and x[0].isdigit()]
+    assert len(rows) == 10 and float(rows[0].split()[0]) == pytest.approx(1e8, rel=1e-12)
+
+
+@pytest.mark.parametrize("jobs", ["0", "100000000"])
+def test_batch_jobs_are_bounded(tmp_path, jobs):
+    r = run("batch", S1P, "-o", tmp_path / "out", "-j", jobs, "-q")
+    assert_refused(r, rf"--jobs {jobs} is out of range: give 1 to 1024 worker processes$")
+    assert not (tmp_path / "out").exists()

@@ -85,6 +85,11 @@ def batch_command(
         from .._errors import ZfitInputError
 
         raise ZfitInputError(f"--model {model!r}: use auto, inductor, capacitor or rational")
+    if jobs is not None and not 1 <= jobs <= 1024:
+        from .._errors import ZfitInputError
+
+        # More worker processes than 1024 is more than any machine's cores: a typing slip.
+        raise ZfitInputError(f"--jobs {jobs} is out of range: give 1 to 1024 worker processes")
     lim = read_limits(limits) if limits is not None else None
     read = ReadOptions(
         connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns,
