@@ -334,3 +334,17 @@ def test_batch_jobs_are_bounded(tmp_path, jobs):
     r = run("batch", S1P, "-o", tmp_path / "out", "-j", jobs, "-q")
     assert_refused(r, rf"--jobs {jobs} is out of range: give 1 to 1024 worker processes$")
     assert not (tmp_path / "out").exists()
+
+
+def test_series_thru_s21_within_1e12_of_an_open_names_the_value(tmp_path):
+    # |S21| = 1e-200 in series-thru: Z = 2 Z0 (1 - S21) / S21 ~ 1e202 ohm (docs/reading.md's formula),
+    # beyond any measurement; the message gives the value instead of calling it zero.
+    lines = (DEMO / "ind_10u_series_thru.s2p").read_text().splitlines()
+    cells = lines[10].split()
+    cells[3] = cells[5] = "1e-200"
+    lines[10] = " ".join(cells)
+    p = tmp_path / "open.s2p"
+    p.write_text("\n".join(lines) + "\n")
+    assert_refused(run("info", p, "--connection", "series-thru"),
+                   re.escape(str(p)) + r":11: \|S21 - 0\| = 1e-200, within 1e-12 of an open in series: \|Z\| would "
+                   r"exceed 1e12 times the reference impedance$")
