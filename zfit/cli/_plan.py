@@ -39,11 +39,11 @@ plan_app = CommandGroup(
 )
 app.add_typer(plan_app, name="plan")
 
-BandOpt = Annotated[str, typer.Option("--band", metavar="LOW:HIGH", help="Swept band low:high in Hz, engineering notation, e.g. 1k:1G.")]
+BandOpt = Annotated[str, typer.Option("--band", metavar="FMIN:FMAX", help="Swept band low:high in Hz, engineering notation, e.g. 1k:1G.")]
 PointsOpt = Annotated[int, typer.Option("--points", metavar="N", help="Log-spaced points of the sweep (10 to 100001).")]
 JsonOpt = Annotated[Optional[Path], typer.Option("--json", metavar="PATH", help="Write the plan as zfit.plan/1 JSON to this file ('-' for standard output).")]
 NaRelOpt = Annotated[Optional[str], typer.Option("--noise-rel", metavar="REL", help="Network analyser: relative noise on S (default 1e-3).")]
-NaFloorOpt = Annotated[Optional[str], typer.Option("--noise-floor", metavar="S", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
+NaFloorOpt = Annotated[Optional[str], typer.Option("--noise-floor", metavar="FLOOR", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
 TabRelOpt = Annotated[Optional[str], typer.Option("--table-rel", metavar="REL", help="Analyser table: relative accuracy on Z (default 1e-3 = 0.1 %).")]
 TabFloorOpt = Annotated[Optional[str], typer.Option("--table-floor", metavar="OHM", help="Analyser table: accuracy floor in ohm (default 100u, as the readers').")]
 RefOpt = Annotated[str, typer.Option("--reference", metavar="OHM", help="Reference impedance of the analyser ports, ohm (1m to 1M).")]
