@@ -348,3 +348,37 @@ def test_series_thru_s21_within_1e12_of_an_open_names_the_value(tmp_path):
     assert_refused(run("info", p, "--connection", "series-thru"),
                    re.escape(str(p)) + r":11: \|S21 - 0\| = 1e-200, within 1e-12 of an open in series: \|Z\| would "
                    r"exceed 1e12 times the reference impedance$")
+
+
+#: Every numeric option of every command, with what else the command needs to reach it.
+NUMERIC_OPTIONS = [
+    *((("info", S1P), o) for o in ("--noise-rel", "--noise-floor", "--port-delay", "--port-loss")),
+    (("info", S1P, "--open", S1P, "--short", S1P, "--load", S1P), "--load-value"),
+    *((("identify", S1P), o) for o in ("--at", "--rdc")),
+    (("identify", S1P, "--rdc", "25m"), "--rdc-std"),
+    *((("step", RING, "-i", "CH1", "-o", "CH2"), o) for o in ("--shunt", "--inductance", "--dt")),
+    (("step", RING, "-i", "CH1", "-o", "CH2", "--added-capture", RING_PLUS), "--added-capacitance"),
+    *((INDUCTOR[:2] + ("--L", "10u", "--R_s", "50m", "--C_p", "5p"), o)
+      for o in ("--L", "--R_s", "--C_p", "--R_p", "--noise-rel", "--noise-floor", "--table-rel", "--table-floor",
+                "--reference")),
+    *((CAPACITOR[:2] + ("--C", "100n", "--ESR", "5m", "--ESL", "500p"), o) for o in ("--C", "--ESR", "--ESL", "--R_leak")),
+]
+
+
+@pytest.mark.parametrize("value", ["1e300", "-1e300"])
+@pytest.mark.parametrize("prefix, option", NUMERIC_OPTIONS, ids=[f"{p[0]}{o}" for p, o in NUMERIC_OPTIONS])
+def test_every_numeric_option_refuses_a_value_beyond_its_range(tmp_path, prefix, option, value):
+    # No option of zfit means anything at 1e300 or -1e300 of its unit (every range is stated
+    # where it is defined); each is refused in one line that gives the range.
+    args = [*prefix]
+    if option in args:  # the option given in the prefix is replaced, not repeated
+        args[args.index(option) + 1] = value
+    else:
+        args += [option, value]
+    r = run(*args)
+    if option == "--reference":
+        # Named as test_plan.py's check of --reference 0 has it ("must be a positive number of ohm").
+        assert_refused(r, r"the reference impedance (.* is out of range: give a value between 1m ohm and 1M ohm"
+                          r"|must be a positive number of ohm)")
+        return
+    assert_refused(r, rf"{re.escape(option)} .*is out of range: give a value (between|of at least|of at most) ")
