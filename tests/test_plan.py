@@ -10,8 +10,8 @@ measurement, the noise drawn in this file from the analyser noise model
 """
 
 import json
-import re
 import math
+import re
 import warnings
 
 import numpy as np
