@@ -11,6 +11,7 @@ measurement, the noise drawn in this file from the analyser noise model
 
 import json
 import math
+import re
 import warnings
 
 import numpy as np
@@ -21,6 +22,7 @@ from zfit.cli._app import app
 from zfit._errors import MeasurementWarning, ZfitInputError
 from zfit.identification._pipeline import identify
 from zfit.fit._simulate import simulated_sweep
+from zfit.data._connection import InstrumentNoise
 from zfit.identification._plan import NA_NOISE_DEFAULT, TABLE_ACCURACY_DEFAULT, plan_measurement
 
 CAP = ("capacitor", {"C": 100e-9, "ESR": 5e-3, "ESL": 0.5e-9})
@@ -82,14 +84,37 @@ def test_predicted_uncertainty_agrees_with_a_monte_carlo_of_identify(part, plans
 def test_capacitor_plan_prefers_shunt_thru_over_reflection(plans):
     # Common practice: milliohm impedances are measured shunt-thru (the part
     # across the line, S21 ~ 2Z/Z0), not in reflection, where S11 ~ -1 and
-    # the ESR hides in 1 + S11.
-    plan = plans["capacitor"]
+    # the ESR hides in 1 + S11; nor on an impedance analyser whose compensated
+    # short leaves some 10 milliohm at tens of MHz (from memory).  That analyser
+    # is planned with --table-floor 10m; the default table accuracy is the
+    # readers' (0.1 % + 0.1 milliohm, TABLE_NOISE_DEFAULT), see the next test.
+    plan = plan_measurement(*CAP, BAND, points=POINTS, table_accuracy=InstrumentNoise(1e-3, 1e-2))
     assert plan.recommended == "shunt-thru"
     assert plan.ranking.index("shunt-thru") < plan.ranking.index("reflection")
     esr_shunt = plan.connection("shunt-thru").parameters["ESR"].relative_std
     esr_refl = plan.connection("reflection").parameters["ESR"].relative_std
     assert esr_refl > 10 * esr_shunt
     assert "shunt-thru" in plan.reason and "ESR" in plan.reason
+    # The reason says where the ESR is determined: at the SRF, |Z| = ESR = 5 milliohm,
+    # a decade and more below Z0 = 50 ohm (shunt-thru's range).
+    assert "it wins on ESR" in plan.reason and "a low impedance, shunt-thru's range" in plan.reason
+    lo, hi = plan.connection("shunt-thru").determined_ohm["ESR"]
+    # |Z| >= ESR = 5 milliohm everywhere (Z = ESR + jX); the information sits within a
+    # decade of it and below Z0 / 10 = 5 ohm.
+    assert 5e-3 * (1 - 1e-9) <= lo < 5e-2 and hi < 5.0, (lo, hi)
+
+
+def test_capacitor_plan_with_the_readers_table_accuracy():
+    # With the readers' table accuracy, 0.1 % + 0.1 milliohm, a point at the SRF
+    # (|Z| = 5 milliohm) has sigma(Z) = 0.105 milliohm; shunt-thru's has
+    # sigma(Z) = |dZ/dS| sigma(S) = (Z0 / 2)(1e-5 + 1e-3 * 2e-4) = 0.255 milliohm
+    # (S21 = 2Z/(2Z + Z0) ~ 2e-4; Pozar 2012, sec. 4.3, the formula in docs/reading.md).
+    # The table's ESR is then the more certain, by about that ratio.
+    plan = plan_measurement(*CAP, BAND, points=POINTS)
+    assert TABLE_ACCURACY_DEFAULT == InstrumentNoise(1e-3, 1e-4)
+    assert plan.recommended == "impedance"
+    ratio = plan.connection("impedance").parameters["ESR"].std / plan.connection("shunt-thru").parameters["ESR"].std
+    assert 0.105 / 0.255 * 0.5 < ratio < 0.105 / 0.255 * 2  # a factor 2: the other points count too
 
 
 def test_inductor_plan_prefers_series_thru_or_table_over_shunt_thru(plans):
@@ -106,7 +131,7 @@ def test_inductor_plan_prefers_series_thru_or_table_over_shunt_thru(plans):
 def test_plan_json_and_text_from_the_cli(tmp_path):
     out = tmp_path / "plan.json"
     r = CliRunner().invoke(app, ["plan", "capacitor", "--C", "100n", "--ESR", "5m", "--ESL", "500p",
-                                 "--band", "1k:1G", "--points", "101", "--json", str(out)])
+                                 "--band", "1k:1G", "--points", "101", "--table-floor", "10m", "--json", str(out)])
     assert r.exit_code == 0, r.output
     assert "recommended: shunt-thru\n" in r.output
     assert "below resolution, <" in r.output  # series-thru cannot see 5 milliohm
@@ -177,3 +202,57 @@ def test_plan_text_writes_values_as_the_other_commands_do():
     assert r.exit_code == 0, r.output
     assert "(SRF 22.51M Hz)" in r.output and "band 1k Hz to 1G Hz, 41 log-spaced points" in r.output
     assert "+-" not in r.output and "±" in r.output
+
+
+NA = ("reflection", "shunt-thru", "series-thru")
+
+
+@pytest.mark.parametrize("model, params, band, expected", [
+    # An inductor without core loss: what is hard is R_s = 50 milliohm, seen at the bottom
+    # of the band where |Z| = |R_s + j w L| is 0.09-0.4 ohm (w L = 63 milliohm at 1 kHz).
+    ("inductor", {"L": 10e-6, "R_s": 50e-3, "C_p": 5e-12}, (1e3, 1e9), "shunt-thru"),
+    # With 50 kohm of core loss the hard one is R_p, seen at the resonance peak (|Z| ~ R_p).
+    ("inductor", {"L": 10e-6, "R_s": 50e-3, "C_p": 6.33e-12, "R_p": 50e3}, (1e3, 1e9), "series-thru"),
+    # A 47 ohm + 1 nF snubber: its impedance sits near 50 ohm above 3.4 MHz (1/(2 pi 47 ohm 1 nF)).
+    ("capacitor", {"C": 1e-9, "ESR": 47.0, "ESL": 1e-9}, (1e5, 1e9), "reflection"),
+])
+def test_network_analyser_choice_follows_the_impedance_where_the_part_is_determined(model, params, band, expected):
+    # Common practice (docs/reading.md, "Each connection is good where Z is comparable
+    # to its Z0 scale"): shunt-thru for impedances well below Z0, series-thru for those
+    # well above, reflection near Z0.  The planner's choice among the network-analyser
+    # connections agrees, and its reason says where the deciding parameter is determined.
+    from zfit.identification._plan import impedance_range
+
+    plan = plan_measurement(model, params, band, points=101, connections=NA)
+    assert plan.recommended == expected
+    best = plan.connection(expected)
+    key = plan.reason.split("it wins on ")[1].split(" ")[0]
+    lo, hi = best.determined_ohm[key]
+    assert impedance_range(math.sqrt(lo * hi), 50.0) == expected, (key, lo, hi)
+    assert f"{expected}'s range" in plan.reason
+
+
+def test_impedance_ranges_are_a_decade_from_z0():
+    # Common practice: a decade from Z0 (5 ohm and 500 ohm for 50 ohm ports).
+    from zfit.identification._plan import impedance_range
+
+    assert [impedance_range(z, 50.0) for z in (4.9, 5.1, 50.0, 499.0, 501.0)] == [
+        "shunt-thru", "reflection", "reflection", "reflection", "series-thru"]
+
+
+def test_option_aliases_in_any_case_and_the_usage_line():
+    # --c-p, --r-s, --esr as people type them, the parameter keys still work (issue 15).
+    r = CliRunner().invoke(app, ["plan", "inductor", "--l", "10u", "--c-p", "6.33p", "--r-s", "50m", "--points", "41",
+                                 "--band", "10k:100M"])
+    assert r.exit_code == 0, r.output
+    assert "L = 10u H" in r.output and "C_p = 6.33p F" in r.output and "R_s = 50m ohm" in r.output
+    r = CliRunner().invoke(app, ["plan", "capacitor", "--c", "100n", "--esr", "5m", "--Esl", "500p", "--R-LEAK", "1G",
+                                 "--points", "41"])
+    assert r.exit_code == 0, r.output
+    assert "ESR = 5m ohm" in r.output and "R_leak = 1G ohm" in r.output
+    # The usage line names the required options; no typer placeholders in any help.
+    r = CliRunner().invoke(app, ["plan", "inductor", "-h"])
+    assert "plan inductor --L HENRY --C_p FARAD --R_s OHM [OPTIONS]" in r.output
+    for cmd in (["info"], ["identify"], ["step"], ["batch"], ["plan", "capacitor"], ["plan", "inductor"], ["demo"]):
+        out = CliRunner().invoke(app, [*cmd, "--help"]).output
+        assert not re.search(r"<[a-z\[\]]+>|\{[a-z]+\}", out), (cmd, out)

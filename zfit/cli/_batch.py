@@ -77,6 +77,7 @@ def batch_command(
     Safety: discharge capacitors before connecting them to an analyser; for
     parts on mains or high voltage follow local codes and licensed practice.
     """
+    from ..data._sweep import FREQUENCY_RANGE_HZ
     from ..io._limits_file import read_limits
     from ..lot._run import run_batch
     from ..lot._tasks import ReadOptions
@@ -85,6 +86,11 @@ def batch_command(
         from .._errors import ZfitInputError
 
         raise ZfitInputError(f"--model {model!r}: use auto, inductor, capacitor or rational")
+    if jobs is not None and not 1 <= jobs <= 1024:
+        from .._errors import ZfitInputError
+
+        # More worker processes than 1024 is more than any machine's cores: a typing slip.
+        raise ZfitInputError(f"--jobs {jobs} is out of range: give 1 to 1024 worker processes")
     lim = read_limits(limits) if limits is not None else None
     report_path = _report_target(report, out, force) if report is not None else None
     read = ReadOptions(
@@ -95,7 +101,7 @@ def batch_command(
         load_value=load_value, port_delay=port_delay, port_loss=port_loss,
     )
     result = run_batch(
-        inputs, out, limits=lim, model=model, at=quantities(at, "--at"), read=read, jobs=jobs,
+        inputs, out, limits=lim, model=model, at=quantities(at, "--at", *FREQUENCY_RANGE_HZ, unit="Hz"), read=read, jobs=jobs,
         cluster=cluster, plot=plot, plot_format=plot_format, force=force, progress=False if quiet else None,
     )
     from ..lot._lot_files import lot_text, verdict_lines

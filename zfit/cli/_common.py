@@ -15,13 +15,13 @@ from pathlib import Path
 from typing import Annotated, Optional
 
 import typer
-from typer.core import TyperGroup
+from typer.core import TyperCommand, TyperGroup
 
 from .._errors import MeasurementWarning, ZfitError, ZfitInputError
 from .._units import bounded, parse_quantity
 
 __all__ = [
-    "app", "guarded", "command_line", "emit_json", "quantity", "quantities", "SHUNT_RANGE_OHM", "echo", "warn_line", "sweep_from_options",
+    "app", "CommandGroup", "guarded", "command_line", "emit_json", "quantity", "quantities", "SHUNT_RANGE_OHM", "echo", "warn_line", "sweep_from_options",
     "ConnectionOpt", "NoiseRelOpt", "NoiseFloorOpt", "ColumnsOpt", "OpenOpt", "ShortOpt",
     "LoadOpt", "LoadValueOpt", "PortDelayOpt", "PortLossOpt", "ForceOpt",
 ]
@@ -52,7 +52,87 @@ class _Commands(TyperGroup):
             raise _OneLineError(exc.format_message()) from None
 
 
-app = typer.Typer(
+#: The placeholder of an option's value in help, by its Python type, where the
+#: option does not name its own (``--L HENRY``): typer's own are ``<str>``,
+#: ``<list[str]>``, ``<path>``, which read as code, not as what to type.
+_METAVAR_BY_TYPE = {"str": "VALUE", "int": "N", "float": "VALUE", "Path": "PATH", "bool": ""}
+
+
+#: Placeholders by option name, for options whose declaration names none:
+#: what to type, in the words of docs/ (one vocabulary for every command).
+_METAVAR_BY_NAME = {
+    "--model": "MODEL", "--band": "FMIN:FMAX", "--at": "FREQ", "--rdc": "OHM", "--rdc-std": "OHM",
+    "--netlist-kind": "KIND", "--touchstone-grid": "START:STOP[:N]", "--plot-format": "FORMAT",
+    "--cluster": "ADDRESS", "--part": "NAME", "--jobs": "N", "--limits": "FILE", "--out": "DIR",
+    "--sweeps": "DIR",
+}
+
+
+def _metavar(param) -> str:
+    """The placeholder of an option's value: its own metavar, else one by its name or type."""
+    if param.metavar:
+        return param.metavar
+    for opt in param.opts:
+        if opt in _METAVAR_BY_NAME:
+            return _METAVAR_BY_NAME[opt]
+    annotation = getattr(getattr(param, "type_descriptor", None), "annotation", None)
+    name = getattr(annotation, "__name__", str(annotation))
+    for key, word in _METAVAR_BY_TYPE.items():
+        if key in name:
+            return word
+    return "VALUE"
+
+
+class _Command(TyperCommand):
+    """A zfit command: its usage line names the required options, its help plain placeholders.
+
+    ``Usage: zfit plan inductor --L HENRY --C_p FARAD --R_s OHM [OPTIONS]``
+    says how to call at a glance; an argument is written ``SWEEP`` (``[SWEEP]``
+    when optional), as POSIX utility syntax does, not ``{sweep}``.
+    """
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        for param in self.params:
+            if param.param_type_name == "option" and not param.is_flag and not param.metavar:
+                param.metavar = _metavar(param) or None
+
+    def collect_usage_pieces(self, ctx):
+        required = [f"{p.opts[0]} {_metavar(p)}".rstrip() for p in self.get_params(ctx)
+                    if p.param_type_name == "option" and p.required]
+        arguments = []
+        for p in self.get_params(ctx):
+            if p.param_type_name == "argument":
+                name = (p.metavar or p.name).upper() + ("..." if p.nargs != 1 else "")
+                arguments.append(name if p.required else f"[{name}]")
+        return required + [self.options_metavar] + arguments
+
+    def format_options(self, ctx, formatter):
+        arguments, options = [], []
+        for p in self.get_params(ctx):
+            if p.param_type_name == "argument":
+                name = (p.metavar or p.name).upper() + ("..." if p.nargs != 1 else "")
+                arguments.append((name, (p.help or "") + ("  [required]" if p.required else "")))
+            else:
+                record = p.get_help_record(ctx)
+                if record is not None:
+                    options.append(record)
+        if arguments:
+            with formatter.section("Arguments"):
+                formatter.write_dl(arguments)
+        if options:
+            with formatter.section("Options"):
+                formatter.write_dl(options)
+
+
+class CommandGroup(typer.Typer):
+    """A typer app whose commands are `_Command` (zfit's usage line and placeholders)."""
+
+    def command(self, *args, cls=None, **kwargs):
+        return super().command(*args, cls=cls or _Command, **kwargs)
+
+
+app = CommandGroup(
     name="zfit",
     cls=_Commands,
     help=(
@@ -185,31 +265,31 @@ SHUNT_RANGE_OHM = (1e-3, 1e9)
 ConnectionOpt = Annotated[
     Optional[str],
     typer.Option(
-        "--connection", "-c",
+        "--connection", "-c", metavar="CONNECTION",
         help="How the analyser saw the part: reflection (S11), shunt-thru (S21, part to ground) "
         "or series-thru (S21, part in series). Needed for .s2p files.",
     ),
 ]
 NoiseRelOpt = Annotated[
     Optional[str],
-    typer.Option("--noise-rel", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/reading.md."),
+    typer.Option("--noise-rel", metavar="REL", help="Relative noise of the measured S (or Z for tables), e.g. 1e-3. Default: common practice, see docs/reading.md."),
 ]
 NoiseFloorOpt = Annotated[
     Optional[str],
-    typer.Option("--noise-floor", help="Noise floor: linear |S| for S-parameters (1e-5 = -100 dB), ohm for tables."),
+    typer.Option("--noise-floor", metavar="FLOOR", help="Noise floor: linear |S| for S-parameters (1e-5 = -100 dB), ohm for tables."),
 ]
 ColumnsOpt = Annotated[
     Optional[str],
-    typer.Option("--columns", help="Column mapping of a table, e.g. 'f=1,Ls=2,Rs=3' or 'freq_kHz,Zmag,phase_deg'; overrides the guess."),
+    typer.Option("--columns", metavar="MAPPING", help="Column mapping of a table, e.g. 'f=1,Ls=2,Rs=3' or 'freq_kHz,Zmag,phase_deg'; overrides the guess."),
 ]
-OpenOpt = Annotated[Optional[Path], typer.Option("--open", help="Open-fixture measurement for compensation.")]
-ShortOpt = Annotated[Optional[Path], typer.Option("--short", help="Short-fixture measurement for compensation.")]
-LoadOpt = Annotated[Optional[Path], typer.Option("--load", help="Load-standard measurement (open/short/load compensation).")]
-LoadValueOpt = Annotated[Optional[str], typer.Option("--load-value", help="Known impedance of the load standard in ohm, e.g. 50 or 100.")]
-PortDelayOpt = Annotated[Optional[str], typer.Option("--port-delay", help="Port extension for reflection: one-way delay of the line to remove, e.g. 35p.")]
+OpenOpt = Annotated[Optional[Path], typer.Option("--open", metavar="FILE", help="Open-fixture measurement for compensation.")]
+ShortOpt = Annotated[Optional[Path], typer.Option("--short", metavar="FILE", help="Short-fixture measurement for compensation.")]
+LoadOpt = Annotated[Optional[Path], typer.Option("--load", metavar="FILE", help="Load-standard measurement (open/short/load compensation).")]
+LoadValueOpt = Annotated[Optional[str], typer.Option("--load-value", metavar="OHM", help="Known impedance of the load standard in ohm, e.g. 50 or 100.")]
+PortDelayOpt = Annotated[Optional[str], typer.Option("--port-delay", metavar="SECONDS", help="Port extension for reflection: one-way delay of the line to remove, e.g. 35p.")]
 PortLossOpt = Annotated[
     Optional[str],
-    typer.Option("--port-loss", help="With --port-delay: one-way loss of that line in dB at 1 GHz, scaled with sqrt(f)."),
+    typer.Option("--port-loss", metavar="DB", help="With --port-delay: one-way loss of that line in dB at 1 GHz, scaled with sqrt(f)."),
 ]
 ForceOpt = Annotated[bool, typer.Option("--force", help="Overwrite output files that exist.")]
 

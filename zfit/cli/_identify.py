@@ -79,7 +79,7 @@ def identify_command(
     from .._atomic import check_writable
     from ._common import sweep_from_options
     from .._errors import MeasurementWarning, ZfitInputError
-    from ..data._sweep import FREQUENCY_RANGE_HZ
+    from ..data._sweep import ELEMENT_RANGES, FREQUENCY_RANGE_HZ
     from ..identification._pipeline import identify
     from ..outputs._outputs import check_output_suffix
     from ..outputs._views import identification_summary
@@ -103,9 +103,11 @@ def identify_command(
         parts = band.split(":")
         if len(parts) != 2:
             raise ZfitInputError(f"--band {band!r}: give FMIN:FMAX, e.g. 1k:10M")
-        fit_band = (quantity(parts[0], "--band"), quantity(parts[1], "--band"))
-    r_dc = quantity(rdc, "--rdc")
-    r_dc_std = quantity(rdc_std, "--rdc-std")
+        fit_band = (quantity(parts[0], "--band", *FREQUENCY_RANGE_HZ, unit="Hz"),
+                    quantity(parts[1], "--band", *FREQUENCY_RANGE_HZ, unit="Hz"))
+    r_dc = quantity(rdc, "--rdc", *ELEMENT_RANGES["ohm"], unit="ohm")
+    # An ohmmeter is at best some 1e-6 of its reading (common practice); an uncertainty above the reading says nothing.
+    r_dc_std = quantity(rdc_std, "--rdc-std", None if r_dc is None else 1e-6 * r_dc, r_dc, unit="ohm")
     s = sweep_from_options(
         sweep, connection, noise_rel, noise_floor, columns, open_, short, load, load_value, port_delay,
         port_loss=port_loss,

@@ -3,8 +3,9 @@
 Simulates the part's equivalent circuit through each connection with the
 same noise model as real files, runs the same identification, and prints
 the expected uncertainty of every parameter per connection with a
-recommendation.  Option names are the parameter keys, case-sensitive
-(``--L``, ``--C``, ``--C_p``, ``--ESR``).
+recommendation.  Option names are the parameter keys (``--L``, ``--C_p``,
+``--ESR``); each is also accepted in any case and with a hyphen for the
+underscore (``--c-p``, ``--esr``, ``--R-s``), as people type them.
 """
 
 from __future__ import annotations
@@ -14,9 +15,19 @@ from typing import Annotated, Optional
 
 import typer
 
-from ._common import ForceOpt, app, echo, emit_json, guarded, quantity
+from ._common import CommandGroup, ForceOpt, app, echo, emit_json, guarded, quantity
 
-plan_app = typer.Typer(
+
+def _option_token(name: str) -> str:
+    """An option name as the parser compares it: lower case, ``_`` as ``-`` (``--C_p`` is ``--c-p``).
+
+    No two options of a plan differ only in case or in ``_``/``-``, so the
+    aliases cannot collide; a misspelt name is still refused.
+    """
+    return name.lower().replace("_", "-")
+
+
+plan_app = CommandGroup(
     name="plan",
     help=(
         "Plan a measurement: simulate the part through reflection, shunt-thru, series-thru and an analyser "
@@ -24,18 +35,18 @@ plan_app = typer.Typer(
     ),
     no_args_is_help=True,
     rich_markup_mode=None,
-    context_settings={"help_option_names": ["-h", "--help"]},
+    context_settings={"help_option_names": ["-h", "--help"], "token_normalize_func": _option_token},
 )
 app.add_typer(plan_app, name="plan")
 
-BandOpt = Annotated[str, typer.Option("--band", help="Swept band low:high in Hz, engineering notation, e.g. 1k:1G.")]
-PointsOpt = Annotated[int, typer.Option("--points", help="Log-spaced points of the sweep.")]
-JsonOpt = Annotated[Optional[Path], typer.Option("--json", help="Write the plan as zfit.plan/1 JSON to this file.")]
-NaRelOpt = Annotated[Optional[str], typer.Option("--noise-rel", help="Network analyser: relative noise on S (default 1e-3).")]
-NaFloorOpt = Annotated[Optional[str], typer.Option("--noise-floor", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
-TabRelOpt = Annotated[Optional[str], typer.Option("--table-rel", help="Analyser table: relative accuracy on Z (default 1e-3 = 0.1 %).")]
-TabFloorOpt = Annotated[Optional[str], typer.Option("--table-floor", help="Analyser table: accuracy floor in ohm (default 10m).")]
-RefOpt = Annotated[str, typer.Option("--reference", help="Reference impedance of the analyser ports, ohm.")]
+BandOpt = Annotated[str, typer.Option("--band", metavar="FMIN:FMAX", help="Swept band low:high in Hz, engineering notation, e.g. 1k:1G.")]
+PointsOpt = Annotated[int, typer.Option("--points", metavar="N", help="Log-spaced points of the sweep (10 to 100001).")]
+JsonOpt = Annotated[Optional[Path], typer.Option("--json", metavar="PATH", help="Write the plan as zfit.plan/1 JSON to this file ('-' for standard output).")]
+NaRelOpt = Annotated[Optional[str], typer.Option("--noise-rel", metavar="REL", help="Network analyser: relative noise on S (default 1e-3).")]
+NaFloorOpt = Annotated[Optional[str], typer.Option("--noise-floor", metavar="FLOOR", help="Network analyser: noise floor, linear |S| (default 1e-5 = -100 dB).")]
+TabRelOpt = Annotated[Optional[str], typer.Option("--table-rel", metavar="REL", help="Analyser table: relative accuracy on Z (default 1e-3 = 0.1 %).")]
+TabFloorOpt = Annotated[Optional[str], typer.Option("--table-floor", metavar="OHM", help="Analyser table: accuracy floor in ohm (default 100u, as the readers').")]
+RefOpt = Annotated[str, typer.Option("--reference", metavar="OHM", help="Reference impedance of the analyser ports, ohm (1m to 1M).")]
 
 
 def _band(text: str):
@@ -77,10 +88,10 @@ def _run(model, params, band, points, json_path, noise_rel, noise_floor, table_r
 @plan_app.command("inductor")
 @guarded
 def plan_inductor(
-    L: Annotated[str, typer.Option("--L", help="Inductance, e.g. 10u (H).")],
-    C_p: Annotated[str, typer.Option("--C_p", help="Parallel (inter-winding) capacitance, e.g. 5p (F).")],
-    R_s: Annotated[str, typer.Option("--R_s", help="Series (winding) resistance, e.g. 50m (ohm).")],
-    R_p: Annotated[Optional[str], typer.Option("--R_p", help="Parallel (core-loss) resistance, ohm; omit for none.")] = None,
+    L: Annotated[str, typer.Option("--L", "--l", metavar="HENRY", help="Inductance, e.g. 10u (H).")],
+    C_p: Annotated[str, typer.Option("--C_p", "--c-p", metavar="FARAD", help="Parallel (inter-winding) capacitance, e.g. 5p (F).")],
+    R_s: Annotated[str, typer.Option("--R_s", "--r-s", metavar="OHM", help="Series (winding) resistance, e.g. 50m (ohm).")],
+    R_p: Annotated[Optional[str], typer.Option("--R_p", "--r-p", metavar="OHM", help="Parallel (core-loss) resistance, ohm; omit for none.")] = None,
     band: BandOpt = "1k:1G",
     points: PointsOpt = 201,
     json_path: JsonOpt = None,
@@ -105,10 +116,10 @@ def plan_inductor(
 @plan_app.command("capacitor")
 @guarded
 def plan_capacitor(
-    C: Annotated[str, typer.Option("--C", help="Capacitance, e.g. 100n (F).")],
-    ESR: Annotated[str, typer.Option("--ESR", help="Equivalent series resistance, e.g. 5m (ohm).")],
-    ESL: Annotated[str, typer.Option("--ESL", help="Equivalent series inductance, e.g. 500p (H).")],
-    R_leak: Annotated[Optional[str], typer.Option("--R_leak", help="Leakage resistance across C, ohm; omit for none.")] = None,
+    C: Annotated[str, typer.Option("--C", "--c", metavar="FARAD", help="Capacitance, e.g. 100n (F).")],
+    ESR: Annotated[str, typer.Option("--ESR", "--esr", metavar="OHM", help="Equivalent series resistance, e.g. 5m (ohm).")],
+    ESL: Annotated[str, typer.Option("--ESL", "--esl", metavar="HENRY", help="Equivalent series inductance, e.g. 500p (H).")],
+    R_leak: Annotated[Optional[str], typer.Option("--R_leak", "--r-leak", metavar="OHM", help="Leakage resistance across C, ohm; omit for none.")] = None,
     band: BandOpt = "1k:1G",
     points: PointsOpt = 201,
     json_path: JsonOpt = None,

@@ -36,36 +36,34 @@ within their ratings, and discharge capacitors before you connect them.
 @guarded
 def step_command(
     capture: Path = typer.Argument(..., help="The capture: delimited text export, .npy or .npz."),
-    input: Optional[str] = typer.Option(None, "--input", "-i", help="Drive channel (name or 1-based column); omit for a single-channel capture."),
-    output: Optional[str] = typer.Option(None, "--output", "-o", help="Response channel (name or 1-based column); may be omitted when there is one channel."),
-    shunt: Optional[str] = typer.Option(None, "--shunt", help="Sense resistor in ohm at the part's return (e.g. 100, 2.2k): identify the part's impedance."),
+    input: Optional[str] = typer.Option(None, "--input", "-i", metavar="CHANNEL", help="Drive channel (name or 1-based column); omit for a single-channel capture."),
+    output: Optional[str] = typer.Option(None, "--output", "-o", metavar="CHANNEL", help="Response channel (name or 1-based column); may be omitted when there is one channel."),
+    shunt: Optional[str] = typer.Option(None, "--shunt", metavar="OHM", help="Sense resistor in ohm at the part's return (e.g. 100, 2.2k): identify the part's impedance."),
     json_path: Optional[Path] = typer.Option(None, "--json", help="Write the zfit.step/1 JSON result here ('-' for standard output)."),
     response: Optional[Path] = typer.Option(None, "--response", help="Write the frequency response (CSV: f, |H| dB, phase, uncertainties, coherence, usable)."),
     plot: Optional[Path] = typer.Option(None, "--plot", help="Write the figures (.png or .svg): --plot x.png writes x.png (time record) and x-bode.png, and with --shunt x-sweep.png and x-q.png (or x-esr-d.png); each file written is listed."),
     netlist: Optional[Path] = typer.Option(None, "--netlist", help="With --shunt: write a SPICE subcircuit of the identified part (.cir, .sp or .lib)."),
     report: Optional[Path] = typer.Option(None, "--report", help="Write a self-contained HTML report (.html)."),
-    inductance: Optional[str] = typer.Option(None, "--inductance", help="The coil's inductance in H (e.g. 25m): turns the ringing into its stray capacitance."),
+    inductance: Optional[str] = typer.Option(None, "--inductance", metavar="HENRY", help="The coil's inductance in H (e.g. 25m): turns the ringing into its stray capacitance."),
     added_capture: Optional[Path] = typer.Option(None, "--added-capture", help="Capture of the same coil with a known capacitor across it (two-resonance method)."),
-    added_capacitance: Optional[str] = typer.Option(None, "--added-capacitance", help="That capacitor in F (e.g. 100p)."),
-    model: str = typer.Option("auto", "--model", help="With --shunt: auto | inductor | capacitor | rational (as for identify)."),
-    dt: Optional[str] = typer.Option(None, "--dt", help="Sample interval (e.g. 40n) when the file has neither a time column nor the interval in its header."),
+    added_capacitance: Optional[str] = typer.Option(None, "--added-capacitance", metavar="FARAD", help="That capacitor in F (e.g. 100p)."),
+    model: str = typer.Option("auto", "--model", metavar="MODEL", help="With --shunt: auto | inductor | capacitor | rational (as for identify)."),
+    dt: Optional[str] = typer.Option(None, "--dt", metavar="SECONDS", help="Sample interval (e.g. 40n) when the file has neither a time column nor the interval in its header."),
     force: ForceOpt = False,
 ):
     from .._atomic import write_atomic
     from ..io._capture import read_capture
     from .._errors import ZfitInputError
     from ..capture._analysis import analyse_capture
+    from ..data._sweep import ELEMENT_RANGES, SAMPLE_INTERVAL_RANGE_S
     from ..outputs._views import response_csv, step_summary
 
     shunt_ohm = quantity(shunt, "--shunt", *SHUNT_RANGE_OHM, unit="ohm")
-    inductance_h = quantity(inductance, "--inductance")
-    added_f = quantity(added_capacitance, "--added-capacitance")
-    dt_s = quantity(dt, "--dt")
+    inductance_h = quantity(inductance, "--inductance", *ELEMENT_RANGES["H"], unit="H")
+    added_f = quantity(added_capacitance, "--added-capacitance", *ELEMENT_RANGES["F"], unit="F")
+    dt_s = quantity(dt, "--dt", *SAMPLE_INTERVAL_RANGE_S, unit="s")
     if (added_capture is None) != (added_f is None):
         raise ZfitInputError("--added-capture and --added-capacitance go together")
-    for name, v in (("--shunt", shunt_ohm), ("--inductance", inductance_h), ("--added-capacitance", added_f), ("--dt", dt_s)):
-        if v is not None and not v > 0:
-            raise ZfitInputError(f"{name} must be positive")
     if response is not None and response.suffix.lower() not in (".csv", ".txt"):
         raise ZfitInputError("the response file is written as CSV: give a .csv path", response)
     if netlist is not None and shunt_ohm is None:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import warnings
 from dataclasses import dataclass, field
+from types import MappingProxyType
 
 import numpy as np
 
@@ -13,7 +14,7 @@ from .._errors import MeasurementWarning, ZfitInputError
 from .._units import format_eng
 
 __all__ = ["Sweep", "make_sweep", "Rows", "cleaned_rows", "sweep_from_rows", "active_points", "MIN_POINTS", "CONNECTIONS",
-           "FREQUENCY_RANGE_HZ", "IMPEDANCE_RANGE_OHM"]
+           "FREQUENCY_RANGE_HZ", "IMPEDANCE_RANGE_OHM", "ELEMENT_RANGES", "SAMPLE_INTERVAL_RANGE_S"]
 
 #: A table of two frequencies (an LCR meter at 1 kHz and 10 kHz) already
 #: gives a series pair with its uncertainty; one point gives no frequency
@@ -31,6 +32,20 @@ FREQUENCY_RANGE_HZ = (1e-6, 1e13)
 #: leave the floating-point range.  Zero (an exact short) is allowed at some
 #: points, not at all of them.
 IMPEDANCE_RANGE_OHM = (1e-12, 1e12)
+
+#: Values of circuit elements zfit computes with, by unit (inclusive).  They
+#: span every passive part made, with decades to spare (1 fH of an on-chip
+#: trace to 1 kH of a mains choke; 1 aF to the 1 kF of a supercapacitor;
+#: 1 nohm to 1 Pohm of a film capacitor's leakage), and within them a
+#: circuit's impedance over `FREQUENCY_RANGE_HZ`, its S parameters and their
+#: Fisher information stay inside double precision (checked at the corners
+#: by tests/test_bounds.py).  Beyond them ``s L`` or ``1 / (s C)`` overflows or
+#: vanishes and nothing computed from the value means anything.
+ELEMENT_RANGES = MappingProxyType({"H": (1e-15, 1e3), "F": (1e-18, 1e3), "ohm": (1e-9, 1e15)})
+
+#: Sample intervals of a capture, s: 1 fs (beyond any oscilloscope's
+#: 100 GS/s) to 1000 s (a data logger); common practice.
+SAMPLE_INTERVAL_RANGE_S = (1e-15, 1e3)
 
 #: How a one-port impedance was measured.
 CONNECTIONS = ("reflection", "shunt-thru", "series-thru", "impedance")
@@ -254,6 +269,7 @@ def cleaned_rows(f_hz, z_ohm, sigma_ohm=None, *, source="", connection="impedanc
     if nonpos.any():
         fail(f"frequency {format_eng(f[nonpos][0], 'Hz')} is not positive", int(np.flatnonzero(nonpos)[0]))
     _check_ranges(f, z, fail, source)
+    f, z, sig, s, ln = _without_exact_zeros(f, z, sig, s, ln, source, notes)
 
     order = np.argsort(f, kind="stable")
     if np.any(np.diff(order) < 0):
@@ -287,6 +303,28 @@ def _check_ranges(f, z, fail, source) -> None:
     if mag.size >= MIN_POINTS and not mag.any():
         raise ZfitInputError(f"|Z| is zero at every one of the {mag.size} points: nothing usable to identify "
                              "(a column of zeros, or an ideal short?)", source)
+
+
+def _without_exact_zeros(f, z, sig, s, ln, source, notes):
+    """The rows without those whose impedance is exactly zero, with a note and a warning.
+
+    No instrument measures an exact zero: it is an underrange code, a blank
+    cell read as 0, or S11 = -1 to the last digit.  Such a row carries no
+    information and every ``1/Z`` of the fit divides by it, so it is set
+    aside and said; the file is read (`_check_ranges` refuses a file that is
+    zero everywhere).
+    """
+    zero = z == 0
+    if not zero.any():
+        return f, z, sig, s, ln
+    lines = [int(x) for x in ln[zero]]
+    shown = ", ".join(str(x) for x in lines[:5]) + (" ..." if len(lines) > 5 else "")
+    msg = (f"{len(lines)} point(s) with |Z| = 0 exactly set aside (line {shown}): no instrument measures an exact "
+           "zero (an underrange code or a blank cell?)")
+    notes.append(msg)
+    warnings.warn(f"{source}: {msg}", MeasurementWarning, stacklevel=4)
+    keep = ~zero
+    return f[keep], z[keep], None if sig is None else sig[keep], None if s is None else s[keep], ln[keep]
 
 
 def _merged_repeats(f, z, sig, s, ln, source, notes):

@@ -161,7 +161,9 @@ def _smooth_part(x, y, s, x0, half_span, min_points):
     """
     idx0 = _local_weights(x, s, x0, half_span, min_points)[0]
     k = _power_slope(x[idx0], y[idx0], s[idx0])
-    scale = np.exp(-k * (x - x0))
+    # Saturated at e^300 (1e130), far beyond the factor of any point a window uses: a
+    # jump of decades in the data (a row off by a unit) must not overflow y and s.
+    scale = np.exp(np.clip(-k * (x - x0), -300.0, 300.0))
     y, s = y * scale, s * scale
     idx, a, A, w = _local_weights(x, s, x0, half_span, min_points)
     var = float(np.sum(a**2 * s[idx] ** 2))
@@ -335,23 +337,30 @@ class MeasuredFigures:
 
     @property
     def d(self) -> np.ndarray:
-        """Dissipation factor R/|X|."""
-        return self.r_ohm / np.abs(self.x_ohm)
+        """Dissipation factor R/|X| (infinite where a file gives X = 0 exactly)."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return self.r_ohm / np.abs(self.x_ohm)
 
     @property
     def d_std(self) -> np.ndarray:
         """Standard uncertainty of `d` (first order)."""
-        return np.abs(self.d) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2)
+        # Written through 1/R, which an exact R = 0 in a file (an LCR meter's 0.000) divides
+        # by; there the first-order value is std / |X| (dD/dR = 1/|X|, dD/dX = 0).
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.where(self.r_ohm == 0, self.std_ohm / np.abs(self.x_ohm),
+                            np.abs(self.d) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2))
 
     @property
     def q(self) -> np.ndarray:
-        """Quality factor |X|/R."""
-        return np.abs(self.x_ohm) / self.r_ohm
+        """Quality factor |X|/R (infinite where a file gives R = 0 exactly)."""
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.abs(self.x_ohm) / self.r_ohm
 
     @property
     def q_std(self) -> np.ndarray:
         """Standard uncertainty of `q` (first order)."""
-        return np.abs(self.q) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.abs(self.q) * self.std_ohm * np.sqrt(1.0 / self.x_ohm**2 + 1.0 / self.r_ohm**2)
 
     def resistance(self, i: int) -> MeasuredValue:
         """R (= ESR of a capacitor) at point `i`, or its bound when below resolution.

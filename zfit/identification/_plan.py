@@ -41,10 +41,12 @@ from types import MappingProxyType
 import numpy as np
 
 from ..data._connection import NA_CONNECTIONS, InstrumentNoise
+from ..data._sweep import ELEMENT_RANGES
 from ..fit._simulate import SIMULATED_CONNECTIONS, simulated_sweep
+from ..io._sweep_file import S_NOISE_DEFAULT, TABLE_NOISE_DEFAULT
 from .._parameters import OPTIONAL_KEY, REQUIRED_KEYS, UNITS
 from .._errors import FitError, ZfitInputError
-from .._units import format_eng
+from .._units import bounded, format_eng
 
 __all__ = [
     "PLAN_CONNECTIONS",
@@ -54,18 +56,22 @@ __all__ = [
     "ConnectionPlan",
     "Plan",
     "plan_measurement",
+    "impedance_range",
 ]
 
 #: The connections the planner compares; ``impedance`` is the analyser table.
 PLAN_CONNECTIONS = SIMULATED_CONNECTIONS
 
-#: Network-analyser noise on S (the readers' default for S-parameter files).
-NA_NOISE_DEFAULT = InstrumentNoise(1e-3, 1e-5)
+#: Network-analyser noise on S: the readers' default for S-parameter files
+#: (`zfit.io._sweep_file.S_NOISE_DEFAULT`), one constant for both.
+NA_NOISE_DEFAULT = S_NOISE_DEFAULT
 
-#: The analyser table's stated accuracy: 0.1 % of |Z| (a basic accuracy of
-#: impedance analysers, common practice) plus 10 milliohm (what is left of
-#: the short residual after compensation; from memory, typical of fixtures).
-TABLE_ACCURACY_DEFAULT = InstrumentNoise(1e-3, 1e-2)
+#: The analyser table's stated accuracy: the readers' default for tables
+#: (`zfit.io._sweep_file.TABLE_NOISE_DEFAULT`: 0.1 % of |Z| plus 0.1 mohm), so
+#: that a plan predicts what `zfit identify` would report on the file.  An
+#: analyser whose compensated short leaves milliohms is planned with
+#: ``table_accuracy`` (``--table-floor``).
+TABLE_ACCURACY_DEFAULT = TABLE_NOISE_DEFAULT
 
 _LABEL = {"impedance": "analyser table"}
 _SCHEMA = "zfit.plan/1"
@@ -157,6 +163,10 @@ class ConnectionPlan:
     srf_std_hz : float or None
         Expected standard uncertainty of the self-resonant frequency (first
         order through the same covariance), None without a resonance.
+    determined_ohm : mapping
+        ``{key: (low, high)}``: the part's |Z| over the points that carry
+        the central 80 % of each parameter's Fisher information (where in
+        impedance the sweep determines it), ohm.
     """
 
     connection: str
@@ -167,6 +177,7 @@ class ConnectionPlan:
     srf_std_hz: float | None = None
     warnings: tuple = ()
     error: str | None = None
+    determined_ohm: "MappingProxyType[str, tuple]" = field(default_factory=lambda: MappingProxyType({}))
 
     @property
     def label(self) -> str:
@@ -292,10 +303,8 @@ def _check_params(model, params):
             if k in REQUIRED_KEYS[model]:
                 raise ZfitInputError(f"a {model} plan needs --{k} (the part's expected value)")
             continue
-        v = float(v)
-        if not (math.isfinite(v) and v > 0):
-            raise ZfitInputError(f"--{k} must be a positive value, got {v:g}")
-        out[k] = v
+        # The values zfit computes with (ELEMENT_RANGES): beyond them s L or 1/(s C) overflows.
+        out[k] = bounded(v, f"--{k}", *ELEMENT_RANGES[UNITS[k]], unit=UNITS[k])
     extra = set(params) - set(out) - {k for k, v in params.items() if v is None}
     if extra:
         raise ZfitInputError(f"a {model} has no parameter {', '.join(sorted(extra))}")
@@ -370,6 +379,10 @@ def plan_measurement(
         raise ZfitInputError(f"a plan takes at most {MAX_POINTS} points (more than any analyser sweeps), got {points}")
     if not (math.isfinite(float(reference_ohm)) and float(reference_ohm) > 0):
         raise ZfitInputError(f"the reference impedance must be a positive number of ohm, got {float(reference_ohm):g}")
+    from ..io._touchstone import REFERENCE_RANGE_OHM
+
+    # The range the readers accept in a file's option line, for the same reason: S <-> Z keeps Z's digits.
+    bounded(reference_ohm, "the reference impedance", *REFERENCE_RANGE_OHM, unit="ohm")
     for c in connections:
         if c not in PLAN_CONNECTIONS:
             raise ZfitInputError(f"unknown connection {c!r}; use one of {', '.join(PLAN_CONNECTIONS)}")
@@ -420,6 +433,7 @@ def plan_measurement(
             fit_band_hz=(float(f[keep][0]), float(f[keep][-1])), topology=topology,
             warnings=tuple(dict.fromkeys(warns)), error=error,
             srf_std_hz=_srf_std(circuit, params, *fisher_log_covariance(model, params, f[keep], clean.sigma_ohm[keep])),
+            determined_ohm=MappingProxyType(_determined_where(circuit, params, f[keep], clean.sigma_ohm[keep])),
         ))
     ranked = sorted(plans, key=lambda c: (c.error is not None, -c.n_resolved, c.score))
     best = ranked[0]
@@ -429,7 +443,7 @@ def plan_measurement(
         srf_hz=None if srf is None else float(srf), band_hz=(lo, hi), points=int(points),
         reference_ohm=float(reference_ohm), connections=tuple(plans),
         ranking=tuple(c.connection for c in ranked), recommended=best.connection,
-        reason=_reason(ranked),
+        reason=_reason(ranked, float(reference_ohm)),
         notes=(
             f"network analyser noise {noise.describe('S')}; analyser table stated accuracy {table_accuracy.describe('Z')}",
             "expected uncertainty: Cramer-Rao bound (inverse Fisher information) at the planned values over the band "
@@ -457,6 +471,68 @@ def _srf_std(circuit, params, keys, log_cov):
     return float(math.sqrt(max(g @ log_cov @ g, 0.0)))
 
 
+def _determined_where(circuit, params, f, sigma_ohm) -> dict:
+    """``{key: (low, high)}``: |Z| where each parameter's Fisher information lies (central 80 %).
+
+    The information of ``ln theta_k`` at point i is ``2 |dZ_i/d ln theta_k|^2 / sigma_i^2``
+    (the diagonal of the Fisher matrix, Kay 1993, sec. 15.7); the points
+    between its 10th and 90th cumulative percent, taken in order of |Z|,
+    are where the sweep determines the parameter.
+    """
+    p = circuit.vector(params)
+    z = np.abs(circuit.impedance(p, f))
+    info = 2.0 * np.abs(circuit.log_jacobian(p, f)) ** 2 / np.asarray(sigma_ohm, float)[:, None] ** 2
+    order = np.argsort(z)
+    out = {}
+    for i, k in enumerate(circuit.keys):
+        w = info[order, i]
+        total = float(np.sum(w))
+        if not (math.isfinite(total) and total > 0):
+            continue
+        c = np.cumsum(w) / total
+        out[k] = (float(z[order][np.searchsorted(c, 0.1)]), float(z[order][min(np.searchsorted(c, 0.9), z.size - 1)]))
+    return out
+
+
+def impedance_range(z_ohm: float, reference_ohm: float) -> str:
+    """Return which connection's range an impedance lies in, as common practice assigns them.
+
+    Each connection resolves impedances comparable to its own scale: shunt-thru
+    (S21 = 2Z/(2Z + Z0)) those well below Z0, series-thru (S21 = 2Z0/(2Z0 + Z))
+    those well above, reflection those near Z0 (common practice; Pozar,
+    *Microwave Engineering*, 4th ed., 2012, sec. 4.3-4.4 for the formulas).
+    A decade from Z0 is taken as "well" away.
+
+    Parameters
+    ----------
+    z_ohm : float
+        The impedance's magnitude, ohm.
+    reference_ohm : float
+        The analyser's reference impedance Z0, ohm.
+    """
+    if z_ohm < reference_ohm / 10:
+        return "shunt-thru"
+    if z_ohm > 10 * reference_ohm:
+        return "series-thru"
+    return "reflection"
+
+
+_RANGE_WORDS = {"shunt-thru": "a low impedance", "series-thru": "a high impedance", "reflection": "near Z0"}
+
+
+def _deciding(best, runner_up):
+    """The parameter on which `best` beats `runner_up` by the largest factor (None when it does not)."""
+    def rel(c, k):
+        r = c.parameters[k].relative_std
+        return min(r, 1.0) if math.isfinite(r) else 1.0
+
+    gains = {k: rel(runner_up, k) / max(rel(best, k), 1e-12) for k in best.parameters if k in runner_up.parameters}
+    if not gains:
+        return None
+    k = max(gains, key=gains.get)
+    return k if gains[k] > 1 else None
+
+
 def _rel_text(p: PlannedParameter) -> str:
     if not math.isfinite(p.relative_std):
         return f"{p.key} not determined"
@@ -467,10 +543,24 @@ def _percent(x: float) -> str:
     return f"{100 * x:.2g} %" if x < 1 else f"{100 * x:.0f} %"
 
 
-def _reason(ranked) -> str:
+def _reason(ranked, reference_ohm: float = 50.0) -> str:
     best = ranked[0]
     n = len(best.parameters)
     head = f"{best.label} resolves {best.n_resolved} of {n} parameters, the least certain {_rel_text(best.worst)}"
+    # Which parameter decided, and where in impedance the sweep determines it: the
+    # connection's range (impedance_range) is the common-practice reason for the choice.
+    rival = next((c for c in ranked[1:] if c.error is None), None)
+    key = _deciding(best, rival) if rival is not None and best.error is None else None
+    if key is not None and key in best.determined_ohm:
+        lo, hi = best.determined_ohm[key]
+        span = (f"|Z| is {format_eng(lo, 'ohm')} to {format_eng(hi, 'ohm')}" if hi > 1.01 * lo
+                else f"|Z| is about {format_eng(math.sqrt(lo * hi), 'ohm')}")
+        head += (f"; it wins on {key} ({_rel_text(best.parameters[key]).split(' to ')[1]} against "
+                 f"{_rel_text(rival.parameters[key]).split(' to ')[-1]} in {rival.label}), determined where {span}")
+        if best.connection in NA_CONNECTIONS:
+            # The network analyser's connections each have their range; the table has none.
+            where = impedance_range(math.sqrt(lo * hi), reference_ohm)
+            head += f": {_RANGE_WORDS[where]}, {where}'s range"
     others = []
     for c in ranked[1:]:
         if c.error is not None:

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 import re
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -41,9 +42,15 @@ def _npy_header(fh, what: str, path, stored_bytes: int | None):
     try:
         version = npy.read_magic(fh)
         reader = npy.read_array_header_1_0 if version == (1, 0) else npy.read_array_header_2_0
-        shape, fortran, dtype = reader(fh, max_header_size=10000)
-    except (ValueError, OSError, EOFError, SyntaxError):
+        with warnings.catch_warnings():
+            # numpy's note that a header needed its Python 2 parser is not news to the
+            # user: the header is checked below like any other.
+            warnings.simplefilter("ignore", UserWarning)
+            shape, fortran, dtype = reader(fh, max_header_size=10000)
+    except (ValueError, OSError, EOFError, SyntaxError, TypeError):
         raise ZfitInputError(f"{what} is not a numpy .npy array (no readable numpy header)", path) from None
+    if not all(isinstance(k, int) and k >= 0 for k in shape):
+        raise ZfitInputError(f"{what} declares shape {shape}: not a shape of an array (damaged header)", path)
     if dtype.hasobject:
         raise ZfitInputError(f"{what} holds Python objects, not numbers: zfit reads numeric arrays only", path)
     n = math.prod(shape)

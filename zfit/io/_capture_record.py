@@ -11,8 +11,11 @@ from typing import Mapping
 import numpy as np
 
 from .._errors import ZfitInputError
+from .._units import format_eng
+from ..data._sweep import SAMPLE_INTERVAL_RANGE_S
 
-__all__ = ["Capture", "make_capture", "clipped_fraction", "check_finite", "MIN_SAMPLES", "MAX_SAMPLE"]
+__all__ = ["Capture", "make_capture", "clipped_fraction", "check_finite", "check_time_base", "MIN_SAMPLES", "MAX_SAMPLE",
+           "MAX_START_INTERVALS"]
 
 #: A record shorter than this cannot hold an edge with its settled levels.
 MIN_SAMPLES = 16
@@ -131,6 +134,38 @@ class Capture:
         return self.channels[self.channel_name(key)]
 
 
+#: The farthest start of a record from time zero, in sample intervals: sample
+#: times are t0 + k dt, and beyond 1e12 intervals double precision keeps too
+#: few digits of dt to tell the samples apart.
+MAX_START_INTERVALS = 1e12
+
+
+def check_time_base(dt: float, t0: float, source, line: int | None = None, what: str = "sample interval") -> None:
+    """Refuse a sample interval outside `SAMPLE_INTERVAL_RANGE_S` or a start too far from zero.
+
+    Parameters
+    ----------
+    dt, t0 : float
+        Sample interval (positive) and time of the first sample, s.
+    source, line
+        The file and line, for the message.
+    what : str
+        What the interval is called in the message.
+
+    Raises
+    ------
+    ZfitInputError
+        With the range in the message.
+    """
+    lo, hi = SAMPLE_INTERVAL_RANGE_S
+    if not lo <= dt <= hi:
+        raise ZfitInputError(f"{what} {format_eng(dt, 's')} is outside {format_eng(lo, 's')} .. {format_eng(hi, 's')}, "
+                             "the range zfit computes in (a unit error?)", source, line)
+    if abs(t0) > MAX_START_INTERVALS * dt:
+        raise ZfitInputError(f"start time {format_eng(t0, 's')} is more than {MAX_START_INTERVALS:.0e} sample "
+                             f"intervals ({format_eng(dt, 's')}) from zero; give times relative to the trigger", source, line)
+
+
 def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "", notes=(), file_columns=()) -> Capture:
     """Return a validated `Capture` from arrays.
 
@@ -172,6 +207,7 @@ def make_capture(channels, dt, *, t0: float = 0.0, names=None, source: str = "",
         raise ZfitInputError(f"sample interval {dt!r} s is not a positive number", source)
     if not math.isfinite(float(t0)):
         raise ZfitInputError("start time is not a finite number", source)
+    check_time_base(dt, float(t0), source)
     arrs = []
     for name, a in zip(names, arrays):
         a = np.asarray(a, dtype=float)

@@ -9,7 +9,7 @@ import numpy as np
 
 from .._errors import MeasurementWarning, ZfitInputError
 from .._units import format_eng
-from ._capture_record import check_finite
+from ._capture_record import check_finite, check_time_base
 
 __all__ = ["uniform_time", "JITTER_WARN"]
 
@@ -32,6 +32,7 @@ def uniform_time(t: np.ndarray, path, first_line: int):
     dt = (t[-1] - t[0]) / (n - 1)
     if not dt > 0:
         raise ZfitInputError("the time column does not increase", path, first_line)
+    check_time_base(dt, float(t[0]), path, first_line, "the time column's sample interval")
     # The span over the count carries float rounding (4.0000000000000001e-08):
     # snap to the interval the instrument set when it is that within 1e-9.
     snapped = float(f"{dt:.9g}")

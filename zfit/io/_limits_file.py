@@ -39,7 +39,8 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from .._errors import ZfitInputError
-from .._units import format_eng, parse_quantity, written_unit
+from .._units import bounded, format_eng, parse_quantity, written_unit
+from ..data._sweep import ELEMENT_RANGES, FREQUENCY_RANGE_HZ
 from .._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
 from ._core_spec import CORE_TABLE_KEYS, CoreSpec, core_spec
 
@@ -255,11 +256,37 @@ def _number(value, what: str, where, unit: str | None = None) -> float:
     return x
 
 
+#: A guard band of more than 10 standard uncertainties refuses every part a
+#: real measurement gives (JCGM 106:2012 works with k of 1 to 3).
+GUARD_K_MAX = 10.0
+
+#: A tolerance of more than 1000 % is no tolerance (-20 %/+80 % is the widest
+#: in common use, for electrolytic capacitors).
+TOLERANCE_PERCENT_MAX = 1000.0
+
+
+def _within(x: float, what: str, where, lo: float | None, hi: float | None, unit: str = "") -> float:
+    """`x` when within ``[lo, hi]``, else the one-line error of `where` that states the range."""
+    try:
+        return bounded(x, what, lo, hi, unit)
+    except ZfitInputError as exc:
+        raise where(exc.message) from None
+
+
+def _value_range(quantity: str, unit: str) -> tuple:
+    """Where a limit's value means something: an element's range, the band for an SRF, else unbounded."""
+    if quantity in UNITS:
+        return (0.0, ELEMENT_RANGES[unit][1])
+    if quantity == "SRF":
+        return (0.0, FREQUENCY_RANGE_HZ[1])
+    return (None, None)
+
+
 def _percent(value, what: str, where) -> float:
     if isinstance(value, str) and value.strip().endswith("%"):
         value = value.strip()[:-1]
     x = _number(value, what, where)
-    return x
+    return _within(abs(x), what, where, 0.0, TOLERANCE_PERCENT_MAX, "%") * (1 if x >= 0 else -1)
 
 
 def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
@@ -284,6 +311,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
         f_hz = _number(table["at"], "at", where_for("at"), "Hz")
         if f_hz <= 0:
             raise where_for("at")(f"frequency {table['at']!r} is not positive")
+        _within(f_hz, "at", where_for("at"), *FREQUENCY_RANGE_HZ, "Hz")
         unit = SPOT_UNITS[quantity]
     elif quantity in UNITS:
         unit = UNITS[quantity]
@@ -304,6 +332,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
         k = _number(table["guard_band_k"], "guard_band_k", where_for("guard_band_k"))
         if k < 0:
             raise where_for("guard_band_k")("guard_band_k must be >= 0")
+        _within(k, "guard_band_k", where_for("guard_band_k"), 0.0, GUARD_K_MAX)
 
     has_tol = "tolerance_percent" in table or "tolerance" in table
     has_minmax = "min" in table or "max" in table
@@ -314,6 +343,10 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
             # Every part would fail a tolerance about zero or a negative value:
             # a sign or a unit lost in the file, not a specification.
             raise where_for("nominal")(f"nominal {table['nominal']!r} must be positive")
+        if quantity in UNITS:
+            _within(nominal, "nominal", where_for("nominal"), *ELEMENT_RANGES[unit], unit)
+        elif quantity == "SRF":
+            _within(nominal, "nominal", where_for("nominal"), *FREQUENCY_RANGE_HZ, "Hz")
         if not has_tol:
             raise where_for("nominal")("a nominal needs tolerance_percent = N (or [-minus, plus]) or tolerance = VALUE")
         if has_minmax:
@@ -353,6 +386,10 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
             raise where_for()("give nominal with tolerance_percent, or min and/or max")
         lower = _number(table["min"], "min", where_for("min"), unit) if "min" in table else None
         upper = _number(table["max"], "max", where_for("max"), unit) if "max" in table else None
+        # An element or an SRF is positive: a negative bound is a lost sign, every part would fail it.
+        for key, v in (("min", lower), ("max", upper)):
+            if v is not None:
+                _within(v, key, where_for(key), *_value_range(quantity, unit), unit)
         if lower is not None and upper is not None and lower > upper:
             raise where_for("min")(f"min {table['min']!r} is above max {table['max']!r}")
         text = " ".join(
@@ -410,6 +447,7 @@ def parse_limits(text: str, path: str = "<limits>") -> Limits:
         k = _number(data["guard_band_k"], "guard_band_k", w)
         if k < 0:
             raise w("guard_band_k must be >= 0")
+        _within(k, "guard_band_k", w, 0.0, GUARD_K_MAX)
     core = _core_table(data.get("core"), lines, str(path))
     table = data.get("limit")
     if not isinstance(table, dict) or not table:

@@ -110,6 +110,15 @@ def compensate_from_files(
             f"compensation is undefined at {format_eng(f[i], 'Hz')}: the part measures exactly as the open standard",
             sweep.source or None,
         )
+    # Two measurements agree to the last digit only when they are one file twice: nothing
+    # is left of the part there, and every 1/Z downstream would divide by zero.
+    zero = z == 0
+    if zero.any():
+        i = int(np.flatnonzero(zero)[0])
+        every = " at every point" if zero.all() else f" at {format_eng(f[i], 'Hz')}"
+        raise ZfitInputError(
+            f"compensation leaves Z = 0 exactly{every}: the part measures exactly as the short standard "
+            "(the same file given as the part and as --short?)", sweep.source or None)
     kind = "/".join(k for k in ("open", "short", "load") if k in stds)
     warn_if_not_passive(f, z, sigma, sweep.source, f"{kind} compensation (do the standards belong to this fixture?)")
     note = f"{kind} fixture compensation ({', '.join(used)}" + (

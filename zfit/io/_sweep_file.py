@@ -264,9 +264,16 @@ def _sweep_from_touchstone(path: Path, connection, noise: InstrumentNoise | None
     singular = np.abs(1 - s) < 1e-12 if connection != "series-thru" else np.abs(s) < 1e-12
     if singular.any():
         i = int(np.flatnonzero(singular)[0])
-        what = "S11 = 1 (an open circuit)" if connection == "reflection" else (
-            "S21 = 1 (an open across the line)" if connection == "shunt-thru" else "S21 = 0 (an open in series)")
-        raise ZfitInputError(f"{what}: the impedance is infinite", path, int(data.lines[i]))
+        # Within 1e-12 of the value that is an open: |Z| beyond 1e12 Z0, no measurement's.
+        port, target, kind = (("S11", 1, "an open circuit") if connection == "reflection" else
+                              ("S21", 1, "an open across the line") if connection == "shunt-thru" else
+                              ("S21", 0, "an open in series"))
+        if s[i] == target:
+            text = f"{port} = {target} ({kind}): the impedance is infinite"
+        else:
+            text = (f"|{port} - {target}| = {abs(s[i] - target):.3g}, within 1e-12 of {kind}: |Z| would exceed "
+                    "1e12 times the reference impedance")
+        raise ZfitInputError(text, path, int(data.lines[i]))
     with np.errstate(all="ignore"):
         z = impedance_from_s(s, connection, z0)
     rows = cleaned_rows(data.f_hz, z, source=str(path), connection=connection, lines=data.lines, notes=notes,

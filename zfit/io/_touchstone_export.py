@@ -16,7 +16,8 @@ from typing import Callable, Sequence
 import numpy as np
 
 from .._errors import MeasurementWarning, ZfitInputError
-from .._units import format_eng, parse_quantity
+from .._units import bounded, format_eng, parse_quantity
+from ..data._sweep import FREQUENCY_RANGE_HZ
 
 __all__ = ["parse_grid", "touchstone_text", "write_touchstone"]
 
@@ -54,6 +55,9 @@ def parse_grid(text: str, what: str = "--touchstone-grid") -> np.ndarray:
     hi = parse_quantity(m.group(2), what)
     n = int(m.group(3)) if m.group(3) else 801
     mode = m.group(4) or "log"
+    # The frequencies zfit computes with; a linear grid may start at 0 (dropped: DC has no S11 row).
+    for x in (hi,) if mode == "lin" and lo == 0 else (lo, hi):
+        bounded(x, what, *FREQUENCY_RANGE_HZ, unit="Hz")
     if mode == "/dec" and 0 < lo < hi:
         n = max(2, int(math.ceil(n * math.log10(hi / lo))) + 1)
     if n > MAX_GRID_POINTS:
