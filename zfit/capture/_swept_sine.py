@@ -189,12 +189,13 @@ def gain_phase_points(table, gain_accuracy_db: float | None = None, phase_accura
     s_ln = np.zeros(n_pts)
     s_ph = np.zeros(n_pts)
     sources = []
+    missing: set[str] = set()
     if repeated.any():
         dof = int(np.sum(count - 1))
         ss_ln = float(np.sum((ln_g - ln_mean[group]) ** 2))
         ss_ph = float(np.sum((dph - (ph_mean - ph[first])[group]) ** 2))
         pooled_ln, pooled_ph = math.sqrt(ss_ln / dof), math.sqrt(ss_ph / dof)
-        if pooled_ln == 0.0 or pooled_ph == 0.0:
+        if pooled_ln == 0.0 and pooled_ph == 0.0:
             raise ZfitInputError("repeated readings at one frequency are identical: their scatter gives no "
                                  "uncertainty; give --gain-accuracy and --phase-accuracy instead, or drop the copies",
                                  table.source, int(lines[np.flatnonzero(repeated[group])[0]]))
@@ -203,6 +204,12 @@ def gain_phase_points(table, gain_accuracy_db: float | None = None, phase_accura
         sources.append(f"scatter of repeated readings ({int(repeated.sum())} frequencies repeated, pooled over "
                        f"{dof} degrees of freedom: {_DB_PER_NEPER * pooled_ln:.3g} dB, "
                        f"{math.degrees(pooled_ph):.3g} deg per reading)")
+        for name, pooled in (("gain", pooled_ln), ("phase", pooled_ph)):
+            if pooled == 0.0:
+                # Repeats that agree to the last digit shown: the display's resolution, not the
+                # scatter, limits them; the accuracy bound stands in for the scatter.
+                notes.append(f"the repeated {name} readings agree exactly: its uncertainty is the accuracy bound")
+                missing.add(name)
     elif table.gain_std_db is not None or table.phase_std_rad is not None:
         if table.gain_std_db is None or table.phase_std_rad is None:
             raise ZfitInputError("the table gives the uncertainty of only one of gain and phase; give both columns, "
@@ -213,13 +220,15 @@ def gain_phase_points(table, gain_accuracy_db: float | None = None, phase_accura
         s_ph = np.sqrt(np.bincount(group, weights=p_std**2, minlength=n_pts)) / count
         sources.append("standard uncertainties stated in the table")
     given = gain_accuracy_db is not None or phase_accuracy_deg is not None
-    if given or not sources:
+    if given or not sources or missing:
         a_db = DEFAULT_GAIN_ACCURACY_DB if gain_accuracy_db is None else float(gain_accuracy_db)
         a_deg = DEFAULT_PHASE_ACCURACY_DEG if phase_accuracy_deg is None else float(phase_accuracy_deg)
         # A bound of a rectangular distribution: u = a / sqrt(3) (GUM 4.3.7).
         b_ln, b_ph = a_db / _DB_PER_NEPER / math.sqrt(3.0), math.radians(a_deg) / math.sqrt(3.0)
-        s_ln = np.hypot(s_ln, b_ln)
-        s_ph = np.hypot(s_ph, b_ph)
+        if given or not sources or "gain" in missing:
+            s_ln = np.hypot(s_ln, b_ln)
+        if given or not sources or "phase" in missing:
+            s_ph = np.hypot(s_ph, b_ph)
         default = "" if given else " (common-practice defaults for a two-channel oscilloscope)"
         sources.append(f"instrument accuracy +-{a_db:g} dB, +-{a_deg:g} deg as rectangular bounds{default}")
     else:

@@ -29,6 +29,12 @@ predicts.  With --divider series:R (the part in series with a known
 resistor R; --across says whether V_out is taken across the resistor or
 across the part) or --shunt R (the same, across the resistor, as in
 `zfit step`), the part's impedance is identified as `zfit identify` does.
+
+Safety: an oscilloscope's ground clip is tied to mains earth through the scope's
+power cord; measure mains-referenced or floating circuits only with differential
+probes or an isolated setup, and follow your local codes and licensed practice.
+Keep drive levels within the ratings of the part, the resistor and the probes,
+and discharge capacitors before you connect them.
 """
 
 

@@ -28,6 +28,9 @@ Equivalent circuits
     _lsq           weighted nonlinear least squares with covariance (`refine`)
     _fisher        resolution limits from the Fisher information, the
                    measurement's sigma at a model impedance
+Transfer functions
+    _transfer      a low-order transfer function in factored (Bode) form
+                   fitted to gain and phase, with covariance
 Passive networks
     _realisation   a rational model as a passive R-L-C network (Foster form)
     _loss_networks a loss model as a passive R-L-C network (exact or ladder)

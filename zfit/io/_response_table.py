@@ -353,7 +353,15 @@ def read_response_table(path, columns: str | None = None) -> ResponseTable:
         k, shown = _factor(q, unit, f"column {header[col] if header else col + 1!r}", path, line)
         return values[:, col] * k, shown
 
+    # Readings flagged unusable (the bins of a capture outside its band) are not checked: they are dropped.
+    usable = np.ones(values.shape[0], dtype=bool)
+    if "usable" in mapping:
+        usable = values[:, mapping["usable"][0]] > 0.5
+
     def fail_at(mask, message):
+        mask = mask & usable
+        if not mask.any():
+            return
         i = int(np.flatnonzero(mask)[0])
         raise ZfitInputError(message(i), path, int(data_idx[i]) + 1)
 
@@ -426,7 +434,7 @@ def read_response_table(path, columns: str | None = None) -> ResponseTable:
     if "coherence" in mapping:
         coh, _ = column("coherence")
     if "usable" in mapping:
-        keep &= values[:, mapping["usable"][0]] > 0.5
+        keep &= usable
         parts.append("usable flag")
     if not keep.all():
         notes.append(f"{int((~keep).sum())} reading(s) outside the usable band or without a finite uncertainty "

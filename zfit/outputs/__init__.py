@@ -13,6 +13,8 @@ _views         result -> text and tables: terminal summaries, the ``zfit.info/1`
 _result_plots  which plots a result gets, from its traces
 _plots         the sweep, Q and ESR/D plots
 _plot_capture  the Bode plot and the time record of a capture
+_plot_response the Bode plot of a fitted response with its predicted step
+_response_views the summary of a fitted response, its predicted step as CSV
 _plot_schematic the equivalent circuit drawn
 _plot_style    the house style and axis helpers shared by the plots
 _plot_files    a plot as PNG/SVG bytes, saved atomically
