@@ -24,13 +24,11 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
 from .._errors import ZfitInputError
-from ._table import _delimiter, _fields, _locate_bad_row, _norm_unit, _split_items, _split_name, _without_trailer
-from ._text import file_text, is_number
+from ._table import _norm_unit, _split_name, column_items, numeric_block
 
 __all__ = ["ResponseTable", "read_response_table", "response_columns", "RESPONSE_QUANTITIES"]
 
@@ -199,31 +197,8 @@ def response_columns(text: str, header: list[str] | None = None, n_columns: int 
     path : path-like, optional
         The file, for error messages.
     """
-    items = [t.strip() for t in _split_items(text) if t.strip()]
-    if not items:
-        raise ZfitInputError("--columns is empty; example: --columns 'f[kHz],gain[dB],phase[deg]'", path)
-    named = ["=" in t for t in items]
-    if any(named) and not all(named):
-        raise ZfitInputError(f"--columns {text!r}: give either every column in order or every item as "
-                             "QUANTITY=COLUMN, not a mix", path)
     out = {}
-    names = [h.strip().strip('"') for h in (header or [])]
-    for pos, item in enumerate(items):
-        if named[pos]:
-            left, _, right = item.partition("=")
-            right = right.strip().strip('"').strip("'")
-            if re.fullmatch(r"\d+", right):
-                col = int(right) - 1
-            elif right.lower() in [h.lower() for h in names]:
-                col = [h.lower() for h in names].index(right.lower())
-            else:
-                seen = ", ".join(repr(h) for h in names) if names else "none (no header line)"
-                raise ZfitInputError(f"--columns: no column named {right!r}; columns seen: {seen}", path)
-        else:
-            left, col = item, pos
-            if left.lower() in ("-", "skip", "_"):
-                continue
-        key, unit, shown = _split_name(left)
+    for key, unit, shown, col in column_items(text, header, path, "f[kHz],gain[dB],phase[deg]"):
         q = _quantity(key)
         if q is None:
             raise ZfitInputError(f"--columns: unknown quantity {shown!r}; known: {', '.join(RESPONSE_QUANTITIES)}", path)
@@ -288,42 +263,9 @@ def read_response_table(path, columns: str | None = None) -> ResponseTable:
         degrees or radians, a phase beyond two turns, a gain or amplitude
         that is not positive, or fewer than 3 usable readings.
     """
-    path = Path(path)
-    lines = file_text(path, "text table").splitlines()
-    stripped = [ln.replace('"', "").strip() for ln in lines]
-    comments = [s.lstrip("#!").strip() for s in stripped if s[:1] in ("#", "!")]
-    content = [i for i, s in enumerate(stripped) if s and s[0] not in "#!"]
-    if not content:
-        raise ZfitInputError("no data: the file is empty or only comments", path)
-    first, delim, dname = None, None, "whitespace"
-    for k, i in enumerate(content):
-        s = stripped[i]
-        if s[0] not in "0123456789+-.":
-            continue
-        d, name = _delimiter(s)
-        toks = _fields(s.rstrip(d) if d else s, d)
-        if len(toks) >= 2 and all(is_number(t) for t in toks):
-            first, delim, dname = k, d, name
-            break
-    if first is None:
-        raise ZfitInputError("no row of numbers found (is this a table of frequency, gain and phase?)", path,
-                             content[0] + 1)
-    n_data = len(_fields(stripped[content[first]], delim))
-    header, header_line = None, None
-    if first > 0:
-        cand = _fields(stripped[content[first - 1]], delim)
-        if len(cand) == n_data:
-            header, header_line = cand, content[first - 1] + 1
-    notes = []
-    data_rows, trailer = _without_trailer(content[first:], stripped, delim)
-    if trailer:
-        notes.append(f"{len(trailer)} text line(s) after the data ignored (line {trailer[0] + 1})")
-    data_idx = np.array(data_rows, dtype=int)
-    rows = [stripped[i] for i in data_idx]
-    try:
-        values = np.loadtxt(rows, delimiter=delim, ndmin=2, dtype=float, comments=None)
-    except ValueError:
-        _locate_bad_row(path, rows, data_idx, delim)
+    block = numeric_block(path, what="frequency, gain and phase", columns_given=columns is not None)
+    values, data_idx, header, header_line = block.values, block.data_idx, block.header, block.header_line
+    notes, dname = list(block.notes), block.delimiter_name
     n_cols = values.shape[1]
     if columns is not None:
         mapping = response_columns(columns, header, n_cols, path)
@@ -443,10 +385,10 @@ def read_response_table(path, columns: str | None = None) -> ResponseTable:
         raise ZfitInputError(f"only {int(keep.sum())} usable reading(s): a transfer function needs at least 3 "
                              "frequencies", path, int(data_idx[0]) + 1)
     sel = (lambda a: None if a is None else a[keep])
-    fmt = f"gain/phase table, {dname}, columns from {source}: " + ", ".join(parts)
+    fmt = f"gain/phase table, {dname}{' (decimal comma)' if block.decimal_comma else ''}, columns from {source}: " + ", ".join(parts)
     return ResponseTable(f_hz=f[keep], gain=gain[keep], phase_rad=phase[keep], lines=data_idx[keep] + 1,
                          gain_std_db=sel(g_std), phase_std_rad=sel(p_std), coherence=sel(coh), source=str(path),
-                         data_format=fmt, method=_method_from_comments(comments), notes=tuple(notes))
+                         data_format=fmt, method=_method_from_comments(block.comments), notes=tuple(notes))
 
 
 def _phase(column, q, raw, path, line, seen):
