@@ -52,7 +52,7 @@ def test_rc_table_json_plot_and_step_response(tmp_path, rng):
     f = np.geomspace(1e3, 300e3, 14)
     _, h = freqs([1.0], [tau, 1.0], 2 * np.pi * f)
     t = table_file(tmp_path / "rc.csv", f, h, rng)
-    out, png, st = tmp_path / "rc.json", tmp_path / "rc.png", tmp_path / "step.csv"
+    out, png, st = tmp_path / "rc.json", tmp_path / "rc.svg", tmp_path / "step.csv"
     res = run(t, "--gain-accuracy", SQRT3 * 0.05, "--phase-accuracy", SQRT3 * 0.3, "--json", out, "--plot", png,
               "--step-response", st)
     assert res.exit_code == 0, res.output
@@ -62,7 +62,9 @@ def test_rc_table_json_plot_and_step_response(tmp_path, rng):
     assert d["schema"] == "zfit.response/1"
     assert d["time_constants_s"][0]["value"] == pytest.approx(tau, rel=0.01)
     assert d["f_3db_hz"]["value_hz"] == pytest.approx(1 / (2 * math.pi * tau), rel=0.01)
-    assert png.stat().st_size > 10_000
+    svg = png.read_text()
+    for gid in ("gain-db", "phase", "model-gain-db", "model-phase", "cutoff", "step", "step-band"):
+        assert f'id="{gid}' in svg, gid
     rows = np.loadtxt(st, delimiter=",", comments="#", skiprows=3)
     # The predicted step of a first-order low pass: 1 - exp(-t/tau) (definition), within 1 % of the final value.
     assert rows[:, 1] == pytest.approx(1 - np.exp(-rows[:, 0] / tau), abs=0.01)
@@ -100,7 +102,8 @@ def test_capture_and_table_of_one_network_agree(tmp_path, rng):
     tau = 2e3 * 10e-9
     cap = _square_wave_capture(tmp_path / "cap.csv", tau, rng)
     resp = tmp_path / "h.csv"
-    step = CliRunner().invoke(app, ["step", str(cap), "--input", "CH1", "--output", "CH2", "--response", str(resp)])
+    step = CliRunner().invoke(app, ["step", str(cap), "--input", "CH1", "--output", "CH2", "--response", str(resp),
+                                    "--json", str(tmp_path / "step.json")])
     assert step.exit_code == 0, step.output
     res_c = run(resp, "--json", tmp_path / "c.json")
     assert res_c.exit_code == 0, res_c.output
@@ -113,7 +116,9 @@ def test_capture_and_table_of_one_network_agree(tmp_path, rng):
     t = json.loads((tmp_path / "t.json").read_text())
     validate(c)
     # The same response block in both (the keys of zfit.step/1's).
-    assert set(c["response"]) == set(t["response"]) == {"method", "averages", "bin_hz", "dc_gain", "coherence_min_in_band"}
+    step_block = json.loads((tmp_path / "step.json").read_text())["response"]
+    assert set(c["response"]) == set(t["response"]) == set(step_block)
+    assert c["response"]["dc_gain"] == pytest.approx(step_block["dc_gain"], rel=0.01)
     assert c["response"]["method"].startswith("H1 = G_xy/G_xx")
     tc, tt = c["time_constants_s"][0], t["time_constants_s"][0]
     assert tc["value"] == pytest.approx(tau, rel=0.01) and tt["value"] == pytest.approx(tau, rel=0.01)
@@ -206,3 +211,24 @@ def test_phase_out_of_range_is_one_line_exit_2(tmp_path):
     assert res.output.strip() == (f"zfit: error: {t}:4: phase -900 deg is beyond +-720 deg (two turns): out of range "
                                   "(radians read as degrees?)")
     assert Path(t).exists()
+
+
+def test_capacitor_behind_a_divider_across_the_part(tmp_path, rng):
+    # R = 1 kohm in series with C = 100 nF (ESR 0.5 ohm), V_out across the capacitor:
+    # H = (ESR C s + 1)/((R + ESR) C s + 1) (common practice); 20 readings, noise 0.02 dB and 0.1 deg.
+    R, C, esr = 1e3, 100e-9, 0.5
+    f = np.geomspace(100, 100e3, 20)
+    _, h = freqs([esr * C, 1.0], [(R + esr) * C, 1.0], 2 * np.pi * f)
+    t = table_file(tmp_path / "c.csv", f, h, rng, noise_db=0.02, noise_deg=0.1)
+    cir = tmp_path / "c.cir"
+    res = run(t, "--divider", "series:1k", "--across", "part", "--gain-accuracy", SQRT3 * 0.02,
+              "--phase-accuracy", SQRT3 * 0.1, "--json", tmp_path / "c.json", "--netlist", cir)
+    assert res.exit_code == 0, res.output
+    d = json.loads((tmp_path / "c.json").read_text())
+    p = d["impedance"]["parameters"]
+    assert d["impedance"]["model"] == "capacitor"
+    assert p["C"]["value"] == pytest.approx(C, rel=0.01)
+    assert p["ESR"]["value"] == pytest.approx(esr, abs=3 * p["ESR"]["std"])
+    # The transfer function's pole is 1/((R + ESR) C) (the definition of the divider's time constant).
+    assert d["time_constants_s"][0]["value"] == pytest.approx((R + esr) * C, rel=0.01)
+    assert cir.read_text().startswith("* Equivalent circuit of a capacitor")

@@ -36,7 +36,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from .._errors import FitError
-from ..fit._transfer import TransferModel, fit_transfer_structure, transfer_structures, vector_fit_roots
+from ..fit._transfer import (
+    DECADES_OUT, LN_ZETA_RANGE, TransferModel, fit_transfer_structure, transfer_structures, vector_fit_roots,
+)
 from ..identification._criteria import bic, log_cells, longest_run, valid_mask
 from ..identification._merit import Estimate
 
@@ -114,8 +116,8 @@ def chosen_transfer(points, max_order: int = DEFAULT_MAX_ORDER, structure=None):
             if b < b_best - PARSIMONY_MARGIN or k_best is None:
                 k_best, b_best = s.n_params, min(b, b_best)
     if not fitted:
-        raise FitError("no transfer function of up to "
-                       f"{max_order} poles fits the readings (every fit ran a corner out of range)")
+        raise FitError(f"no transfer function of up to {max_order} poles fits the readings with every factor "
+                       "resolved (a phase of the wrong sign, or a network of higher order?)")
     best = min(b for b, _ in fitted)
     near = [(m.structure.n_params, b, i, m) for i, (b, m) in enumerate(fitted) if b <= best + PARSIMONY_MARGIN]
     return min(near, key=lambda t: (t[0], t[1], t[2]))[3], tuple(candidates)
@@ -123,13 +125,11 @@ def chosen_transfer(points, max_order: int = DEFAULT_MAX_ORDER, structure=None):
 
 def _why_not(model: TransferModel) -> str | None:
     """Why a fitted structure is not a candidate, or None."""
-    from ..fit._transfer import _DECADES_OUT, _LN_ZETA
-
     f = model.factors()
     for _, z in f["pole_pairs"] + f["zero_pairs"]:
         if z >= 1.0:
             return "a complex pair came out overdamped (two real corners fit it as well)"
-        if math.log(z) <= _LN_ZETA[0] + 1e-3:
+        if math.log(z) <= LN_ZETA_RANGE[0] + 1e-3:
             return "a damping ratio ran to its bound"
     sd = np.sqrt(np.abs(np.diag(model.covariance)))[1:]
     if np.any(~np.isfinite(sd)) or np.any(sd > _UNRESOLVED):
@@ -138,7 +138,7 @@ def _why_not(model: TransferModel) -> str | None:
         return "a pole and a zero cancel (within a few percent of each other)"
     f_lo, f_hi = model.band_hz
     ws = f["zeros"] + f["poles"] + [w for w, _ in f["zero_pairs"] + f["pole_pairs"]]
-    out = 10.0 ** (_DECADES_OUT - 0.01)
+    out = 10.0 ** (DECADES_OUT - 0.01)
     for w in ws:
         fc = w / _TWO_PI
         if fc < f_lo / out or fc > f_hi * out:

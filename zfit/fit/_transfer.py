@@ -46,14 +46,16 @@ import numpy as np
 
 from .._errors import FitError
 
-__all__ = ["TransferStructure", "TransferModel", "transfer_structures", "fit_transfer_structure", "vector_fit_roots"]
+__all__ = ["TransferStructure", "TransferModel", "transfer_structures", "fit_transfer_structure", "vector_fit_roots",
+           "DECADES_OUT", "LN_ZETA_RANGE"]
 
 _TWO_PI = 2.0 * math.pi
-# Corners may sit at most this many decades outside the band, damping
-# ratios between these: far enough for any network the band says anything
-# about, near enough that an unresolved corner cannot run off to 1e-300.
-_DECADES_OUT = 4.0
-_LN_ZETA = (math.log(1e-4), math.log(1e3))
+#: Corners may sit at most this many decades outside the band, damping
+#: ratios within LN_ZETA_RANGE (natural logs): far enough for any network the
+#: band says anything about, near enough that an unresolved corner cannot run
+#: off to 1e-300 (fits beyond are refused, or not candidates).
+DECADES_OUT = 4.0
+LN_ZETA_RANGE = (math.log(1e-4), math.log(1e3))
 
 
 @dataclass(frozen=True)
@@ -426,15 +428,15 @@ def fit_transfer_structure(structure: TransferStructure, f_hz, gain, phase_rad, 
     ph = np.asarray(phase_rad, float)
     s_ln = np.asarray(sigma_ln, float) * np.ones(n)
     s_ph = np.asarray(sigma_phase, float) * np.ones(n)
-    span = math.log(w_hi / w_lo) / 2.0 + _DECADES_OUT * math.log(10.0)
+    span = math.log(w_hi / w_lo) / 2.0 + DECADES_OUT * math.log(10.0)
     lo, hi = [-np.inf], [np.inf]
     for kind in (["c"] * structure.real_zeros + ["p"] * structure.zero_pairs + ["c"] * structure.real_poles
                  + ["p"] * structure.pole_pairs):
         lo.append(-span)
         hi.append(span)
         if kind == "p":
-            lo.append(_LN_ZETA[0])
-            hi.append(_LN_ZETA[1])
+            lo.append(LN_ZETA_RANGE[0])
+            hi.append(LN_ZETA_RANGE[1])
     lo, hi = np.array(lo), np.array(hi)
     all_starts = [_theta_from_roots(structure, z, p, omega_ref) for z, p in starts]
     all_starts.append(_theta_from_roots(structure, *_spread_start(structure, w_lo, w_hi), omega_ref))
