@@ -324,11 +324,10 @@ def _factor_list(model, which):
     """The real corners and pairs of `which` ('poles' or 'zeros') as Factors."""
     fac = model.factors()
     reals, pairs = fac[which], fac["pole_pairs" if which == "poles" else "zero_pairs"]
-    sign = -1.0
     out = []
     for i, w in enumerate(reals):
         out.append(Factor(
-            "real", complex(sign * w, 0.0),
+            "real", complex(-w, 0.0),
             corner=_estimate(model, lambda th, i=i: model.factors(th)[which][i] / _TWO_PI, "Hz"),
             omega=_estimate(model, lambda th, i=i: model.factors(th)[which][i], "rad/s"),
             tau=_estimate(model, lambda th, i=i: 1.0 / model.factors(th)[which][i], "s")))
@@ -430,10 +429,12 @@ def _rise_and_overshoot(t, y, final):
 
 def _step_prediction(model, dc):
     fac = model.factors()
-    slow = [(w, 1.0) for w in fac["poles"]] + [(w, z) for w, z in fac["pole_pairs"]]
-    # Seven of the slowest settling time constants, and at least eight of the slowest ringing periods.
-    t_end = max(7.0 / (min(z, 1.0) * w) for w, z in slow)
-    t = np.linspace(0.0, t_end, 801)
+    modes = [(w, 1.0) for w in fac["poles"]] + [(w, z) for w, z in fac["pole_pairs"]]
+    # Seven of the slowest settling time constants (1/(zeta omega) of a pair), sampled at least
+    # 20 times per period of the fastest ringing and twice per fastest time constant.
+    t_end = max(7.0 / (min(z, 1.0) * w) for w, z in modes)
+    fine = min([1.0 / (2.0 * w) for w in fac["poles"]] + [_TWO_PI / (20.0 * w) for w, _ in fac["pole_pairs"]])
+    t = np.linspace(0.0, t_end, int(np.clip(math.ceil(t_end / fine) + 1, 801, 8001)))
     y = _step(model, model.theta, t)
     y_std = model.std_of(lambda th: _step(model, th, t))
     final = 0.0 if dc is None else dc.value

@@ -373,7 +373,7 @@ def _spread_start(structure, w_lo, w_hi):
     kinds = (["rz"] * structure.real_zeros + ["zp"] * structure.zero_pairs + ["rp"] * structure.real_poles
              + ["pp"] * structure.pole_pairs)
     # Poles below zeros: the low-pass-like order most passive networks have.
-    order = sorted(range(n), key=lambda k: (kinds[k][1] != "p",))
+    order = sorted(range(n), key=lambda k: kinds[k] not in ("rp", "pp"))
     for pos, k in zip(q, order):
         kind = kinds[k]
         w = float(pos)
@@ -428,6 +428,8 @@ def fit_transfer_structure(structure: TransferStructure, f_hz, gain, phase_rad, 
     ph = np.asarray(phase_rad, float)
     s_ln = np.asarray(sigma_ln, float) * np.ones(n)
     s_ph = np.asarray(sigma_phase, float) * np.ones(n)
+    # The plausible range of each log-parameter: starts are clipped into it,
+    # and a fit that ends far beyond it has diverged.
     span = math.log(w_hi / w_lo) / 2.0 + DECADES_OUT * math.log(10.0)
     lo, hi = [-np.inf], [np.inf]
     for kind in (["c"] * structure.real_zeros + ["p"] * structure.zero_pairs + ["c"] * structure.real_poles
@@ -478,7 +480,7 @@ def fit_transfer_structure(structure: TransferStructure, f_hz, gain, phase_rad, 
     j = sol.jac
     dof = 2 * n - structure.n_params
     scale = max(1.0, chi2 / dof)
-    u, sv, vt = np.linalg.svd(j, full_matrices=False)
+    _, sv, vt = np.linalg.svd(j, full_matrices=False)
     tiny = sv <= sv[0] * 1e-12
     inv = np.where(tiny, np.inf, 1.0 / np.where(tiny, 1.0, sv) ** 2)
     with np.errstate(invalid="ignore"):

@@ -10,7 +10,7 @@ import math
 import numpy as np
 
 from .._units import format_eng, format_value_std
-from ._views import identification_summary
+from ._views import dimensionless, identification_summary, percent_std
 
 __all__ = ["response_summary", "step_response_csv"]
 
@@ -29,7 +29,7 @@ def _factor_line(x) -> str:
                 f"tau = 1/omega = {_vs(x.tau)}")
     return (f"complex pair, s = {format_eng(x.root.real, '', 5)} ± j{format_eng(abs(x.root.imag), '', 5)} rad/s: "
             f"f_n {_vs(x.corner)}, omega_n {format_value_std(x.omega.value, x.omega.std, '')} rad/s, "
-            f"zeta {format_value_std(x.zeta.value, x.zeta.std)}, Q {format_value_std(x.q.value, x.q.std)}")
+            f"zeta {dimensionless(x.zeta)}, Q {dimensionless(x.q)}")
 
 
 def response_summary(result) -> list[str]:
@@ -39,7 +39,7 @@ def response_summary(result) -> list[str]:
         f"response:   {p.source}  ({p.n_points} frequencies, {int(np.sum(p.readings))} readings, "
         f"{format_eng(p.f_hz[0], 'Hz')} to {format_eng(p.f_hz[-1], 'Hz')})",
         f"uncertainty per point: {p.uncertainty_source}",
-        f"model:      {m.structure.describe()}  (chosen by BIC among {len(result.candidates)} structures)",
+        f"model:      {m.structure.describe()}  (chosen by BIC; {len(result.candidates)} structures tried)",
         f"fit:        normalised RMS residual {m.rms_normalized_residual:.3g} over {p.n_points} points "
         "(1 = the readings' uncertainty)",
     ]
@@ -48,9 +48,9 @@ def response_summary(result) -> list[str]:
         out.append(f"            valid band {format_eng(lo, 'Hz')} to {format_eng(hi, 'Hz')}")
     if fig.dc_gain is not None:
         db = 20.0 * math.log10(abs(fig.dc_gain.value)) if fig.dc_gain.value else float("-inf")
-        out.append(f"DC gain:    {format_value_std(fig.dc_gain.value, fig.dc_gain.std)}  ({db:.4g} dB)")
+        out.append(f"DC gain:    {dimensionless(fig.dc_gain)}  ({db:.4g} dB)")
     if fig.hf_gain is not None:
-        out.append(f"HF gain:    {format_value_std(fig.hf_gain.value, fig.hf_gain.std)}")
+        out.append(f"HF gain:    {dimensionless(fig.hf_gain)}")
     for c in fig.cutoffs:
         out.append(f"-3 dB:      {_vs(c.frequency)}  ({c.edge} edge, re the {fig.reference}"
                    + ("" if c.in_band else "; outside the band, extrapolated") + ")")
@@ -61,8 +61,9 @@ def response_summary(result) -> list[str]:
     for x in fig.zeros:
         out.append(f"zero:       {_factor_line(x)}")
     st = fig.step
-    out.append(f"step:       settles to {st.final_value:.5g}; 10-90 % {_vs(st.rise_10_90)}; "
-               f"overshoot {'n/a' if st.overshoot_pct is None else format_value_std(st.overshoot_pct.value, st.overshoot_pct.std) + ' %'}")
+    over = st.overshoot_pct
+    out.append(f"step:       settles to {st.final_value:.5g}; 10-90 % {_vs(st.rise_10_90)}; overshoot "
+               + ("n/a" if over is None else percent_std(over.value, over.std)))
     if result.identification is not None:
         out.append(f"impedance through the divider ({format_eng(result.resistor_ohm, 'ohm')}, output across the "
                    f"{result.output_across}):")
