@@ -232,3 +232,28 @@ def test_capacitor_behind_a_divider_across_the_part(tmp_path, rng):
     # The transfer function's pole is 1/((R + ESR) C) (the definition of the divider's time constant).
     assert d["time_constants_s"][0]["value"] == pytest.approx((R + esr) * C, rel=0.01)
     assert cir.read_text().startswith("* Equivalent circuit of a capacitor")
+
+
+def test_demo_capture_through_step_response_gives_the_coil(tmp_path):
+    # The demo coil (demo_sweeps/make_demo_capture.py: L = 4.7 mH, R_w = 12 ohm, C_p = 38 pF, invented) with a
+    # 1 kohm sense resistor: `zfit step --response` writes H, `zfit response --shunt 1k` reads it back; the
+    # coil agrees with `zfit step --shunt 1k` on the same capture, and with the invented values.
+    cap = Path(__file__).resolve().parent.parent / "demo_sweeps" / "coil_4m7_square_1k.csv"
+    h, js = tmp_path / "h.csv", tmp_path / "s.json"
+    step = CliRunner().invoke(app, ["step", str(cap), "-i", "CH1", "-o", "CH2", "--shunt", "1k", "--response", str(h),
+                                    "--json", str(js)])
+    assert step.exit_code == 0, step.output
+    res = run(h, "--shunt", "1k", "--json", tmp_path / "r.json")
+    assert res.exit_code == 0, res.output
+    r = json.loads((tmp_path / "r.json").read_text())
+    s = json.loads(js.read_text())
+    validate(r)
+    for k, ref, tol in (("L", 4.7e-3, 0.03), ("C_p", 38e-12, 0.08)):
+        a, b = r["impedance"]["parameters"][k], s["impedance"]["parameters"][k]
+        assert a["value"] == pytest.approx(ref, rel=tol)
+        assert abs(a["value"] - b["value"]) < 3 * math.hypot(a["std"], b["std"])
+    # tau of H = R/(R + R_w + sL): L/(R + R_w) = 4.64 us within 3 % (the step's own figure is checked likewise).
+    assert r["time_constants_s"][0]["value"] == pytest.approx(4.7e-3 / 1012.0, rel=0.03)
+    # The self-resonance is a notch of H: a complex zero pair at the SRF, 1/(2 pi sqrt(L C_p)) = 375 kHz, within 3 %.
+    pair = [z for z in r["zeros"] if z["kind"] == "pair"]
+    assert pair and pair[0]["corner_hz"]["value"] == pytest.approx(1 / (2 * math.pi * math.sqrt(4.7e-3 * 38e-12)), rel=0.03)

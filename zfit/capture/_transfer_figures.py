@@ -258,7 +258,8 @@ class StepPrediction:
     final_value : float
         The settled value (the DC gain; 0 for a high pass).
     rise_10_90 : Estimate or None
-        10-90 % transition duration, when the response settles to a non-zero value.
+        10-90 % transition duration, when the response settles to a non-zero
+        value and does not jump past 10 % of it at the step.
     overshoot_pct : Estimate or None
         Peak above the final value, percent of it.
     """
@@ -417,6 +418,9 @@ def _rise_and_overshoot(t, y, final):
     if not final or not math.isfinite(final):
         return float("nan"), float("nan")
     r = y / final
+    if r[0] >= 0.1:
+        # The step jumps past 10 % at once (as many zeros as poles): no transition duration to give.
+        return float("nan"), 100.0 * max(float(np.max(r)) - 1.0, 0.0)
     # First crossings of 10 % and 90 % of the final value, interpolated linearly.
     def first(level):
         i = np.flatnonzero(r >= level)
@@ -444,12 +448,13 @@ def _step_prediction(model, dc):
             d = model.factors(th)["gain"]
             return np.array(_rise_and_overshoot(t, _step(model, th, t), d))
         r0, o0 = _rise_and_overshoot(t, y, final)
-        if math.isfinite(r0):
+        if math.isfinite(o0):
             g = model.gradient(figs)
-            cov = g.T @ model.covariance @ g
-            sd = np.sqrt(np.maximum(np.diag(cov), 0.0))
-            rise = Estimate(r0, float(sd[0]), "s")
-            over = Estimate(o0, float(sd[1]) if o0 > 0 else None, "%")
+            with np.errstate(invalid="ignore"):
+                sd = np.sqrt(np.maximum(np.diag(g.T @ model.covariance @ g), 0.0))
+            if math.isfinite(r0):
+                rise = Estimate(r0, float(sd[0]) if math.isfinite(sd[0]) else None, "s")
+            over = Estimate(o0, float(sd[1]) if o0 > 0 and math.isfinite(sd[1]) else None, "%")
     return StepPrediction(t, y, y_std, float(final), rise, over)
 
 
