@@ -162,3 +162,13 @@ def test_phase_readings_wrapped_at_180_degrees(rng):
     # mean of the three roots' magnitudes, the cube root of the constant term, is well determined.
     w = [p.omega.value for p in r.figures.poles for _ in range(p.order)]
     assert len(w) == 3 and math.exp(np.mean(np.log(w))) == pytest.approx(1 / tau, rel=0.02)
+
+
+def test_a_resistive_divider_is_a_gain_alone(rng):
+    # 1 kohm over 1 kohm + 3 kohm: H = 1/4 at every frequency (Ohm's law), read at 6 frequencies.
+    r = analysed(readings([0.25], [1.0], np.geomspace(100, 1e6, 6), rng))
+    assert r.model.structure.order == 0 and r.figures.poles == () and r.figures.cutoffs == ()
+    assert r.figures.dc_gain.value == pytest.approx(0.25, rel=0.01)
+    assert r.figures.step.v == pytest.approx(np.full(r.figures.step.v.size, r.figures.dc_gain.value))
+    d = r.to_dict()
+    assert d["f_3db_hz"] is None and d["time_constants_s"] == [] and d["model"]["structure"].startswith("a gain alone")

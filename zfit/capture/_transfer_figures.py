@@ -102,7 +102,8 @@ def chosen_transfer(points, max_order: int = DEFAULT_MAX_ORDER, structure=None):
             break
         key = (s.order, s.zero_order == s.order)
         if key not in starts:
-            starts[key] = vector_fit_roots(f, points.h, points.h_sigma, s.order, key[1]) if n >= s.order + 2 else None
+            starts[key] = (vector_fit_roots(f, points.h, points.h_sigma, s.order, key[1])
+                           if 0 < s.order and n >= s.order + 2 else None)
         try:
             m = fit_transfer_structure(s, f, g, ph, s_ln, s_ph, starts=[starts[key]] if starts[key] else ())
         except FitError as e:
@@ -434,6 +435,12 @@ def _rise_and_overshoot(t, y, final):
 def _step_prediction(model, dc):
     fac = model.factors()
     modes = [(w, 1.0) for w in fac["poles"]] + [(w, z) for w, z in fac["pole_pairs"]]
+    if not modes:
+        # A gain alone: the step is the gain at once (drawn over a period of the lowest frequency read).
+        t = np.linspace(0.0, 1.0 / model.band_hz[0], 801)
+        k = float(fac["gain"])
+        return StepPrediction(t, np.full(t.size, k), np.full(t.size, model.std_of(lambda th: model.factors(th)["gain"])),
+                              k, None, None)
     # Seven of the slowest settling time constants (1/(zeta omega) of a pair), sampled at least
     # 20 times per period of the fastest ringing and twice per fastest time constant.
     t_end = max(7.0 / (min(z, 1.0) * w) for w, z in modes)

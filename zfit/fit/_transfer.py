@@ -102,6 +102,8 @@ class TransferStructure:
                     f"{reals} real" if reals and pairs else ""]
             extra = ", ".join(b for b in bits if b)
             return f"{n} {what}{'s' if n > 1 else ''}" + (f" ({extra})" if extra else "")
+        if self.order == 0:
+            return "a gain alone (no poles or zeros)"
         text = part(self.order, self.pole_pairs, self.real_poles, "pole")
         nz = self.real_zeros + 2 * self.zero_pairs
         if nz:
@@ -114,7 +116,7 @@ class TransferStructure:
 def transfer_structures(max_order: int, n_points: int) -> list[TransferStructure]:
     """Return every proper structure up to `max_order` poles that `n_points` readings can determine.
 
-    Proper: no more zeros than poles.  Determined: fewer unknowns than the
+    Proper: no more zeros than poles (a gain alone, no pole, is the first).  Determined: fewer unknowns than the
     ``2 n_points`` real residuals.  Ordered by the number of unknowns, real
     factors before pairs, so that among equally good fits the simplest
     comes first.
@@ -126,7 +128,8 @@ def transfer_structures(max_order: int, n_points: int) -> list[TransferStructure
     n_points : int
         Distinct frequencies.
     """
-    out = []
+    # A gain alone first: a resistive divider, or a network measured where it is flat.
+    out = [TransferStructure(0, 0, 0, 0, 0)]
     for p in range(1, max_order + 1):
         for pp in range(p // 2 + 1):
             for zd in range(p + 1):
