@@ -15,7 +15,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from .._errors import MeasurementWarning, ZfitInputError
+from .._errors import FitError, MeasurementWarning, ZfitInputError
 from .._units import format_eng
 from ._swept_sine import OUTPUT_ACROSS, GainPhasePoints, divider_impedance_sweep
 from ._transfer_figures import DEFAULT_MAX_ORDER, Candidate, TransferFigures, chosen_transfer, transfer_figures
@@ -181,7 +181,7 @@ def analyse_response(points: GainPhasePoints, *, max_order: int = DEFAULT_MAX_OR
     MeasurementWarning
         For each entry of ``ResponseResult.warnings``.
     """
-    from .._errors import FitError
+    from scipy.stats import chi2 as chi2_dist
 
     if not (isinstance(max_order, int) and 1 <= max_order <= MAX_ORDER):
         raise ZfitInputError(f"the most poles tried must be 1 to {MAX_ORDER}, not {max_order!r}")
@@ -193,9 +193,7 @@ def analyse_response(points: GainPhasePoints, *, max_order: int = DEFAULT_MAX_OR
         raise ZfitInputError(str(exc), points.source) from None
     figs = transfer_figures(chosen, points)
     warn, notes = [], list(points.notes)
-    from scipy.stats import chi2 as chi2_dist
-
-    if chosen.cov_scale > 1.0 + 1e-9:
+    if math.sqrt(chosen.cov_scale) >= 1.01:
         notes.append(f"uncertainties of the figures scaled by sqrt(chi2/dof) = {math.sqrt(chosen.cov_scale):.3g}")
     # A chi-square above its 99.9 % quantile is more than the noise: say so.
     if chosen.dof > 0 and chosen.chi2 > chi2_dist.ppf(0.999, chosen.dof):
@@ -221,7 +219,11 @@ def analyse_response(points: GainPhasePoints, *, max_order: int = DEFAULT_MAX_OR
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", MeasurementWarning)
             ident = identify(sweep, model=model)
-        warn.extend(f"impedance: {w.message}" for w in caught if issubclass(w.category, MeasurementWarning))
+        for w in caught:
+            if issubclass(w.category, MeasurementWarning):
+                warn.append(f"impedance: {w.message}")
+            else:
+                warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
     for w in warn:
         warnings.warn(w, MeasurementWarning, stacklevel=2)
     return ResponseResult(points, chosen, candidates, figs, resistor_ohm=resistor_ohm,
