@@ -374,9 +374,9 @@ class NumericBlock:
         ``"comma"``, ``"semicolon"``, ``"tab"`` or ``"whitespace"``.
     decimal_comma : bool
         Whether a comma was read as the decimal mark.
-    notes : list of str
+    notes : tuple of str
         Lines skipped and units taken from a units row.
-    comments : list of str
+    comments : tuple of str
         The text of the comment lines (``#``, ``!``), in file order.
     """
 
@@ -387,8 +387,8 @@ class NumericBlock:
     delimiter: str | None
     delimiter_name: str
     decimal_comma: bool
-    notes: list[str]
-    comments: list[str]
+    notes: tuple[str, ...]
+    comments: tuple[str, ...]
 
 
 def numeric_block(path, what: str = "frequency and impedance", columns_given: bool = False) -> NumericBlock:
@@ -493,7 +493,8 @@ def numeric_block(path, what: str = "frequency and impedance", columns_given: bo
     except ValueError:
         _locate_bad_row(path, rows, data_idx, delim)
     comments = [s.lstrip("#!").strip() for s in stripped if s[:1] in ("#", "!")]
-    return NumericBlock(values, data_idx, header, header_line, delim, dname, decimal_comma, notes, comments)
+    return NumericBlock(values, data_idx, header, header_line, delim, dname, decimal_comma, tuple(notes),
+                        tuple(comments))
 
 
 def read_table(path, columns: str | None = None) -> TableData:
@@ -522,7 +523,7 @@ def read_table(path, columns: str | None = None) -> TableData:
     """
     block = numeric_block(path, columns_given=columns is not None)
     values, data_idx, header, header_line = block.values, block.data_idx, block.header, block.header_line
-    dname, decimal_comma, notes = block.delimiter_name, block.decimal_comma, block.notes
+    dname, decimal_comma, notes = block.delimiter_name, block.decimal_comma, list(block.notes)
     n_cols = values.shape[1]
 
     if columns is not None:
