@@ -18,6 +18,12 @@ Modules
     _response        H1 frequency response with coherence; the impedance
                      sweep with a sense resistor
     _result          `StepResult` and its ``zfit.step/1`` object
+    _swept_sine      gain/phase readings as points with their uncertainty;
+                     the part's impedance behind a series divider
+    _transfer_figures the transfer function the BIC prefers, and its poles,
+                     zeros, gains, -3 dB frequencies and predicted step
+    _response_result `analyse_response`, `ResponseResult` and its
+                     ``zfit.response/1`` object
 
 Plots of a capture are in `zfit.outputs._plot_capture`; writing its files
 in `zfit.outputs`.

@@ -14,6 +14,7 @@ from .._version import __version__
 _COMMAND_MODULES = (
     "_info",
     "_step",
+    "_response",
     "_identify",
     "_batch",
     "_plan",

@@ -30,6 +30,9 @@ Equivalent circuits
                    mu' - j mu'', and a winding's R_dc, C_p with a Cole-Cole core
     _fisher        resolution limits from the Fisher information, the
                    measurement's sigma at a model impedance
+Transfer functions
+    _transfer      a low-order transfer function in factored (Bode) form
+                   fitted to gain and phase, with covariance
 Passive networks
     _realisation   a rational model as a passive R-L-C network (Foster form)
     _loss_networks a loss model as a passive R-L-C network (exact or ladder)

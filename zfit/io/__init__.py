@@ -40,4 +40,7 @@ _capture_text
     Delimited-text exports: layout, metadata, header, the numeric block.
 _capture_time
     The time base of a text capture from its time column.
+_response_table
+    Swept-sine gain/phase tables (gain as a ratio or in dB, or the two
+    amplitudes; phase in degrees or radians) into readings.
 """

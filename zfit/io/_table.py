@@ -40,7 +40,7 @@ import numpy as np
 from .._errors import ZfitInputError
 from ._text import file_text, is_number
 
-__all__ = ["TableData", "read_table", "parse_columns", "QUANTITIES", "PAIRS"]
+__all__ = ["TableData", "read_table", "parse_columns", "column_items", "numeric_block", "NumericBlock", "QUANTITIES", "PAIRS"]
 
 #: Canonical quantity names, with what they are and their SI unit.
 QUANTITIES = {
@@ -261,13 +261,45 @@ def parse_columns(text: str, header: list[str] | None = None, n_columns: int | N
     path : path-like, optional
         The file, for error messages.
     """
+    out = {}
+    for key, unit, shown, col in column_items(text, header, path, "f[kHz],zmag,phase[deg]"):
+        q = _quantity(key)
+        if q is None or q.endswith("?"):
+            hint = " (say Ls or Lp, Cs or Cp, Rs or Rp: the meter's series or parallel mode)" if q else ""
+            raise ZfitInputError(f"--columns: unknown quantity {shown!r}{hint}; known: {', '.join(QUANTITIES)}", path)
+        if n_columns is not None and not 0 <= col < n_columns:
+            raise ZfitInputError(f"--columns: column {col + 1} for {shown!r} but the file has {n_columns} columns", path)
+        if q in out:
+            raise ZfitInputError(f"--columns: {_DISPLAY[q]} given twice", path)
+        if unit is None and header is not None and col < len(header):
+            unit = _split_name(header[col])[1]
+        out[q] = (col, unit)
+    return out
+
+
+def column_items(text: str, header: list[str] | None, path, example: str):
+    """Yield ``(key, unit, shown, column index)`` for each item of a ``--columns`` text, skipped columns left out.
+
+    The syntax of `parse_columns`; `key` is the item's name normalised
+    (lower case, no spaces, ``|``, ``_`` or ``-``), `shown` as written.
+
+    Parameters
+    ----------
+    text : str
+        The mapping.
+    header : list of str or None
+        The header names, to resolve columns given by name.
+    path : path-like or None
+        The file, for error messages.
+    example : str
+        A mapping to show when `text` is empty.
+    """
     items = [t.strip() for t in _split_items(text) if t.strip()]
     if not items:
-        raise ZfitInputError("--columns is empty; example: --columns 'f[kHz],zmag,phase[deg]'", path)
+        raise ZfitInputError(f"--columns is empty; example: --columns {example!r}", path)
     named = ["=" in t for t in items]
     if any(named) and not all(named):
         raise ZfitInputError(f"--columns {text!r}: give either every column in order or every item as QUANTITY=COLUMN, not a mix", path)
-    out = {}
     for pos, item in enumerate(items):
         if named[pos]:
             left, _, right = item.partition("=")
@@ -286,18 +318,7 @@ def parse_columns(text: str, header: list[str] | None = None, n_columns: int | N
             if left.lower() in ("-", "skip", "_"):
                 continue
         key, unit, shown = _split_name(left)
-        q = _quantity(key)
-        if q is None or q.endswith("?"):
-            hint = " (say Ls or Lp, Cs or Cp, Rs or Rp: the meter's series or parallel mode)" if q else ""
-            raise ZfitInputError(f"--columns: unknown quantity {shown!r}{hint}; known: {', '.join(QUANTITIES)}", path)
-        if n_columns is not None and not 0 <= col < n_columns:
-            raise ZfitInputError(f"--columns: column {col + 1} for {shown!r} but the file has {n_columns} columns", path)
-        if q in out:
-            raise ZfitInputError(f"--columns: {_DISPLAY[q]} given twice", path)
-        if unit is None and header is not None and col < len(header):
-            unit = _split_name(header[col])[1]
-        out[q] = (col, unit)
-    return out
+        yield key, unit, shown, col
 
 
 def _split_items(text: str):
@@ -333,30 +354,67 @@ def _delimiter(line: str):
     return None, "whitespace"
 
 
-def read_table(path, columns: str | None = None) -> TableData:
-    """Return the impedance in an analyser or LCR-meter table.
+@dataclass(frozen=True)
+class NumericBlock:
+    """The block of numbers of a delimited table, with the header above it.
+
+    Attributes
+    ----------
+    values : numpy.ndarray
+        The numbers, rows by columns.
+    data_idx : numpy.ndarray
+        0-based file line of each row.
+    header : list of str or None
+        The header fields (with the units of a units row merged in).
+    header_line : int or None
+        Its 1-based file line.
+    delimiter : str or None
+        The field separator (None for whitespace).
+    delimiter_name : str
+        ``"comma"``, ``"semicolon"``, ``"tab"`` or ``"whitespace"``.
+    decimal_comma : bool
+        Whether a comma was read as the decimal mark.
+    notes : tuple of str
+        Lines skipped and units taken from a units row.
+    comments : tuple of str
+        The text of the comment lines (``#``, ``!``), in file order.
+    """
+
+    values: np.ndarray
+    data_idx: np.ndarray
+    header: list[str] | None
+    header_line: int | None
+    delimiter: str | None
+    delimiter_name: str
+    decimal_comma: bool
+    notes: tuple[str, ...]
+    comments: tuple[str, ...]
+
+
+def numeric_block(path, what: str = "frequency and impedance", columns_given: bool = False) -> NumericBlock:
+    """Return the numbers of a delimited table and the header above them.
+
+    The first line that is all numbers starts the data; the line before it
+    (if text) is the header, with a units row under it merged in; text lines
+    before are a preamble, up to three text lines after the data a trailer.
 
     Parameters
     ----------
     path : str or os.PathLike
-        The table: comma, semicolon, tab or whitespace separated; ``#`` and
-        ``!`` start comment lines; a header line or none; text lines before
-        the header (instrument settings) are skipped.
-    columns : str, optional
-        A column mapping in the syntax of `parse_columns`; overrides the
-        header.  Needed for a table without a header.
-
-    Returns
-    -------
-    TableData
+        The table.
+    what : str
+        What the table should hold, for the message when it has no numbers.
+    columns_given : bool
+        Whether the columns are mapped explicitly (a header that does not
+        line up with the data is then not an error).
 
     Raises
     ------
     ZfitInputError
         With the file and line: no numbers, text among the numbers, rows of
-        different lengths, columns that cannot be told apart or that do not
-        give an impedance.
+        different lengths, a header that does not line up with the data.
     """
+
     path = Path(path)
     lines = file_text(path, "text table").splitlines()
     # Quotes around fields (spreadsheet exports) carry no meaning here.
@@ -386,7 +444,7 @@ def read_table(path, columns: str | None = None) -> TableData:
             first, delim, dname, decimal_comma = k, d, name, dc
             break
     if first is None:
-        raise ZfitInputError("no row of numbers found (is this a table of frequency and impedance?)", path, content[0] + 1)
+        raise ZfitInputError(f"no row of numbers found (is this a table of {what}?)", path, content[0] + 1)
     header = None
     header_line = None
     preamble = first
@@ -409,7 +467,7 @@ def read_table(path, columns: str | None = None) -> TableData:
                 hi, first = content[first - 2], first - 1
         if len(cand) == n_data:
             header, header_line, preamble = cand, hi + 1, first - 1
-        elif columns is None and len(cand) > 1 and len(cand) in range(n_data - 1, n_data + 4):
+        elif not columns_given and len(cand) > 1 and len(cand) in range(n_data - 1, n_data + 4):
             # Looks like a header, but does not line up with the data.
             raise ZfitInputError(
                 f"the header has {len(cand)} fields ({', '.join(repr(c) for c in cand)}) but the data rows have "
@@ -434,6 +492,38 @@ def read_table(path, columns: str | None = None) -> TableData:
         values = np.loadtxt(rows, delimiter=delim, ndmin=2, dtype=float, comments=None)
     except ValueError:
         _locate_bad_row(path, rows, data_idx, delim)
+    comments = [s.lstrip("#!").strip() for s in stripped if s[:1] in ("#", "!")]
+    return NumericBlock(values, data_idx, header, header_line, delim, dname, decimal_comma, tuple(notes),
+                        tuple(comments))
+
+
+def read_table(path, columns: str | None = None) -> TableData:
+    """Return the impedance in an analyser or LCR-meter table.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The table: comma, semicolon, tab or whitespace separated; ``#`` and
+        ``!`` start comment lines; a header line or none; text lines before
+        the header (instrument settings) are skipped.
+    columns : str, optional
+        A column mapping in the syntax of `parse_columns`; overrides the
+        header.  Needed for a table without a header.
+
+    Returns
+    -------
+    TableData
+
+    Raises
+    ------
+    ZfitInputError
+        With the file and line: no numbers, text among the numbers, rows of
+        different lengths, columns that cannot be told apart or that do not
+        give an impedance.
+    """
+    block = numeric_block(path, columns_given=columns is not None)
+    values, data_idx, header, header_line = block.values, block.data_idx, block.header, block.header_line
+    dname, decimal_comma, notes = block.delimiter_name, block.decimal_comma, list(block.notes)
     n_cols = values.shape[1]
 
     if columns is not None:

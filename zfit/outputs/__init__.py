@@ -15,6 +15,8 @@ _plots         the sweep, Q and ESR/D plots
 _plot_capture  the Bode plot and the time record of a capture
 _plot_core     a core's mu' and mu'' over the winding's |Z|, R, X; a bead's |Z|, R, X
 _core_views    a core's and a bead's figures as text, the bead's netlist
+_plot_response the Bode plot of a fitted response with its predicted step
+_response_views the summary of a fitted response, its predicted step as CSV
 _plot_schematic the equivalent circuit drawn
 _plot_style    the house style and axis helpers shared by the plots
 _plot_files    a plot as PNG/SVG bytes, saved atomically
