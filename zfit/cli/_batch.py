@@ -36,7 +36,7 @@ def batch_command(
     at: Optional[List[str]] = typer.Option(None, "--at", help="Extra spot frequency for the summary (R, X, L_eff or C_eff, Q or D), e.g. 1M; repeatable."),
     jobs: Optional[int] = typer.Option(None, "--jobs", "-j", help="Local worker processes (default: all cores; 1 = in this process)."),
     cluster: Optional[str] = typer.Option(None, "--cluster", help="Address of a Dask distributed scheduler (tcp://host:8786) to run the parts on; needs the 'cluster' extra and the same file paths on every worker."),
-    plot: bool = typer.Option(False, "--plot", help="Also write the plots of each part into --out: <part>.png and <part>-q or <part>-esr-d (as identify --plot; here a flag, the names come from the parts)."),
+    plot: bool = typer.Option(False, "--plot", help="Also write the plots of each part into --out: PART.png and PART-q or PART-esr-d (as identify --plot; here a flag, the names come from the parts)."),
     plot_format: str = typer.Option("png", "--plot-format", help="png | svg."),
     report: Optional[Path] = typer.Option(None, "--report", help="Write the lot report here (.html): one self-contained page with a histogram of each limited quantity (limits, guard bands), the capability table and the parts that did not pass."),
     connection: ConnectionOpt = None,

@@ -239,7 +239,7 @@ def _smooth_rows(x, r, xr, s, h, lo, hi, at):
             ly = np.where(m, np.log(np.abs(np.where(m, yw, 1.0))), 0.0)
             k = np.sum(wm * dx * ly, axis=1) / den
         k = np.where(same & (count >= 2) & (den > 0) & np.isfinite(k), k, 0.0)
-        scale = np.exp(-k[:, None] * (xw - x0[:, None]))
+        scale = np.exp(np.clip(-k[:, None] * (xw - x0[:, None]), -300.0, 300.0))  # saturated as `_smooth_part`
         ys, ss = yw * scale, sw * scale
         w = np.where(m, tri / ss**2, 0.0)
         # Normal equations of the weighted quadratic from the moments sum(w u^p).
@@ -248,7 +248,10 @@ def _smooth_rows(x, r, xr, s, h, lo, hi, at):
         wy = w * ys
         b = np.stack([np.sum(wy, axis=1), np.sum(wy * u, axis=1), np.sum(wy * u2, axis=1)], axis=-1)
         with np.errstate(all="ignore"):
-            minv = np.linalg.inv(M)
+            try:
+                minv = np.linalg.inv(M)
+            except np.linalg.LinAlgError:  # a window of data decades apart: its quadratic is singular
+                minv = np.linalg.pinv(M)
         c0 = minv[:, 0, :]
         a = w * (c0[:, :1] + c0[:, 1:2] * u + c0[:, 2:] * u2)
         coef = np.einsum("nij,nj->ni", minv, b)

@@ -275,9 +275,9 @@ def _within(x: float, what: str, where, lo: float | None, hi: float | None, unit
 
 def _value_range(quantity: str, unit: str) -> tuple:
     """Where a limit's value means something: an element's range, the band for an SRF, else unbounded."""
-    if quantity in UNITS:
+    if quantity in UNITS and unit in ELEMENT_RANGES:
         return (0.0, ELEMENT_RANGES[unit][1])
-    if quantity == "SRF":
+    if quantity == "SRF" or unit == "Hz":
         return (0.0, FREQUENCY_RANGE_HZ[1])
     return (None, None)
 
@@ -343,9 +343,9 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
             # Every part would fail a tolerance about zero or a negative value:
             # a sign or a unit lost in the file, not a specification.
             raise where_for("nominal")(f"nominal {table['nominal']!r} must be positive")
-        if quantity in UNITS:
+        if quantity in UNITS and unit in ELEMENT_RANGES:
             _within(nominal, "nominal", where_for("nominal"), *ELEMENT_RANGES[unit], unit)
-        elif quantity == "SRF":
+        elif quantity == "SRF" or unit == "Hz":
             _within(nominal, "nominal", where_for("nominal"), *FREQUENCY_RANGE_HZ, "Hz")
         if not has_tol:
             raise where_for("nominal")("a nominal needs tolerance_percent = N (or [-minus, plus]) or tolerance = VALUE")
