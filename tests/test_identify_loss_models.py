@@ -130,6 +130,12 @@ def test_bead_by_name_resolves_two_sections():
     # Issue 12: the bead's |Z| at 100 MHz within 5 %.
     assert r.spot[0].Z_mag.value == pytest.approx(abs(_bead(np.array([100e6]))[0]), rel=0.05)
     assert r.parameters["R_dc"].value == pytest.approx(0.05, rel=0.2)
+    # The bead's R = X frequency from the measurement (issue 13), against the form's on a fine grid: 3 %.
+    fine = np.geomspace(1e6, 1e9, 200001)
+    zf = _bead(fine)
+    f_rx = fine[np.nonzero(zf.real >= zf.imag)[0][0]]
+    assert r.bead is not None and r.bead.r_equals_x.value_hz == pytest.approx(f_rx, rel=0.03)
+    assert r.to_dict()["bead"]["spot"][0]["f_hz"] == 100e6
 
 
 @pytest.mark.parametrize("name", ["Relaxing-Core", "core with relaxing permeability, winding resistance and parallel C_p",

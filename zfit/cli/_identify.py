@@ -126,6 +126,11 @@ def identify_command(
     if not to_stdout:  # with --json - the standard output is the JSON alone
         for line in identification_summary(result):
             echo(line)
+        if result.bead is not None:
+            from ..outputs._core_views import bead_summary
+
+            for line in bead_summary(result.bead)[1:]:
+                echo(line)
     for text in result.warnings:
         warn_line(text)
 

@@ -470,31 +470,6 @@ class ResonantSections(_LossCircuit):
         """
         return _ratio_q(self.impedance(p, f_hz))
 
-    def starts_after(self, fewer, f_hz, z_ohm) -> list:
-        """Return starts that add one section to a fit with one section fewer.
-
-        The new section is placed at 16 log-spaced resonant frequencies over
-        the band and a decade beyond, its R at the data's |Z| there and its
-        Q = R/(omega L) at 0.5 and 2: a second resonance the data show only
-        as a shoulder has no peak for `guess_from_data` to find.
-
-        Parameters
-        ----------
-        fewer : array_like
-            The fitted parameters of ``ResonantSections(n_sections - 1)``.
-        f_hz, z_ohm : array_like
-            The sweep.
-        """
-        f, z = np.asarray(f_hz, float), np.asarray(z_ohm, complex)
-        mag = np.abs(z)
-        out = []
-        for fk in np.geomspace(f[0], f[-1] * 10.0, 16):
-            rk = float(np.interp(math.log(fk), np.log(f), mag))
-            for q in (0.5, 2.0):
-                lk = rk / (q * _TWO_PI * fk)
-                out.append(np.concatenate([np.asarray(fewer, float), [rk, lk, 1.0 / ((_TWO_PI * fk) ** 2 * lk)]]))
-        return out
-
     def guess_from_data(self, f_hz, z_ohm, sigma_ohm=None) -> np.ndarray:
         """Return a start: R_dc at the low end, sections at the largest |Z| peaks.
 

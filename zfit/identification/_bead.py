@@ -241,12 +241,25 @@ def _sorted_sections(ref):
     return replace(ref, values=v[perm], log_cov=ref.log_cov[np.ix_(perm, perm)])
 
 
-def _fitted_sections(sweep):
-    f, z, s = sweep.f_hz, sweep.z_ohm, sweep.sigma_ohm
-    obs = Observation.from_sweep(sweep)
-    fits, bic = {}, {}
+def section_fits(obs, counts=(1, 2, 3)) -> dict:
+    """Return ``{n: Refinement}`` of R_dc with n parallel R-L-C sections, each at its best minimum found.
+
+    Grown one section at a time from the fit with one fewer (`_grown_starts`)
+    and from starts spread where R is large, then backed down: n sections
+    started from the n + 1 fit with each section dropped.  Also the
+    resonant-section candidates of `zfit.identify`.
+
+    Parameters
+    ----------
+    obs : Observation
+        The sweep as the circuits see it.
+    counts : sequence of int
+        The section counts wanted (of 1, 2, 3).
+    """
+    f, z, s = obs.f_hz, obs.z_ohm, obs.sigma_ohm
+    fits = {}
     previous = None
-    for n in (1, 2, 3):
+    for n in range(1, max(counts) + 1):
         circ = ResonantSections(n)
         if 2 * f.size <= circ.n_params + 1:
             break
@@ -258,7 +271,6 @@ def _fitted_sections(sweep):
             continue
         fits[n] = ref
         previous = ref.values
-        bic[n] = float(ref.chi2 + circ.n_params * math.log(ref.rows))
     # Back down: N sections started from the N + 1 fit with one section dropped, so
     # that a smaller model caught in a local minimum gets the valley the larger one found.
     for n in sorted(fits, reverse=True):
@@ -269,11 +281,17 @@ def _fitted_sections(sweep):
         ref = _best_refinement(circ, obs, pruned, n_refined=n)
         if ref is not None and ref.chi2 < fits[n - 1].chi2:
             fits[n - 1] = ref
-            bic[n - 1] = float(ref.chi2 + circ.n_params * math.log(ref.rows))
+    return {n: _sorted_sections(ref) for n, ref in fits.items() if n in counts}
+
+
+def _fitted_sections(sweep):
+    f = sweep.f_hz
+    fits = section_fits(Observation.from_sweep(sweep))
     if not fits:
         return None
+    bic = {n: float(ref.chi2 + ref.circuit.n_params * math.log(ref.rows)) for n, ref in fits.items()}
     best = min(bic, key=bic.get)
-    ref = _sorted_sections(fits[best])
+    ref = fits[best]
     return BeadModel(ref, bic, loss_network(ref.circuit, ref.values, (float(f[0]), float(f[-1]))))
 
 

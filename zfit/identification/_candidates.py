@@ -214,15 +214,13 @@ def _optional_may_help(rb, obs, prior, margin) -> bool:
     return gain >= _OPTIONAL_SCREEN * (margin + math.log(rows))
 
 
-def _fit_loss(circuit, obs, rdc, rdc_std, fewer=None):
-    """Refine a circuit from its own data guesses (and from `fewer` sections, for resonant sections); None if it fails."""
+def _fit_loss(circuit, obs, rdc, rdc_std):
+    """Refine a circuit from its own data guesses; None if it fails."""
     from ..fit._lsq import refine
 
-    starts = circuit.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm)
-    if fewer is not None:
-        starts = starts + circuit.starts_after(fewer.values, obs.f_hz, obs.z_ohm)
     try:
-        return refine(circuit, obs, starts, n_best=3, prior=rdc_prior(circuit, rdc, rdc_std))
+        return refine(circuit, obs, circuit.starts(obs.f_hz, obs.z_ohm, obs.sigma_ohm), n_best=3,
+                      prior=rdc_prior(circuit, rdc, rdc_std))
     except (FitError, ValueError, ArithmeticError, np.linalg.LinAlgError):
         return None
 
@@ -238,7 +236,7 @@ def _loss_resolved(ref) -> bool:
 
 
 def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple:
-    """Refine each circuit in turn, resonant sections grown from the fit with one section fewer.
+    """Refine each circuit in turn; the resonant sections together, grown one section at a time (`_bead.section_fits`).
 
     With `resolved_only`, a fit whose characteristic parameters
     (`zfit.fit._models.characteristic_keys`) the sweep does not resolve is
@@ -247,15 +245,17 @@ def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple
     series resistance), which the lumped circuits already say more simply.
     """
     from ..fit._loss_circuits import ResonantSections
+    from ._bead import section_fits
 
-    out, sections = [], {}
+    counts = tuple(c.n_sections for c in circuits if isinstance(c, ResonantSections))
+    # The sections are grown on the sweep alone, without the prior of a measured DC resistance.
+    sections = section_fits(obs, counts) if counts else {}
+    out = []
     for circuit in circuits:
-        fewer = sections.get(circuit.n_sections - 1) if isinstance(circuit, ResonantSections) else None
-        ref = _fit_loss(circuit, obs, rdc, rdc_std, fewer)
+        ref = sections.get(circuit.n_sections) if isinstance(circuit, ResonantSections) else \
+            _fit_loss(circuit, obs, rdc, rdc_std)
         if ref is None:
             continue
-        if isinstance(circuit, ResonantSections):
-            sections[circuit.n_sections] = ref
         # A core whose permeability would rise with frequency is an active part: a calibration error, not a core.
         if circuit.is_passive(ref.values) and (not resolved_only or _loss_resolved(ref)):
             out.append(ref)

@@ -311,6 +311,7 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
     from ._model_error import split_band_check, split_band_note
     from ._rational import looks_capacitive, n_poles_of, rational_stage, reweighted_rational
 
+    from ..fit._loss_circuits import ResonantSections
     from ..fit._models import named_models
 
     at, rdc, rdc_std = _checked_options(sweep, model, at, rdc, rdc_std)
@@ -411,11 +412,23 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
         correlation=correlation_of(chosen), rdc=None if rdc is None else Estimate(rdc, rdc_std, "ohm"),
         refinement=chosen, measurement=measured,
     )
+    if isinstance(chosen.circuit, ResonantSections):
+        result = dataclasses.replace(result, bead=_bead_of(sweep, at))
     # A flat resistive floor of a shunt-thru capacitor is the cable-shield ground loop, not ESR.
     loop = ground_loop_warning(sweep, result)
     if loop is not None:
         notes.append(loop)
     return _finish(result, notes)
+
+
+def _bead_of(sweep, at):
+    """A bead's figures from the measurement (R = X, |Z| at `at` or 100 MHz), None without an inductive region."""
+    from ._bead import DEFAULT_BEAD_AT_HZ, bead_figures
+
+    try:
+        return bead_figures(sweep, at=at or (DEFAULT_BEAD_AT_HZ,), model=False)
+    except ZfitInputError:
+        return None
 
 
 def _finish(result: Identification, notes) -> Identification:

@@ -26,6 +26,7 @@ if TYPE_CHECKING:
     from ..fit._vectfit import RationalModel
     from ._adequacy import Adequacy
     from ._measured_report import MeasuredReadings
+    from ._bead import BeadFigures
     from ._model_error import SplitBandCheck
 
 __all__ = ["Identification", "FitQuality", "Candidate", "ModelChoice", "ParameterMap", "SCHEMA"]
@@ -256,6 +257,10 @@ class Identification:
         low-frequency value, spot readouts), reported beside the model.
     choice : ModelChoice or None
         Which band and model were used, and why.
+    bead : BeadFigures or None
+        For resonant sections (a bead or a multi-resonant winding): R = X
+        and |Z| at the spot frequencies (100 MHz by default) from the
+        measurement (`_bead.bead_figures`); None otherwise.
     """
 
     sweep: Sweep
@@ -275,6 +280,7 @@ class Identification:
     refinement: Refinement | None = None
     measurement: MeasuredReadings | None = None
     choice: ModelChoice | None = None
+    bead: BeadFigures | None = None
 
     def __post_init__(self):
         if self.correlation is not None:
@@ -371,6 +377,7 @@ class Identification:
             "noise": noise_block(self.sweep),
             "low_frequency": None if self.measurement is None else self.measurement.low_frequency_dict(),
             "choice": None if self.choice is None else self.choice.to_dict(),
+            **({} if self.bead is None else {"bead": self.bead.to_dict()}),
         }
 
     def _figures_dict(self) -> dict:
