@@ -136,6 +136,27 @@ plot_esr_d                        -- ESR and D against frequency
 plot_bode                         -- the Bode plot of a capture's response
 plot_time_record                  -- a capture's time record
 plot_schematic                    -- the equivalent circuit drawn
+loss_model_netlist                -- the SPICE netlist of a loss model's passive network
+lot_report, lot_report_html       -- a lot's one-page HTML report
+plot_lot_histogram                -- a limited quantity's histogram with limits and guard bands
+plot_response                     -- the Bode plot of a fitted response
+
+Models, cores, beads and responses
+----------------------------------
+loss_models_of, named_models      -- the loss models of a family; the circuits a --model name stands for
+model_names                       -- every name --model takes
+SplitBandCheck, split_band_check  -- the model-error term from the fits over two halves of the band
+core_spec, CoreSpec               -- a wound core's turns and geometry
+core_constant, CoreConstant       -- a toroid's core constant and effective parameters (IEC 60205)
+core_material, CoreMaterial       -- a core's complex permeability and material figures
+fitted_relaxation, Relaxation     -- a Debye or Cole-Cole relaxation fitted to mu(f)
+bead_figures, BeadFigures         -- a bead's R = X, |Z| at spot frequencies and its sections
+core_document                     -- the zfit.core/1 JSON object
+read_response_table, ResponseTable -- a swept-sine gain/phase table
+gain_phase_points, GainPhasePoints -- its points with their uncertainties
+analyse_response, ResponseResult  -- the fitted transfer function and its figures
+TransferModel, TransferStructure  -- a rational H(s) and its structure
+ELEMENT_RANGES, SAMPLE_INTERVAL_RANGE_S -- the ranges zfit computes in
 
 The names are loaded on first use, so that ``import zfit`` and the command
 line start fast.
@@ -256,6 +277,37 @@ _EXPORTS = {
     "plot_bode": "outputs._plot_capture",
     "plot_time_record": "outputs._plot_capture",
     "plot_schematic": "outputs._plot_schematic",
+    "loss_model_netlist": "outputs._netlist",
+    "lot_report": "outputs._lot_report",
+    "lot_report_html": "outputs._lot_report",
+    "plot_lot_histogram": "outputs._plot_lot",
+    "plot_response": "outputs._plot_response",
+    "loss_models_of": "fit._models",
+    "named_models": "fit._models",
+    "model_names": "fit._models",
+    "SplitBandCheck": "identification._model_error",
+    "split_band_check": "identification._model_error",
+    "core_spec": "io._core_spec",
+    "CoreSpec": "io._core_spec",
+    "core_constant": "identification._core_geometry",
+    "CoreConstant": "identification._core_geometry",
+    "core_material": "identification._core_material",
+    "CoreMaterial": "identification._core_material",
+    "fitted_relaxation": "fit._relaxation",
+    "Relaxation": "fit._relaxation",
+    "bead_figures": "identification._bead",
+    "BeadFigures": "identification._bead",
+    "core_document": "identification._core_result",
+    "read_response_table": "io._response_table",
+    "ResponseTable": "io._response_table",
+    "gain_phase_points": "capture._swept_sine",
+    "GainPhasePoints": "capture._swept_sine",
+    "analyse_response": "capture._response_result",
+    "ResponseResult": "capture._response_result",
+    "TransferModel": "fit._transfer",
+    "TransferStructure": "fit._transfer",
+    "ELEMENT_RANGES": "data._sweep",
+    "SAMPLE_INTERVAL_RANGE_S": "data._sweep",
 }
 
 __all__ = ["__version__", *_EXPORTS]

@@ -113,7 +113,13 @@ class Relaxation:
     max_rel_deviation: float
 
     def permeability(self, f_hz) -> np.ndarray:
-        """Return the model's ``mu' - j mu''`` at `f_hz`."""
+        """Return the model's ``mu' - j mu''`` at `f_hz`.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        """
         return relaxation_permeability(f_hz, self.mu_i, self.mu_inf, self.f_r_hz, self.alpha)
 
     def to_dict(self) -> dict:

@@ -207,21 +207,50 @@ class TransferModel:
         ``zeros`` and ``poles`` are corner angular frequencies (the root is at
         minus the corner); pairs are ``(omega_n, zeta)``; ``gain`` is ``k``
         times the sign, the coefficient of ``(s/omega_ref)^m``.
+
+        Parameters
+        ----------
+        theta : array_like, optional
+            The parameter vector (the fitted one by default).
         """
         return _factors(self.structure, self.theta if theta is None else np.asarray(theta, float), self.omega_ref,
                         self.sign)
 
     def log_response(self, f_hz, theta=None) -> np.ndarray:
-        """Return ``ln H(j 2 pi f)`` (complex; its imaginary part is the phase, continuous in f)."""
+        """Return ``ln H(j 2 pi f)`` (complex; its imaginary part is the phase, continuous in f).
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        theta : array_like, optional
+            The parameter vector (the fitted one by default).
+        """
         th = self.theta if theta is None else np.asarray(theta, float)
         return _log_h(self.structure, th, _x(f_hz, self.omega_ref), self.sign)
 
     def response(self, f_hz, theta=None) -> np.ndarray:
-        """Return ``H(j 2 pi f)``."""
+        """Return ``H(j 2 pi f)``.
+
+        Parameters
+        ----------
+        f_hz : array_like
+            Frequencies in Hz.
+        theta : array_like, optional
+            The parameter vector (the fitted one by default).
+        """
         return np.exp(self.log_response(f_hz, theta))
 
     def gradient(self, fn, step: float = 1e-6) -> np.ndarray:
-        """Return d fn(theta) / d theta by central differences (fn returns a float or an array)."""
+        """Return d fn(theta) / d theta by central differences (fn returns a float or an array).
+
+        Parameters
+        ----------
+        fn : callable
+            Maps a parameter vector to a float or an array.
+        step : float
+            The central-difference step in each parameter.
+        """
         th = np.array(self.theta)
         rows = []
         for i in range(th.size):
@@ -233,14 +262,26 @@ class TransferModel:
         return np.array(rows)
 
     def std_of(self, fn) -> float | np.ndarray:
-        """Return the standard uncertainty of ``fn(theta)`` by first-order propagation (GUM 5.1.2)."""
+        """Return the standard uncertainty of ``fn(theta)`` by first-order propagation (GUM 5.1.2).
+
+        Parameters
+        ----------
+        fn : callable
+            Maps a parameter vector to a float or an array.
+        """
         g = self.gradient(fn)
         if g.ndim == 1:
             return float(math.sqrt(max(float(g @ self.covariance @ g), 0.0)))
         return np.sqrt(np.maximum(np.einsum("it,ij,jt->t", g, self.covariance, g), 0.0))
 
     def polynomials(self, theta=None) -> tuple[np.ndarray, np.ndarray]:
-        """Return (numerator, denominator) coefficients in s, highest power first (for scipy.signal)."""
+        """Return (numerator, denominator) coefficients in s, highest power first (for scipy.signal).
+
+        Parameters
+        ----------
+        theta : array_like, optional
+            The parameter vector (the fitted one by default).
+        """
         fac = self.factors(theta)
         wr = self.omega_ref
         num = np.poly1d([fac["gain"] / wr ** self.structure.origin_zeros]) * np.poly1d([1.0] + [0.0] * self.structure.origin_zeros)

@@ -157,7 +157,15 @@ def lot_report(rows: Sequence, lot, limits=None, *, decision_rule: str = "", lim
 
 def lot_report_html(rows: Sequence, lot, limits=None, *, decision_rule: str = "", limited_rule: str = "",
                     command=None, title: str = "") -> str:
-    """Return the lot report as one self-contained HTML page (see `lot_report`)."""
+    """Return the lot report as one self-contained HTML page.
+
+    Parameters
+    ----------
+    rows, lot, limits, decision_rule, limited_rule, command, title
+        As for `lot_report`: the lot's rows, its summary, the limits, the
+        texts of the decision rule and of the measurement-limited note, the
+        command line and the page title.
+    """
     from ._report import report_html
 
     return report_html(lot_report(rows, lot, limits, decision_rule=decision_rule, limited_rule=limited_rule,
