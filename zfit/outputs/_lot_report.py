@@ -161,8 +161,8 @@ def lot_report_html(rows: Sequence, lot, limits=None, *, decision_rule: str = ""
 
     Parameters
     ----------
-    rows, lot, limits, decision_rule, limited_rule, command, title
-        As for `lot_report`: the lot's rows, its summary, the limits, the
+    rows, lot, limits, decision_rule, limited_rule, command, title : see `lot_report`
+        The lot's rows, its summary, the limits, the
         texts of the decision rule and of the measurement-limited note, the
         command line and the page title.
     """
