@@ -298,8 +298,9 @@ class Merits:
     Attributes
     ----------
     z_at_srf : Merit or None
-        ``|Z|`` at the self-resonance (in band: read from the rational model;
-        otherwise the circuit's value there).
+        ``|Z|`` at the self-resonance: where the data contain it, the
+        measured point nearest the SRF (`_measured_report.merits_with_measurement`);
+        otherwise the model's value there.
     q_peak : Merit or None
         Peak of the measured Q, ``|X|/R``, below the SRF (inductors).
     q_model_at_q_peak : Merit or None
@@ -310,6 +311,8 @@ class Merits:
         The measured D at the lowest frequency of the band (capacitors).
     d_model_at_f_min : Merit or None
         The model's ``omega C ESR`` there.
+    z_model_at_srf : Merit or None
+        The model's ``|Z|`` at the SRF, when `z_at_srf` is the measured one.
     """
 
     z_at_srf: Merit | None = None
@@ -318,10 +321,12 @@ class Merits:
     esr_min: Merit | None = None
     d_at_f_min: Merit | None = None
     d_model_at_f_min: Merit | None = None
+    z_model_at_srf: Merit | None = None
 
     def to_dict(self) -> dict:
         """Return the ``figures`` object of the JSON contract."""
-        names = ("z_at_srf", "q_peak", "q_model_at_q_peak", "esr_min", "d_at_f_min", "d_model_at_f_min")
+        names = ("z_at_srf", "q_peak", "q_model_at_q_peak", "esr_min", "d_at_f_min", "d_model_at_f_min",
+                 "z_model_at_srf")
         return {n: (None if getattr(self, n) is None else getattr(self, n).to_dict()) for n in names}
 
 
