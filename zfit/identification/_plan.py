@@ -265,8 +265,11 @@ class Plan:
 
     def to_dict(self) -> dict:
         """Return the ``zfit.plan/1`` JSON object (SI units, floats as numbers)."""
+        from .._version import __version__
+
         return {
             "schema": _SCHEMA,
+            "zfit_version": __version__,
             "model": self.model,
             "topology": self.topology,
             "parameters": dict(self.params),

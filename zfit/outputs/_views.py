@@ -421,7 +421,7 @@ INFO_SCHEMA = "zfit.info/1"
 def info_dict(sweep) -> dict:
     """Return the ``zfit.info/1`` JSON object describing `sweep`.
 
-    Keys: ``schema``, ``source``, ``data_format``, ``connection``,
+    Keys: ``schema``, ``zfit_version``, ``source``, ``data_format``, ``connection``,
     ``reference_ohm`` (null for impedance data), ``points``, ``f_min_hz``,
     ``f_max_hz``, ``z_min_ohm``, ``z_min_at_hz``, ``z_max_ohm``,
     ``z_max_at_hz``, ``noise_model`` (text), ``noise`` (``{"on": "S"|"Z",
@@ -445,8 +445,11 @@ def info_dict(sweep) -> dict:
     i_min, i_max = int(np.argmin(mag)), int(np.argmax(mag))
     warning = conditioning_note(sweep)
     noise = noise_block(sweep)
+    from .._version import __version__
+
     return {
         "schema": INFO_SCHEMA,
+        "zfit_version": __version__,
         "source": sweep.source,
         "data_format": sweep.data_format,
         "connection": sweep.connection,
