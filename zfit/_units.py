@@ -11,8 +11,8 @@ report pages, CSV headers, the text fields of the JSON):
   uncertainty to two significant digits and the value to the same decimal
   place, ``10.00032 ± 0.00037 µH`` (JCGM 100:2008, 7.2.6);
 - a dimensionless figure (Q, D, a ratio): no prefix, since SI prefixes
-  belong to units (BIPM 2019, 3.4: the prefixes are not used with the unit
-  one), plain decimals from 0.001 up to 10 000 and a common power of ten
+  belong to units and are not attached to the unit one (BIPM 2019,
+  section 3; from memory), plain decimals from 0.001 up to 10 000 and a common power of ten
   beyond: ``0.005055 ± 0.000015``, ``(50.37 ± 0.15)e-6``.
 
 The text is Unicode (``µ``, ``Ω``, ``±``, ``°``); `ascii_text` writes it for
@@ -54,7 +54,7 @@ ASCII_EQUIVALENTS = {
 _NO_PREFIX = ("dB", "%", "deg", "°")
 
 #: The symbol of a unit as written for a person.
-_SYMBOLS = {"ohm": "Ω", "ohms": "Ω", "Ohm": "Ω", "deg": "°", "u": "µ"}
+_SYMBOLS = {"ohm": "Ω", "ohms": "Ω", "Ohm": "Ω", "deg": "°"}
 
 
 def ascii_text(text: str) -> str:
