@@ -159,6 +159,13 @@ def test_step_json_gives_value_std_unit_and_lists_the_flat_keys_it_replaces(capt
         assert _at(d, old) == _at(d, new), old
 
 
+def test_identify_json_gives_the_srf_as_value_std_unit(inductor):
+    d = json.loads(json.dumps(inductor.to_dict()))
+    assert d["srf"]["frequency"] == {"value": d["srf"]["value_hz"], "std": d["srf"]["std_hz"], "unit": "Hz"}
+    for e in d["deprecated"]:
+        assert _at(d, e["key"]) == _at(d, e["replaced_by"]), e
+
+
 # ------------------------------------------------------------ contradictions ---
 
 def test_z_at_srf_is_the_measured_point_where_the_data_contain_the_resonance(capture_result):

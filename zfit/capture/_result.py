@@ -188,7 +188,7 @@ class StepResult:
             return None if v is None or not math.isfinite(v) else float(v)
 
         def q(value, std, unit):
-            return None if value is None else {"value": num(value), "std": num(std), "unit": unit}
+            return None if num(value) is None else {"value": num(value), "std": num(std), "unit": unit}
 
         r = self.ringing
         sc = self.stray_capacitance

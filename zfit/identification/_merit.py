@@ -227,16 +227,22 @@ class SRF:
 
     def to_dict(self) -> dict:
         """Return the ``srf`` object of the JSON contract."""
+        def hz(value, std):
+            # The {value, std, unit} shape of every value with an uncertainty (issue 15).
+            return None if _num(value) is None else {"value": _num(value), "std": _num(std), "unit": "Hz"}
+
         out = {
             "value_hz": _num(self.value_hz), "std_hz": _num(self.std_hz), "where": self.where,
-            "bound_hz": _num(self.bound_hz), "source": self.source,
+            "bound_hz": _num(self.bound_hz), "source": self.source, "frequency": hz(self.value_hz, self.std_hz),
         }
         m = self.measured
         if m is not None:
             out["model_value_hz"] = _num(self.model_value_hz)
             out["model_std_hz"] = _num(self.model_std_hz)
             out["model_source"] = self.model_source
+            out["model_frequency"] = hz(self.model_value_hz, self.model_std_hz)
             out["measured"] = {
+                "frequency": hz(m.value_hz, m.std_hz),
                 "value_hz": _num(m.value_hz), "std_hz": _num(m.std_hz), "kind": m.kind, "in_band": bool(m.in_band),
                 "lower_bound_hz": _num(m.lower_bound_hz), "rejected_hz": [float(x) for x in m.rejected_hz],
                 "source": "measurement",
