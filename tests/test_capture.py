@@ -240,7 +240,7 @@ def test_time_base_messages_use_engineering_notation(tmp_path, two_channel):
     with pytest.raises(ZfitInputError) as info:
         read_capture(p, dt=1e-7)
     # The file steps by 40 ns (two_channel); 100 ns was given.
-    assert "the time column steps by 40n s but a sample interval of 100n s was given" in str(info.value)
+    assert "the time column steps by 40 ns but a sample interval of 100 ns was given" in str(info.value)
 
 
 def test_npy_of_text_is_a_one_line_error(tmp_path):

@@ -132,7 +132,7 @@ def test_demo_lot_and_plan(tmp_path):
     rows = {r["file"].rsplit("/", 1)[-1]: r for r in _csv_rows(folder / "lot" / "summary.csv")}
     assert len(rows) == 12
     assert {k for k, r in rows.items() if r["verdict"] != "pass"} == {"C-0342-007.s2p", "C-0342-011.s2p"}
-    assert "C = 82n F below min 95n F" in text and "lot: 12 parts: 10 pass, 2 fail" in text
+    assert "C = 82 nF below min 95 nF" in text and "lot: 12 parts: 10 pass, 2 fail" in text
     assert "recommended: " in text
 
 

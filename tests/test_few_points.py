@@ -48,8 +48,8 @@ def test_two_points_give_series_l_and_r_with_the_series_equivalent_at_each(tmp_p
     assert not p["C_p"].resolved and p["C_p"].std is None
     assert result.srf.value_hz is None and result.srf.where == "above-band"
     assert result.srf.bound_hz == pytest.approx(10e3, rel=1e-12)  # the top of the band: a lower bound only
-    assert any("2 points: the series equivalent at each point, at 1k Hz: L_s = " in w for w in warned)
-    assert any("do not resolve C_p" in w and "SRF > 10k Hz" in w for w in warned)
+    assert any("2 points: the series equivalent at each point, at 1 kHz: L_s = " in w for w in warned)
+    assert any("do not resolve C_p" in w and "SRF > 10 kHz" in w for w in warned)
     assert any("too few for vector fitting" in w for w in warned)
 
 
@@ -76,7 +76,7 @@ def test_five_meter_points_give_l_and_r_within_tolerance(tmp_path, seed):
     # Truth within 3 standard uncertainties (Gaussian: 99.7 %; 5 seeds).
     assert abs(p["L"].value - 470e-6) < 3 * p["L"].std
     assert result.srf.value_hz is None or result.srf.where == "above-band"
-    assert any("SRF > 100k Hz" in w for w in warned) or result.parameters["C_p"].resolved
+    assert any("SRF > 100 kHz" in w for w in warned) or result.parameters["C_p"].resolved
 
 
 def test_nine_points_reaching_the_resonance_resolve_c_p(tmp_path, rng):

@@ -71,7 +71,7 @@ def test_resolution_limits_of_an_identification_and_the_resolved_flag(rng):
     assert entries["ESR"] == {"resolved": False, "resolution_limit": lim["ESR"]}
     assert entries["C"]["resolved"] is True
     assert unresolved_text("ESR", lim["ESR"], "ohm").startswith("below resolution, < ")
-    assert unresolved_text("R_leak", 2e6, "ohm") == "not resolved, > 2M ohm"
+    assert unresolved_text("R_leak", 2e6, "ohm") == "not resolved, > 2 MΩ"
     ident, lim = out["shunt-thru"]
     assert lim["ESR"] < 5e-3 / 10
     assert is_resolved("ESR", ident.parameters["ESR"].value, lim["ESR"])
@@ -137,7 +137,7 @@ def test_ground_loop_floor_is_flagged(rng):
     sw, ident = _measured(BULK, 20e-3, rng)
     text = ground_loop_warning(sw, ident)
     assert text is not None and "ground-loop" in text and "not ESR" in text
-    floor = float(text.split("flat floor ")[1].split(" ohm")[0].rstrip("m")) * 1e-3
+    floor = float(text.split("flat floor ")[1].split(" mΩ")[0]) * 1e-3
     assert floor == pytest.approx(10e-3, rel=0.15)
 
 

@@ -82,7 +82,7 @@ def test_a_linear_sweep_whose_top_decade_is_above_the_srf_keeps_the_inductor(tmp
     result, notes = _identified(path)
     assert result.model == "inductor" and result.topology.startswith("series R_s-L")
     assert result.parameters["L"].value == pytest.approx(L + 50e-9, rel=0.02)  # the 2 %: L and the leads
-    assert any("describes the data to within the noise only from 100k Hz" in n for n in notes)
+    assert any("describes the data to within the noise only from 100 kHz" in n for n in notes)
 
 
 def test_segmented_linear_sweep_with_repeated_joins(tmp_path, rng):

@@ -70,7 +70,7 @@ def test_milliohm_esr_is_below_the_resolution_of_reflection_and_the_limit_is_the
 
     line = next(ln for ln in summary_lines(r) if ln.strip().startswith("ESR"))
     assert "below resolution, < " in line and "±" not in line
-    assert float(re.search(r"< ([\d.]+)m ohm", line).group(1)) * 1e-3 == pytest.approx(ref, rel=0.02)
+    assert float(re.search(r"< ([\d.]+) mΩ", line).group(1)) * 1e-3 == pytest.approx(ref, rel=0.02)
 
 
 def test_the_same_capacitor_shunt_thru_resolves_its_esr():
@@ -142,7 +142,7 @@ def test_shunt_thru_ground_loop_floor_is_a_warning_of_identify():
         r = identify(sweep, model="capacitor")
     loop = [w for w in r.warnings if "ground-loop" in w]
     assert len(loop) == 1 and "not ESR" in loop[0]
-    floor = float(loop[0].split("flat floor ")[1].split(" ohm")[0].rstrip("m")) * 1e-3
+    floor = float(loop[0].split("flat floor ")[1].split(" mΩ")[0]) * 1e-3
     assert floor == pytest.approx(10e-3, rel=0.15)
     assert any("ground-loop" in str(w.message) for w in caught)
     assert loop[0] in r.to_dict()["warnings"]

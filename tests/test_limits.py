@@ -114,7 +114,7 @@ def test_part_verdict_is_the_worst_limit():
     bad = dict(near, L=(8.5e-6, 0.01e-6))
     d = decide(lim, bad)
     assert d.verdict == "fail" and d.failed == ("L",) and d.indeterminate == ("R_s",)
-    assert "below min 9u H" in next(x.reason for x in d.decisions if x.limit.name == "L")
+    assert "below min 9 µH" in next(x.reason for x in d.decisions if x.limit.name == "L")
     missing = {k: v for k, v in good.items() if k != "C_p"}
     assert decide(lim, missing).verdict == "indeterminate"
 

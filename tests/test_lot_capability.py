@@ -37,4 +37,4 @@ def test_capability_limited_by_the_measurement_is_said():
     assert "Cpk" in doc["quantities"][1] and doc["quantities"][1]["Cpk"] == pytest.approx(2108.185, rel=1e-6)
     said = [ln for ln in lot_text(lot).splitlines() if "limited by the measurement" in ln]
     assert said == ["Cpk of SRF limited by the measurement uncertainty, not the process "
-                    "(lot std 1.581k Hz <= u_rms 20k Hz)"]
+                    "(lot std 1.581 kHz <= u_rms 20 kHz)"]

@@ -171,7 +171,7 @@ def test_info_reads_every_demo_file(path, tmp_path):
     assert d["connection"] == (conn or ("reflection" if path.suffix == ".s1p" else "impedance"))
     assert f"format       {d['data_format']}" in r.stdout
     if path.suffix in (".s1p", ".s2p", ".ts"):
-        assert d["reference_ohm"] == 50.0 and "reference    50 ohm" in r.stdout
+        assert d["reference_ohm"] == 50.0 and "reference    50 Ω" in r.stdout
         assert d["noise"]["on"] == "S"
     else:
         assert d["reference_ohm"] is None and d["noise"]["on"] == "Z"
@@ -205,9 +205,9 @@ def test_info_prints_what_was_understood():
     assert r.exit_code == 0, r.output
     out = r.stdout
     assert "format       Touchstone 1.x, S, DB, kHz, R 75; S21 used" in out
-    assert "reference    75 ohm" in out
+    assert "reference    75 Ω" in out
     assert "connection   shunt-thru" in out
-    assert "band         1M Hz .. 68M Hz" in out
+    assert "band         1 MHz .. 68 MHz" in out
     assert "sigma(S) = 0.002 * |S| + 1e-05" in out
 
 

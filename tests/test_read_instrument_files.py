@@ -83,7 +83,7 @@ def test_segmented_linear_sweep_with_repeated_joins(tmp_path, rng):
     sw = read_sweep(path)
     assert sw.n_points == f.size - 2  # the two joins merged
     assert np.all(np.diff(sw.f_hz) > 0)
-    assert any(n.startswith("2 repeated frequencies (2 extra row(s), at 10M") and "merged" in n for n in sw.notes)
+    assert any(n.startswith("2 repeated frequencies (2 extra row(s), at 10 MHz") and "merged" in n for n in sw.notes)
     j = np.flatnonzero(np.isin(sw.f_hz, [10e6, 50e6]))
     # The spread of the two readings is in the uncertainty at the joins: sigma there is at
     # least half the distance between them (rms distance from the mean of two values).

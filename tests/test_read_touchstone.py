@@ -78,7 +78,7 @@ def test_round_trip_through_skrf_writer(tmp_path, version, connection, form, uni
     args = ["info", str(path)] + ([] if path.suffix == ".s1p" else ["-c", connection])
     r = CliRunner().invoke(app, args)
     assert r.exit_code == 0, r.output
-    assert f"format       {sw.data_format}" in r.stdout and f"reference    {z0:g} ohm" in r.stdout
+    assert f"format       {sw.data_format}" in r.stdout and f"reference    {z0:g} Ω" in r.stdout
 
 
 # A shunt part has a Z matrix and a series part a Y matrix (the other is singular).

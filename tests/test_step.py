@@ -490,5 +490,5 @@ def test_disagreeing_time_constants_are_warned_in_engineering_notation():
         analyse_capture(make_capture({"CH1": sq, "CH2": y}, dt), input="CH1", output="CH2")
     texts = [str(w.message) for w in record if "differ by more than 10 %" in str(w.message)]
     assert len(texts) == 1
-    assert re.search(r"the time constant of the fit \(\d+(\.\d+)?u s\) and the low-to-midpoint time / ln 2 "
-                     r"\(\d+(\.\d+)?u s\)", texts[0]), texts[0]
+    assert re.search(r"the time constant of the fit \(\d+(\.\d+)?( ± \d+(\.\d+)?)? µs\) and the low-to-midpoint "
+                     r"time / ln 2 \(\d+(\.\d+)?( ± \d+(\.\d+)?)? µs\)", texts[0]), texts[0]

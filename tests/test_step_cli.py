@@ -166,7 +166,7 @@ def test_response_csv_header_in_engineering_notation(tmp_path):
     assert res.exit_code == 0
     head = (tmp_path / "r.csv").read_text().splitlines()[1]
     # 25 MSa/s, 2000-sample segments: 12.5 kHz bins; the usable band starts at the first bin.
-    assert head.startswith("# usable band 12.5k Hz to ") and head.endswith("Hz; uncertainties are standard (k=1)")
+    assert head.startswith("# usable band 12.5 kHz to ") and head.endswith("Hz; uncertainties are standard (k=1)")
 
 
 def test_levels_line_says_how_well_the_levels_are_known():
@@ -175,5 +175,5 @@ def test_levels_line_says_how_well_the_levels_are_known():
     res = CliRunner().invoke(app, ["step", str(SQUARE), "-i", "CH1", "-o", "CH2"])
     assert res.exit_code == 0
     line = next(ln for ln in res.output.splitlines() if ln.startswith("levels:"))
-    m = re.search(r"\[settled samples spread (\d+)m / (\d+)m V rms\]", line)
+    m = re.search(r"\[settled samples spread (\d+) mV / (\d+) mV rms\]", line)
     assert m and all(12 <= int(v) <= 15 for v in m.groups()), line

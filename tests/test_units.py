@@ -43,8 +43,8 @@ def test_format_eng_uses_prefixes(value, text):
 def test_format_value_std_rounds_to_two_digits_of_uncertainty():
     # GUM (JCGM 100:2008) 7.2.6: uncertainty to at most two significant digits,
     # the value to the same decimal place.
-    assert format_value_std(10.0213e-6, 0.0512e-6, "H") == "10.021u ± 0.051u H"
-    assert format_value_std(1.5, 0.0003, "ohm") == "1.50000 ± 0.00030 ohm"
+    assert format_value_std(10.0213e-6, 0.0512e-6, "H") == "10.021 ± 0.051 µH"
+    assert format_value_std(1.5, 0.0003, "ohm") == "1.50000 ± 0.00030 Ω"
 
 
 def test_format_round_trip_within_four_digits():

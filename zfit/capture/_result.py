@@ -19,9 +19,32 @@ if TYPE_CHECKING:
     from ..identification._result import Identification
     from ..io._capture import Capture
 
-__all__ = ["STEP_SCHEMA", "EdgeWaveform", "StepResult"]
+__all__ = ["STEP_SCHEMA", "DEPRECATED_STEP_KEYS", "EdgeWaveform", "StepResult"]
 
 STEP_SCHEMA = "zfit.step/1"
+
+#: The flat keys of ``zfit.step/1`` that a ``{value, std, unit}`` object
+#: replaces, and where the value now is; written for this version only, and
+#: listed in the JSON's ``deprecated`` (docs/capture.md).
+DEPRECATED_STEP_KEYS = {
+    "transition_10_90_s": "transition_10_90.value",
+    "transition_10_90_std_s": "transition_10_90.std",
+    "overshoot_pct": "overshoot.value",
+    "overshoot_std_pct": "overshoot.std",
+    "time_constant_s": "time_constant.value",
+    "time_constant_std_s": "time_constant.std",
+    "ringing_hz": "ringing.frequency.value",
+    "midpoint_time_constant_s": "midpoint_time_constant.value",
+    "midpoint_time_constant_std_s": "midpoint_time_constant.std",
+    "ringing.frequency_hz": "ringing.frequency.value",
+    "ringing.frequency_std_hz": "ringing.frequency.std",
+    "ringing.natural_hz": "ringing.natural.value",
+    "ringing.natural_std_hz": "ringing.natural.std",
+    "stray_capacitance.value_f": "stray_capacitance.capacitance.value",
+    "stray_capacitance.std_f": "stray_capacitance.capacitance.std",
+    "stray_capacitance.inductance_h": "stray_capacitance.inductance.value",
+    "stray_capacitance.inductance_std_h": "stray_capacitance.inductance.std",
+}
 
 
 @dataclass(frozen=True)
@@ -151,15 +174,24 @@ class StepResult:
         The keys of the contract come first: ``schema``, ``source``,
         ``sample_rate_hz``, ``edges``, ``levels_v``, ``transition_10_90_s``,
         ``overshoot_pct``, ``time_constant_s``, ``time_constant_std_s``,
-        ``ringing_hz``, ``usable_band_hz`` and, with a sense resistor,
-        ``impedance`` (the ``zfit.identify/1`` object).  Further keys add the
-        uncertainties and the cross-checks.
+        ``ringing_hz``, ``usable_band_hz``; then ``zfit_version`` and, with a
+        sense resistor, ``impedance`` (the ``zfit.identify/1`` object).
+        Further keys add the uncertainties and the cross-checks.  Each value
+        with an uncertainty is also given as ``{value, std, unit}``, the
+        shape of ``zfit.identify/1`` (``time_constant``, ``ringing.frequency``,
+        ...); the flat ``*_std`` keys it replaces are listed in
+        ``deprecated`` and are kept for this version only.
         """
+        from .._version import __version__
 
         def num(v):
             return None if v is None or not math.isfinite(v) else float(v)
 
+        def q(value, std, unit):
+            return None if num(value) is None else {"value": num(value), "std": num(std), "unit": unit}
+
         r = self.ringing
+        sc = self.stray_capacitance
         d = {
             "schema": STEP_SCHEMA,
             "source": self.source,
@@ -172,6 +204,8 @@ class StepResult:
             "time_constant_std_s": num(self.time_constant_std_s),
             "ringing_hz": None if r is None else float(r.frequency_hz),
             "usable_band_hz": [num(self.usable_band_hz[0]), num(self.usable_band_hz[1])],
+            # After the keys of the contract, whose order is fixed.
+            "zfit_version": __version__,
         }
         if self.identification is not None:
             d["impedance"] = self.identification.to_dict()
@@ -183,22 +217,30 @@ class StepResult:
             "edges_falling": int(self.edges_falling),
             "levels_noise_v": [float(self.levels_noise_v[0]), float(self.levels_noise_v[1])],
             "input_levels_v": None if self.input_levels_v is None else [float(v) for v in self.input_levels_v],
+            "transition_10_90": q(self.transition_10_90_s, self.transition_10_90_std_s, "s"),
+            "overshoot": q(self.overshoot_pct, self.overshoot_std_pct, "%"),
+            "time_constant": q(self.time_constant_s, self.time_constant_std_s, "s"),
+            "midpoint_time_constant": q(self.midpoint_time_constant_s, self.midpoint_time_constant_std_s, "s"),
             "transition_10_90_std_s": num(self.transition_10_90_std_s),
             "overshoot_std_pct": num(self.overshoot_std_pct),
             "time_constant_method": self.time_constant_method,
             "midpoint_time_constant_s": num(self.midpoint_time_constant_s),
             "midpoint_time_constant_std_s": num(self.midpoint_time_constant_std_s),
             "ringing": None if r is None else {
+                "frequency": q(r.frequency_hz, r.frequency_std_hz, "Hz"),
+                "natural": q(r.natural_hz, r.natural_std_hz, "Hz"),
                 "frequency_hz": float(r.frequency_hz), "frequency_std_hz": num(r.frequency_std_hz),
                 "natural_hz": float(r.natural_hz), "natural_std_hz": num(r.natural_std_hz),
                 "damping_ratio": float(r.damping_ratio), "amplitude_v": float(r.amplitude_v),
             },
-            "stray_capacitance": None if self.stray_capacitance is None else {
-                "value_f": float(self.stray_capacitance.value_f), "std_f": num(self.stray_capacitance.std_f),
-                "method": self.stray_capacitance.method,
-                "inductance_h": num(self.stray_capacitance.inductance_h),
-                "inductance_std_h": num(self.stray_capacitance.inductance_std_h),
-                "added_ringing_hz": num(self.stray_capacitance.added_ringing_hz),
+            "stray_capacitance": None if sc is None else {
+                "capacitance": q(sc.value_f, sc.std_f, "F"),
+                "inductance": q(sc.inductance_h, sc.inductance_std_h, "H"),
+                "value_f": float(sc.value_f), "std_f": num(sc.std_f),
+                "method": sc.method,
+                "inductance_h": num(sc.inductance_h),
+                "inductance_std_h": num(sc.inductance_std_h),
+                "added_ringing_hz": num(sc.added_ringing_hz),
             },
             "response": {
                 "method": self.response.method,
@@ -211,5 +253,6 @@ class StepResult:
             "shunt_ohm": num(self.shunt_ohm),
             "warnings": list(self.warnings),
             "notes": list(self.notes),
+            "deprecated": [dict(key=k, replaced_by=v) for k, v in DEPRECATED_STEP_KEYS.items()],
         })
         return d

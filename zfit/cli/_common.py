@@ -161,6 +161,36 @@ def warn_line(text: str) -> None:
     typer.echo(f"zfit: warning: {text}", err=True)
 
 
+def _ascii_fallback(exc: UnicodeError):
+    """Spell a sign the stream's encoding lacks in ASCII (``µ`` -> ``u``, ``Ω`` -> ``ohm``): an encoding error handler."""
+    from .._units import ascii_text
+
+    if not isinstance(exc, UnicodeEncodeError):
+        raise exc
+    return ascii_text(exc.object[exc.start:exc.end]), exc.end
+
+
+def _text_for_the_terminal() -> None:
+    """Write µ, Ω and ± where the output encoding has them, their ASCII spelling where it has not.
+
+    The decision is per sign and per stream (a cp1252 console has µ but not
+    Ω), made by the encoder of the stream itself.
+    """
+    import codecs
+    import sys
+
+    try:
+        codecs.lookup_error("zfit-ascii")
+    except LookupError:
+        codecs.register_error("zfit-ascii", _ascii_fallback)
+    for stream in (sys.stdout, sys.stderr):
+        if hasattr(stream, "reconfigure") and getattr(stream, "errors", "strict") == "strict":
+            try:
+                stream.reconfigure(errors="zfit-ascii")
+            except (ValueError, OSError):
+                pass
+
+
 def _show_warning(message, category, filename, lineno, file=None, line=None):
     warn_line(str(message))
 
@@ -175,6 +205,7 @@ def guarded(fn):
 
     @functools.wraps(fn)
     def wrapper(*args, **kwargs):
+        _text_for_the_terminal()
         with warnings.catch_warnings():
             warnings.simplefilter("always", MeasurementWarning)
             warnings.showwarning = _show_warning

@@ -59,7 +59,7 @@ import numpy as np
 
 from ._connection import NA_CONNECTIONS, InstrumentNoise, dz_ds, impedance_from_s, sigma_z_from_s
 from .._errors import MeasurementWarning, ZfitInputError
-from .._units import format_eng
+from .._units import format_band, format_eng
 
 __all__ = [
     "corrected_impedance",
@@ -231,7 +231,7 @@ def compensated(z_m, sigma_m, open=None, short=None, load=None, load_ohm=None):
 
 
 def _band_text(lo, hi):
-    return f"{format_eng(lo)}Hz to {format_eng(hi)}Hz"
+    return format_band(lo, hi)
 
 
 def fixture_on_grid(fixture, f_hz, what: str = "fixture"):

@@ -127,9 +127,9 @@ class FosterBranch:
 def _pole_text(p: complex) -> str:
     w = abs(p)
     if abs(p.imag) <= _ROUNDING * w:
-        return f"real pole at {format_eng(w / (2 * math.pi))}Hz"
+        return f"real pole at {format_eng(w / (2 * math.pi), 'Hz')}"
     q = w / (-2.0 * p.real) if p.real < 0 else math.inf
-    return f"complex pole pair at {format_eng(w / (2 * math.pi))}Hz (Q {q:.3g})"
+    return f"complex pole pair at {format_eng(w / (2 * math.pi), 'Hz')} (Q {q:.3g})"
 
 
 def _check(value: float, scale: float, what: str, branch: str, clamped: list | None = None) -> float:

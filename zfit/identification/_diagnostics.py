@@ -198,8 +198,8 @@ def ground_loop_warning(sweep: Sweep, identification: Identification) -> str | N
     above = (resid > 0.5 * floor) & (resid > 2.0 / np.sqrt(w))
     top = float(fl[above][-1]) if above.any() else float(fd[-1])
     return (
-        f"shunt-thru: the real part up to {format_eng(top)}Hz sits on a flat floor "
-        f"{format_eng(floor, 'ohm')} (+- {format_eng(std, 'ohm')}) above the ESR (fitted {format_eng(esr, 'ohm')}): "
+        f"shunt-thru: the real part up to {format_eng(top, 'Hz')} sits on a flat floor "
+        f"{format_eng(floor, 'ohm')} (± {format_eng(std, 'ohm')}) above the ESR (fitted {format_eng(esr, 'ohm')}): "
         "the known cable-shield ground-loop error of shunt-thru, not ESR; break the loop (ferrite cores or a "
         "common-mode choke on a port cable, or an isolating transformer) and measure again"
     )

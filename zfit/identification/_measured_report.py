@@ -28,7 +28,7 @@ from ._measured import (
     measured_srf,
     spot_figures,
 )
-from ._merit import SRF, _num
+from ._merit import SRF, Merit, Merits, _num
 
 if TYPE_CHECKING:
     from ..data._sweep import Sweep
@@ -37,6 +37,7 @@ __all__ = [
     "MeasuredReadings",
     "measured_readings",
     "srf_with_measurement",
+    "merits_with_measurement",
     "SRF_AGREEMENT_K",
     "SRF_AGREEMENT_REL",
 ]
@@ -50,6 +51,8 @@ SRF_AGREEMENT_K = 3.0
 SRF_AGREEMENT_REL = 0.05
 
 SOURCE = "measurement"
+
+Z_AT_SRF_MEASURED = "|Z| of the measured impedance at the point nearest the SRF"
 
 
 @dataclass(frozen=True)
@@ -77,6 +80,12 @@ class MeasuredReadings:
     def family(self) -> str | None:
         """``"inductor"`` or ``"capacitor"`` from the sign of Im Z at low frequency; None if not resolved."""
         return self.low.family
+
+    def z_at_srf(self) -> tuple[MeasuredValue, float]:
+        """Return (``|Z|``, its frequency) at the measured point nearest the measured SRF (which must be in band)."""
+        fig = self.figures
+        i = int(np.argmin(np.abs(np.log(fig.f_hz / self.srf.value_hz))))
+        return MeasuredValue("|Z|", "ohm", float(fig.abs_z_ohm[i]), float(fig.std_ohm[i])), float(fig.f_hz[i])
 
     def spot_dicts(self) -> list:
         """Return the ``measurement`` object of each spot readout (None outside the band)."""
@@ -112,9 +121,8 @@ class MeasuredReadings:
                 f"{what} of the measured impedance at the lowest frequency where X is resolved")
             i0 = int(np.searchsorted(fig.f_hz, lo.f_hz))
         if self.srf.in_band:
-            i = int(np.argmin(np.abs(np.log(fig.f_hz / self.srf.value_hz))))
-            out["z_at_srf"] = _entry(MeasuredValue("|Z|", "ohm", float(fig.abs_z_ohm[i]), float(fig.std_ohm[i])),
-                                     float(fig.f_hz[i]), "|Z| of the measured impedance at the point nearest the SRF")
+            v, f = self.z_at_srf()
+            out["z_at_srf"] = _entry(v, f, Z_AT_SRF_MEASURED)
         top = self.srf.value_hz if self.srf.in_band else math.inf
         below = fig.f_hz < top
         if family == "inductor":
@@ -137,10 +145,10 @@ class MeasuredReadings:
 
 
 def _value_dict(v: MeasuredValue) -> dict:
-    from .._units import format_eng
+    from .._units import format_value_std
 
     text = None if v.resolved else (
-        f"below resolution, < {format_eng(v.upper_bound, v.unit)}" if v.upper_bound is not None else "not resolved")
+        f"below resolution, < {format_value_std(v.upper_bound, None, v.unit)}" if v.upper_bound is not None else "not resolved")
     return {
         "value": _num(v.value) if v.resolved else None, "std": _num(v.std), "unit": v.unit,
         "resolved": bool(v.resolved), "upper_bound": _num(v.upper_bound), "text": text,
@@ -188,7 +196,7 @@ def measured_readings(sweep: Sweep, at=()) -> MeasuredReadings:
     return MeasuredReadings(fig, srf, low, spot)
 
 
-def srf_with_measurement(model: SRF, measured: MeasuredSRF) -> SRF:
+def srf_with_measurement(model: SRF, measured: MeasuredSRF, holds_hz: tuple[float, float] | None = None) -> SRF:
     """Return the SRF to report: the model's, or the measured one where the model's is outside the band or disagrees.
 
     The measured resonance (the sign change of Im Z in the data) is the
@@ -196,7 +204,9 @@ def srf_with_measurement(model: SRF, measured: MeasuredSRF) -> SRF:
     the measured by more than `SRF_AGREEMENT_K` combined standard
     uncertainties and `SRF_AGREEMENT_REL`, is the model's extrapolation or
     its artefact (a rational pole, a calibration offset near a short), and
-    is kept beside it as ``model_value_hz``.
+    is kept beside it as ``model_value_hz``.  So is a circuit's resonance
+    that lies beyond the band where the circuit holds (`holds_hz`): there the
+    circuit is an extrapolation even inside the measured band.
 
     Parameters
     ----------
@@ -204,15 +214,43 @@ def srf_with_measurement(model: SRF, measured: MeasuredSRF) -> SRF:
         The model's SRF.
     measured : MeasuredSRF
         The one read from the data.
+    holds_hz : tuple of float, optional
+        The band where the model describes the data (a circuit's valid
+        band); None for the whole band.
     """
     out = replace(model, measured=measured, model_value_hz=model.value_hz, model_std_hz=model.std_hz,
                   model_source=model.source)
     if not measured.in_band:
         return out
-    if model.where == "in-band" and model.value_hz is not None:
+    beyond = holds_hz is not None and model.value_hz is not None and not (
+        holds_hz[0] <= model.value_hz <= holds_hz[1])
+    if model.where == "in-band" and model.value_hz is not None and not beyond:
         diff = abs(model.value_hz - measured.value_hz)
         comb = math.hypot(model.std_hz or 0.0, measured.std_hz)
         if diff <= max(SRF_AGREEMENT_K * comb, SRF_AGREEMENT_REL * measured.value_hz):
             return out
     return replace(out, value_hz=measured.value_hz, std_hz=measured.std_hz, where="in-band", bound_hz=None,
                    source=SOURCE)
+
+
+def merits_with_measurement(merits: Merits, measured: MeasuredReadings) -> Merits:
+    """Return `merits` with ``|Z|`` at the SRF read from the data where the data contain the resonance.
+
+    A model's ``|Z|`` at its resonance is set by the losses it assigns
+    there, and where the data are sparse or noisy near the peak (a capture's
+    bins, an analyser's floor) it can lie far above anything measured; the
+    measured point nearest the SRF is what the part showed.  The model's
+    value is kept as ``z_model_at_srf``.
+
+    Parameters
+    ----------
+    merits : Merits
+        The figures read from the models (`_merit.merits_of`).
+    measured : MeasuredReadings
+        What the data say.
+    """
+    if not measured.srf.in_band:
+        return merits
+    v, f = measured.z_at_srf()
+    here = Merit(v.value, v.std, "ohm", f, Z_AT_SRF_MEASURED, SOURCE)
+    return replace(merits, z_at_srf=here, z_model_at_srf=merits.z_at_srf)

@@ -227,16 +227,22 @@ class SRF:
 
     def to_dict(self) -> dict:
         """Return the ``srf`` object of the JSON contract."""
+        def hz(value, std):
+            # The {value, std, unit} shape of every value with an uncertainty (issue 15).
+            return None if _num(value) is None else {"value": _num(value), "std": _num(std), "unit": "Hz"}
+
         out = {
             "value_hz": _num(self.value_hz), "std_hz": _num(self.std_hz), "where": self.where,
-            "bound_hz": _num(self.bound_hz), "source": self.source,
+            "bound_hz": _num(self.bound_hz), "source": self.source, "frequency": hz(self.value_hz, self.std_hz),
         }
         m = self.measured
         if m is not None:
             out["model_value_hz"] = _num(self.model_value_hz)
             out["model_std_hz"] = _num(self.model_std_hz)
             out["model_source"] = self.model_source
+            out["model_frequency"] = hz(self.model_value_hz, self.model_std_hz)
             out["measured"] = {
+                "frequency": hz(m.value_hz, m.std_hz),
                 "value_hz": _num(m.value_hz), "std_hz": _num(m.std_hz), "kind": m.kind, "in_band": bool(m.in_band),
                 "lower_bound_hz": _num(m.lower_bound_hz), "rejected_hz": [float(x) for x in m.rejected_hz],
                 "source": "measurement",
@@ -298,8 +304,9 @@ class Merits:
     Attributes
     ----------
     z_at_srf : Merit or None
-        ``|Z|`` at the self-resonance (in band: read from the rational model;
-        otherwise the circuit's value there).
+        ``|Z|`` at the self-resonance: where the data contain it, the
+        measured point nearest the SRF (`_measured_report.merits_with_measurement`);
+        otherwise the model's value there.
     q_peak : Merit or None
         Peak of the measured Q, ``|X|/R``, below the SRF (inductors).
     q_model_at_q_peak : Merit or None
@@ -310,6 +317,8 @@ class Merits:
         The measured D at the lowest frequency of the band (capacitors).
     d_model_at_f_min : Merit or None
         The model's ``omega C ESR`` there.
+    z_model_at_srf : Merit or None
+        The model's ``|Z|`` at the SRF, when `z_at_srf` is the measured one.
     """
 
     z_at_srf: Merit | None = None
@@ -318,10 +327,12 @@ class Merits:
     esr_min: Merit | None = None
     d_at_f_min: Merit | None = None
     d_model_at_f_min: Merit | None = None
+    z_model_at_srf: Merit | None = None
 
     def to_dict(self) -> dict:
         """Return the ``figures`` object of the JSON contract."""
-        names = ("z_at_srf", "q_peak", "q_model_at_q_peak", "esr_min", "d_at_f_min", "d_model_at_f_min")
+        names = ("z_at_srf", "q_peak", "q_model_at_q_peak", "esr_min", "d_at_f_min", "d_model_at_f_min",
+                 "z_model_at_srf")
         return {n: (None if getattr(self, n) is None else getattr(self, n).to_dict()) for n in names}
 
 

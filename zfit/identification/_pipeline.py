@@ -130,7 +130,8 @@ def _checked_options(sweep, model, at, rdc, rdc_std):
     return at, rdc, rdc_std
 
 
-def readings(family: str, srf: SRF, evaluator: ModelEvaluator, at, extrapolated: str) -> tuple[Readings, list[str]]:
+def readings(family: str, srf: SRF, evaluator: ModelEvaluator, at, extrapolated: str,
+             measured: MeasuredReadings | None = None) -> tuple[Readings, list[str]]:
     """Return the figures of merit read through `evaluator`, and the notes on spots outside the band.
 
     Parameters
@@ -145,13 +146,20 @@ def readings(family: str, srf: SRF, evaluator: ModelEvaluator, at, extrapolated:
         Spot frequencies in Hz.
     extrapolated : str
         What a spot outside the band is extrapolated from (for the note).
+    measured : MeasuredReadings, optional
+        What the data say: where they contain the resonance, ``|Z|`` at the
+        SRF is theirs (`_measured_report.merits_with_measurement`).
     """
+    from ._measured_report import merits_with_measurement
     from ._merit import curves_of, merits_of, spot_readout
 
     spots = tuple(spot_readout(x, evaluator) for x in at)
     notes = [f"spot readout at {format_eng(s.f_hz, 'Hz')} is outside the band: {extrapolated}"
              for s in spots if not s.in_band]
-    return Readings(srf, spots, merits_of(family, srf, evaluator), curves_of(evaluator)), notes
+    merits = merits_of(family, srf, evaluator)
+    if measured is not None:
+        merits = merits_with_measurement(merits, measured)
+    return Readings(srf, spots, merits, curves_of(evaluator)), notes
 
 
 def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, rdc, notes,
@@ -167,7 +175,7 @@ def _rational_result(sweep: Sweep, obs: Observation, stage: RationalStage, at, r
         notes.append("--rdc does not apply to the rational model; ignored")
     srf = srf_with_measurement(srf_of_rational(rational, band), measured.srf)
     read, spot_notes = readings("rational", srf, ModelEvaluator(band, rational=rational), at,
-                                "the rational model is extrapolated")
+                                "the rational model is extrapolated", measured)
     notes.extend(spot_notes)
     k = rational_k(rational)
     fit = FitQuality(
@@ -385,13 +393,13 @@ def _identify(sweep, model, at, rdc, rdc_std, n_poles, margin, measured) -> Iden
             pull += f"; the sweep is described by the {chosen.circuit.topology} instead"
     if pull is not None:
         notes.append(pull)
-    srf = srf_with_measurement(srf_of_circuit(chosen, band), measured.srf)
+    srf = srf_with_measurement(srf_of_circuit(chosen, band), measured.srf, holds_hz=valid)
     evaluator = ModelEvaluator(
         band, rational=rational, refinement=chosen,
         circuit_band=valid if i1 > i0 else None,
     )
     # Figures read from the circuit inside its valid band are the measured part to within the noise.
-    read, spot_notes = readings(picked.family, srf, evaluator, at, "extrapolated from the circuit")
+    read, spot_notes = readings(picked.family, srf, evaluator, at, "extrapolated from the circuit", measured)
     notes.extend(spot_notes)
     n_fit = sweep.n_points if fitted_mask is None else int(fitted_mask.sum())
     fit = FitQuality(

@@ -276,8 +276,11 @@ class Plan:
 
     def to_dict(self) -> dict:
         """Return the ``zfit.plan/1`` JSON object (SI units, floats as numbers)."""
+        from .._version import __version__
+
         return {
             "schema": _SCHEMA,
+            "zfit_version": __version__,
             "model": self.model,
             "topology": self.topology,
             "parameters": dict(self.params),
@@ -586,11 +589,11 @@ def format_plan(plan: Plan) -> str:
     srf = f" (SRF {format_eng(plan.srf_hz, 'Hz')})" if plan.srf_hz else ""
     lines = [f"plan: {plan.model}, {plan.topology}: {vals}{srf}",
              f"band {format_eng(plan.band_hz[0], 'Hz')} to {format_eng(plan.band_hz[1], 'Hz')}, {plan.points} log-spaced points, "
-             f"reference {plan.reference_ohm:g} ohm"]
+             f"reference {format_eng(plan.reference_ohm, 'ohm')}"]
     for c in plan.connections:
         on = "S" if c.connection in NA_CONNECTIONS else "Z"
-        unit = "" if on == "S" else " ohm"
-        lines.append(f"noise, {c.label}: sigma({on}) = {c.noise.rel:g} |{on}| + {c.noise.floor:g}{unit}")
+        floor = f"{c.noise.floor:g}" if on == "S" else format_eng(c.noise.floor, "ohm")
+        lines.append(f"noise, {c.label}: sigma({on}) = {c.noise.rel:g} |{on}| + {floor}")
     lines.append("")
     lines.append("expected standard uncertainty (relative) per connection")
     cells = {}

@@ -29,10 +29,23 @@ if TYPE_CHECKING:
     from ._bead import BeadFigures
     from ._model_error import SplitBandCheck
 
-__all__ = ["Identification", "FitQuality", "Candidate", "ModelChoice", "ParameterMap", "SCHEMA"]
+__all__ = ["Identification", "FitQuality", "Candidate", "ModelChoice", "ParameterMap", "SCHEMA", "DEPRECATED_IDENTIFY_KEYS"]
 
 #: Identifier of the JSON contract.
 SCHEMA = "zfit.identify/1"
+
+
+#: The flat SRF keys of ``zfit.identify/1`` that a ``{value, std, unit}``
+#: object replaces; written for this version only and listed in the JSON's
+#: ``deprecated`` (docs/identify.md).
+DEPRECATED_IDENTIFY_KEYS = {
+    "srf.value_hz": "srf.frequency.value",
+    "srf.std_hz": "srf.frequency.std",
+    "srf.model_value_hz": "srf.model_frequency.value",
+    "srf.model_std_hz": "srf.model_frequency.std",
+    "srf.measured.value_hz": "srf.measured.frequency.value",
+    "srf.measured.std_hz": "srf.measured.frequency.std",
+}
 
 
 class ParameterMap(Mapping[str, ParameterEstimate]):
@@ -378,6 +391,7 @@ class Identification:
             "low_frequency": None if self.measurement is None else self.measurement.low_frequency_dict(),
             "choice": None if self.choice is None else self.choice.to_dict(),
             **({} if self.bead is None else {"bead": self.bead.to_dict()}),
+            "deprecated": [dict(key=k, replaced_by=v) for k, v in DEPRECATED_IDENTIFY_KEYS.items()],
         }
 
     def _figures_dict(self) -> dict:

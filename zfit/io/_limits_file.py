@@ -369,7 +369,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
                 minus = plus = _percent(tol, "tolerance_percent", w)
                 if minus < 0:
                     raise w("tolerance_percent must be >= 0 (for an asymmetric one write [-minus, plus])")
-                text = f"{format_eng(nominal, unit)} +-{plus:g} %"
+                text = f"{format_eng(nominal, unit)} ±{plus:g} %"
             span = abs(nominal)
             lower, upper = nominal - span * minus / 100.0, nominal + span * plus / 100.0
         else:
@@ -377,7 +377,7 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
             if tol < 0:
                 raise where_for("tolerance")("tolerance must be >= 0")
             lower, upper = nominal - tol, nominal + tol
-            text = f"{format_eng(nominal, unit)} +-{format_eng(tol, unit)}"
+            text = f"{format_eng(nominal, unit)} ±{format_eng(tol, unit)}"
     else:
         if has_tol:
             raise where_for("tolerance_percent" if "tolerance_percent" in table else "tolerance")(

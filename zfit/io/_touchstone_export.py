@@ -16,7 +16,7 @@ from typing import Callable, Sequence
 import numpy as np
 
 from .._errors import MeasurementWarning, ZfitInputError
-from .._units import bounded, format_eng, parse_quantity
+from .._units import ascii_text, bounded, format_band, parse_quantity
 from ..data._sweep import FREQUENCY_RANGE_HZ
 
 __all__ = ["parse_grid", "touchstone_text", "write_touchstone"]
@@ -104,7 +104,7 @@ def touchstone_text(f_hz, z_ohm, *, reference_ohm: float = 50.0, comments: Seque
         raise ZfitInputError(f"reference impedance {reference_ohm!r} is not a positive number")
     s11 = (z - reference_ohm) / (z + reference_ohm)
     net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="hz"), s=s11.reshape(-1, 1, 1), z0=reference_ohm, name="zfit")
-    net.comments = "\n".join(c.replace("±", "+/-").encode("ascii", "replace").decode("ascii") for c in comments)
+    net.comments = "\n".join(ascii_text(c) for c in comments)
     return net.write_touchstone(
         return_string=True, form="ri", skrf_comment=False,
         format_spec_A="{:.12g}", format_spec_B="{:.12g}", format_spec_freq="{:.12g}",
@@ -156,8 +156,8 @@ def write_touchstone(
     if valid_band_hz is not None:
         lo, hi = valid_band_hz
         if f[0] < lo * (1 - 1e-9) or f[-1] > hi * (1 + 1e-9):
-            text = (f"Touchstone grid {format_eng(f[0])}Hz..{format_eng(f[-1])}Hz reaches beyond the band the model "
-                    f"describes ({format_eng(lo)}Hz..{format_eng(hi)}Hz): those points are an extrapolation")
+            text = (f"Touchstone grid {format_band(f[0], f[-1])} reaches beyond the band the model "
+                    f"describes ({format_band(lo, hi)}): those points are an extrapolation")
             warnings.warn(text, MeasurementWarning, stacklevel=2)
             comments.append("WARNING: " + text)
     z = np.asarray(impedance(f), dtype=complex)

@@ -162,11 +162,14 @@ def lot_json_text(lot: LotSummary) -> str:
     lot : LotSummary
         The statistics.
     """
+    from .._version import __version__
+
     def clean(x):
         return float(_num(x)) if isinstance(x, float) else x
 
     doc = {
         "schema": "zfit.batch-lot/1",
+        "zfit_version": __version__,
         "count": lot.count,
         "verdicts": dict(lot.verdicts),
         "decision_rule": DECISION_RULE if lot.limits_path else None,

@@ -33,7 +33,7 @@ from pathlib import Path
 from typing import Mapping, Sequence
 
 from .._errors import ZfitInputError
-from .._units import format_eng, format_value_std
+from .._units import ascii_text, format_band, format_eng, format_value_std
 from ..fit._models import is_lumped
 from ..fit._realisation import NetworkElement, rational_elements
 from .._version import __version__
@@ -186,13 +186,7 @@ def _header(title: str, header: Mapping[str, str] | None) -> list[str]:
             lines.append(f"* {key + ':' if k == 0 else ' ' * (len(key) + 1)} {part}".rstrip())
     lines.append("* Plain R, L, C elements only; values in ohm, henry, farad (SPICE suffixes, meg = 1e6).")
     # Some simulators reject non-ASCII bytes even in comments.
-    return [_ascii(line) for line in lines]
-
-
-def _ascii(text: str) -> str:
-    for a, b in (("±", "+/-"), ("µ", "u"), ("Ω", "ohm"), ("σ", "sigma"), ("²", "^2"), ("°", " deg"), ("—", "-"), ("–", "-")):
-        text = text.replace(a, b)
-    return text.encode("ascii", "replace").decode("ascii")
+    return [ascii_text(line) for line in lines]
 
 
 def _subckt_text(name: str, title: str, header, elements: Sequence[NetworkElement]) -> str:
@@ -274,9 +268,9 @@ def _netlist_header(result) -> dict:
     sw = result.sweep
     fit = result.fit
     hdr = {
-        "source": f"{sw.source} ({sw.connection}, {sw.n_points} points, {format_eng(sw.f_hz[0])}Hz..{format_eng(sw.f_hz[-1])}Hz)",
+        "source": f"{sw.source} ({sw.connection}, {sw.n_points} points, {format_band(sw.f_hz[0], sw.f_hz[-1])})",
         "model": f"{result.model}: {result.topology}",
-        "band of validity": f"{format_eng(fit.valid_band_hz[0])}Hz..{format_eng(fit.valid_band_hz[1])}Hz "
+        "band of validity": f"{format_band(fit.valid_band_hz[0], fit.valid_band_hz[1])} "
         "(where the model's residual is within the measurement noise)",
         "fit quality": f"RMS normalised residual {fit.rms_normalized_residual:.3g} over {fit.points} points "
         f"(about 1 when only noise is left)",
@@ -322,7 +316,7 @@ def identification_netlist(result, kind: str = "auto", name: str | None = None) 
             rr = result.fit.rational_rms_normalized_residual
             if rr is not None:
                 hdr["fit quality"] = f"RMS normalised residual {rr:.3g} over {result.sweep.n_points} points"
-            hdr["band of validity"] = f"{format_eng(result.sweep.f_hz[0])}Hz..{format_eng(result.sweep.f_hz[-1])}Hz (the measured band)"
+            hdr["band of validity"] = f"{format_band(result.sweep.f_hz[0], result.sweep.f_hz[-1])} (the measured band)"
         realised = result.realisation
         if realised.note:
             hdr["synthesis note"] = realised.note

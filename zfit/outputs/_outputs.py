@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from .._errors import ZfitInputError
-from .._units import format_eng, format_value_std
+from .._units import format_band, format_value_std
 from .._version import __version__
 from ._netlist import identification_netlist
 from ._pages import identification_report, step_report
@@ -222,12 +222,12 @@ def _touchstone_payload(ident, grid, r0):
     comments = [
         f"zfit {__version__}: one-port model of {ident.sweep.source}",
         f"model: {ident.model}, {ident.topology}",
-        f"band of validity: {format_eng(band[0])}Hz..{format_eng(band[1])}Hz",
+        f"band of validity: {format_band(band[0], band[1])}",
     ]
     comments += [f"{k} = {format_value_std(e.value, e.std, e.unit)}" for k, e in ident.parameters.items() if e.std]
     if f[0] < band[0] * (1 - 1e-9) or f[-1] > band[1] * (1 + 1e-9):
-        text = (f"Touchstone grid {format_eng(f[0])}Hz..{format_eng(f[-1])}Hz reaches beyond the band the model "
-                f"describes ({format_eng(band[0])}Hz..{format_eng(band[1])}Hz): those points are an extrapolation")
+        text = (f"Touchstone grid {format_band(f[0], f[-1])} reaches beyond the band the model "
+                f"describes ({format_band(band[0], band[1])}): those points are an extrapolation")
         warnings.warn(text, MeasurementWarning, stacklevel=3)
         comments.append("WARNING: " + text)
     return touchstone_text(f, ident.impedance(f), reference_ohm=r0, comments=comments)

@@ -17,7 +17,8 @@ import numpy as np
 from .._errors import ZfitInputError
 from ..fit._models import is_lumped
 from ._result_plots import identification_plots, step_page_data, step_plots
-from ._views import band_text, dimensionless, estimate_text, micro, percent_std, pretty, pretty_std, relative_text
+from ._views import (band_text, dimensionless, estimate_text, figure_model_notes, percent_std, pretty, pretty_std,
+                     relative_text, srf_model_note)
 
 __all__ = ["identification_report", "step_report", "schematic_tree"]
 
@@ -60,7 +61,11 @@ def _merit_rows(result) -> list:
     srf = result.srf
     if srf is not None:
         if srf.where == "in-band":
-            rows.append(("SRF (where X = 0)", pretty_std(srf.value_hz, srf.std_hz, "Hz") + ", in the band"))
+            rows.append(("SRF (where X = 0)", pretty_std(srf.value_hz, srf.std_hz, "Hz") + ", in the band"
+                         + (", from the sign change of Im Z in the data" if srf.source == "measurement" else "")))
+            note = srf_model_note(result)
+            if note is not None:
+                rows.append(("model SRF", note))
         elif srf.where == "above-band":
             txt = f"above the band: > {pretty(srf.bound_hz, 'Hz')}"
             if srf.value_hz:
@@ -74,13 +79,17 @@ def _merit_rows(result) -> list:
         else:
             rows.append(("SRF", "none: the reactance does not change sign"))
     if merit is not None:
-        for attr in ("z_at_srf", "q_peak", "q_model_at_q_peak", "esr_min", "d_at_f_min", "d_model_at_f_min"):
+        # One figure each, the measured one; the model's beside it only where it differs, with why.
+        why = figure_model_notes(result)
+        for attr in ("z_at_srf", "q_peak", "esr_min", "d_at_f_min"):
             x = getattr(merit, attr, None)
             if x is None or x.value is None:
                 continue
             where = f" at {pretty(x.f_hz, 'Hz')}" if x.f_hz else ""
             val = pretty_std(x.value, x.std, x.unit) if x.unit else dimensionless(x)
             rows.append((x.definition, val + where))
+            if attr in why:
+                rows.append(("the model's value", why[attr]))
     return rows
 
 
@@ -99,8 +108,8 @@ def _network_table(result):
         if br.kind == "complex":
             cells = [pretty(v["C"], "F"), pretty(v["R_p"], "ohm") if np.isfinite(v["R_p"]) else "open",
                      pretty(v["L"], "H"), pretty(v["R_s"], "ohm") if v["R_s"] > 0 else "0"]
-            label = re.sub(r"complex pole pair at (\S+)Hz \(Q (\S+)\)", r"\1Hz, Q \2", br.description)
-            rows.append((micro(label.replace("MHz", " MHz").replace("kHz", " kHz").replace("GHz", " GHz")), *cells))
+            label = re.sub(r"complex pole pair at (.+?) \(Q (\S+)\)", r"\1, Q \2", br.description)
+            rows.append((label, *cells))
         elif br.kind == "real":
             rows.append((br.description, pretty(v["C"], "F"), pretty(v["R"], "ohm"), "", ""))
         else:

@@ -10,11 +10,10 @@ Nothing here computes a figure: every number comes from the result.
 from __future__ import annotations
 
 import math
-import re
 
 import numpy as np
 
-from .._units import format_eng, format_value_std
+from .._units import format_band, format_dimensionless, format_eng, format_percent, format_value_std
 
 __all__ = [
     "pretty",
@@ -24,9 +23,12 @@ __all__ = [
     "estimate_text",
     "relative_text",
     "band_text",
-    "micro",
     "identification_summary",
+    "disagree",
+    "srf_model_note",
+    "figure_model_notes",
     "step_summary",
+    "cross_check_note",
     "INFO_SCHEMA",
     "info_dict",
     "info_lines",
@@ -34,18 +36,8 @@ __all__ = [
 ]
 
 
-def _pretty_unit(unit: str) -> str:
-    return {"ohm": "Ω", "deg": "°"}.get(unit, unit)
-
-
-def micro(text: str) -> str:
-    """Return `text` with the micro prefix as the micro sign."""
-    # format_eng writes micro as ASCII "u"; on a page it is the micro sign.
-    return re.sub(r"(?<=\d)u(?=\b|\s|$)", "µ", text)
-
-
 def pretty(value, unit: str = "", digits: int = 4) -> str:
-    """Return a value in engineering notation for a page: ``4.7 µH``, ``25 mΩ``.
+    """Return a value in zfit's notation (`zfit._units.format_eng`): ``4.7 µH``, ``25 mΩ``; ``n/a`` for None or NaN.
 
     Parameters
     ----------
@@ -58,18 +50,11 @@ def pretty(value, unit: str = "", digits: int = 4) -> str:
     """
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return "n/a"
-    text = format_eng(value, "", digits)
-    u = _pretty_unit(unit)
-    m = re.match(r"^(-?[\d.]+(?:e[+-]?\d+)?)([a-zA-Z]?)$", text)
-    if m:
-        text = f"{m.group(1)} {m.group(2).replace('u', 'µ')}{u}".rstrip()
-    elif u:
-        text = f"{text} {u}"
-    return micro(text)
+    return format_eng(value, unit, digits)
 
 
 def pretty_std(value, std, unit: str = "") -> str:
-    """Return ``value ± std unit`` for a page (GUM rounding, one prefix).
+    """Return ``value ± std unit`` (`zfit._units.format_value_std`), or the value and "(no uncertainty)".
 
     Parameters
     ----------
@@ -82,13 +67,7 @@ def pretty_std(value, std, unit: str = "") -> str:
     """
     if std is None or not np.isfinite(std) or std <= 0:
         return pretty(value, unit) + ("" if std is not None and std == 0 else " (no uncertainty)")
-    text = format_value_std(value, std, "")
-    u = _pretty_unit(unit)
-    m = re.match(r"^(-?[\d.]+)([a-zA-Z]?) ± ([\d.]+)\2$", text)
-    if m:
-        # One prefix for both: "23.21505 ± 0.00032 MHz".
-        return f"{m.group(1)} ± {m.group(3)} {m.group(2).replace('u', 'µ')}{u}".rstrip()
-    return micro(f"{text} {u}".rstrip())
+    return format_value_std(value, std, unit)
 
 
 def estimate_text(e) -> str:
@@ -105,38 +84,22 @@ def relative_text(e) -> str:
 
 
 def band_text(b) -> str:
-    """Return a band ``(lo, hi)`` in Hz as ``lo to hi`` for a page."""
-    if b is None or b[0] is None or b[1] is None:
+    """Return a band ``(lo, hi)`` in Hz as ``lo to hi``."""
+    if b is None:
         return "n/a"
-    return f"{pretty(b[0], 'Hz')} to {pretty(b[1], 'Hz')}"
+    return format_band(b[0], b[1])
 
 
 def dimensionless(e) -> str:
-    """Q or D with its uncertainty, without SI prefixes (a D of 0.0176, not 17.6m)."""
+    """Q or D with its uncertainty, without SI prefixes (`zfit._units.format_dimensionless`)."""
     if e is None or e.value is None:
         return "n/a"
-    v, u = float(e.value), e.std
-    if not u or not math.isfinite(u) or u <= 0:
-        return f"{v:.4g}"
-    if 1.0 <= abs(v) < 1e4 or (1e-3 <= abs(v) < 1.0 and u >= 1e-7):
-        decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
-        return f"{v:.{decimals}f} ± {u:.{decimals}f}"
-    # A common power of ten (a multiple of 3) for both, the uncertainty to two
-    # digits and the value to the same place (GUM, JCGM 100:2008, 7.2.6).
-    e = int(math.floor(math.log10(abs(v) if v else u) / 3.0)) * 3
-    m, mu = v / 10.0**e, u / 10.0**e
-    decimals = min(max(0, 1 - int(math.floor(math.log10(mu)))), 9)
-    return f"({m:.{decimals}f} ± {mu:.{decimals}f})e{e}"
+    return format_dimensionless(e.value, e.std)
 
 
 def percent_std(v, u) -> str:
-    """A percentage with its uncertainty, both to the uncertainty's second digit (GUM 7.2.6); ``n/a`` for None."""
-    if v is None:
-        return "n/a"
-    if not u or not math.isfinite(u) or u <= 0:
-        return f"{v:.3g} %"
-    decimals = min(max(0, 1 - int(math.floor(math.log10(u)))), 9)
-    return f"{v:.{decimals}f} ± {u:.{decimals}f} %"
+    """A percentage with its uncertainty (`zfit._units.format_percent`); ``n/a`` for None."""
+    return format_percent(v, u)
 
 
 # ------------------------------------------------------------ terminal ---
@@ -178,30 +141,36 @@ def identification_summary(result) -> list[str]:
     else:
         val = format_value_std(srf.value_hz, srf.std_hz, "Hz")
         if srf.where == "in-band":
-            out.append(f"SRF:        {val}  (in band)")
+            out.append(f"SRF:        {val}  (in band{', where Im Z of the data changes sign' if srf.source == 'measurement' else ''})")
         elif srf.where == "above-band":
             out.append(f"SRF:        above {format_eng(srf.bound_hz, 'Hz')} (top of the band); the {srf.source} puts it at {val}")
         else:
             out.append(f"SRF:        below {format_eng(srf.bound_hz, 'Hz')} (bottom of the band); the {srf.source} puts it at {val}")
+        note = srf_model_note(result)
+        if note is not None:
+            out.append(f"            {note}")
     merit = result.figures
+    why = figure_model_notes(result)
     if merit.z_at_srf is not None:
-        out.append(f"|Z| at SRF: {format_value_std(merit.z_at_srf.value, merit.z_at_srf.std, 'ohm')}")
+        z = merit.z_at_srf
+        where = f" at {format_eng(z.f_hz, 'Hz')}  [{z.definition}]" if z.source == "measurement" else ""
+        out.append(f"|Z| at SRF: {format_value_std(z.value, z.std, 'ohm')}{where}")
+    if "z_at_srf" in why:
+        out.append(f"            {why['z_at_srf']}")
     if merit.q_peak is not None:
         out.append(
             f"Q peak:     {format_value_std(merit.q_peak.value, merit.q_peak.std)} at {format_eng(merit.q_peak.f_hz, 'Hz')}"
             f"  [{merit.q_peak.definition}]"
         )
-        if merit.q_model_at_q_peak is not None:
-            q = merit.q_model_at_q_peak
-            out.append(f"            {format_value_std(q.value, q.std)} there  [{q.definition}]")
+    if "q_peak" in why:
+        out.append(f"            {why['q_peak']}")
     if merit.esr_min is not None:
         out.append(f"ESR min:    {format_value_std(merit.esr_min.value, merit.esr_min.std, 'ohm')} at {format_eng(merit.esr_min.f_hz, 'Hz')}")
     if merit.d_at_f_min is not None:
         d = merit.d_at_f_min
         out.append(f"D:          {format_value_std(d.value, d.std)} at {format_eng(d.f_hz, 'Hz')}  [{d.definition}]")
-        if merit.d_model_at_f_min is not None:
-            dm = merit.d_model_at_f_min
-            out.append(f"            {format_value_std(dm.value, dm.std)} there  [{dm.definition}]")
+    if "d_at_f_min" in why:
+        out.append(f"            {why['d_at_f_min']}")
     band = fit.valid_band_hz
     whole = band[0] == fit.f_min_hz and band[1] == fit.f_max_hz
     out.append(
@@ -243,6 +212,63 @@ def identification_summary(result) -> list[str]:
                 f"{format_value_std(sp.Q.value, sp.Q.std):>16}  {format_value_std(sp.D.value, sp.D.std):>16}"
                 + ("" if sp.in_band else "  (outside the band)")
             )
+    return out
+
+
+#: Two estimates disagree when they differ by more than this many standard
+#: uncertainties of their difference (E_n > 1 with expanded uncertainties,
+#: k = 2; ISO 13528:2015, 9.7).
+DISAGREEMENT_K = 2.0
+
+
+def disagree(a: float | None, ua: float | None, b: float | None, ub: float | None) -> bool:
+    """Whether two estimates differ by more than `DISAGREEMENT_K` standard uncertainties of their difference."""
+    if a is None or b is None or not (math.isfinite(a) and math.isfinite(b)):
+        return False
+    u = math.hypot(ua or 0.0, ub or 0.0)
+    return abs(a - b) > DISAGREEMENT_K * u if u > 0 else a != b
+
+
+def srf_model_note(result) -> str | None:
+    """One line on the model's resonance when the SRF reported is the measured one, or None."""
+    srf = result.srf
+    if srf.source != "measurement" or srf.model_value_hz is None:
+        return None
+    model = f"the {srf.model_source} model's resonance, {format_value_std(srf.model_value_hz, srf.model_std_hz, 'Hz')},"
+    band = result.fit.valid_band_hz
+    if srf.model_source == "circuit" and not (band[0] <= srf.model_value_hz <= band[1]):
+        return f"{model} lies beyond the band where the circuit holds ({format_band(*band)})"
+    if srf.where == "in-band":
+        return f"{model} disagrees with the sign change of Im Z in the data"
+    return None
+
+
+def figure_model_notes(result) -> dict[str, str]:
+    """One line for each model figure that disagrees with the measured one it stands beside, saying why.
+
+    Keyed by the measured figure (``z_at_srf``, ``q_peak``, ``d_at_f_min``).
+    A datasheet's Q is the measured ``|X|/R``; the circuit's ``omega L /
+    R_s`` counts the winding resistance alone, so where the circuit has
+    further losses (a core-loss ``R_p``) or a ``C_p`` near the SRF it is
+    larger.  ``|Z|`` at the SRF is the measured point nearest it; a model's
+    value at the SRF itself rests on the losses the model puts there.
+    """
+    m = result.figures
+    others = [k for k in result.parameters if k not in ("L", "R_s", "C", "ESR")]
+    out = {}
+    z, zm = m.z_at_srf, m.z_model_at_srf
+    if z is not None and zm is not None and disagree(z.value, z.std, zm.value, zm.std):
+        out["z_at_srf"] = (f"the {zm.source} model gives {format_value_std(zm.value, zm.std, 'ohm')} at the SRF itself "
+                           f"({format_eng(zm.f_hz, 'Hz')}), where no point was measured")
+    q, qm = m.q_peak, m.q_model_at_q_peak
+    if q is not None and qm is not None and disagree(q.value, q.std, qm.value, qm.std):
+        leaves = f" and leaves out {' and '.join(others)}, which the measured |X|/R includes" if others else ""
+        out["q_peak"] = (f"omega L / R_s of the circuit there is {format_value_std(qm.value, qm.std)}: "
+                         f"it counts the winding resistance R_s alone{leaves}")
+    d, dm = m.d_at_f_min, m.d_model_at_f_min
+    if d is not None and dm is not None and disagree(d.value, d.std, dm.value, dm.std):
+        out["d_at_f_min"] = (f"the circuit's D there is {format_value_std(dm.value, dm.std)} ({dm.definition}): "
+                             "the measured R/|X| includes every loss of the part at that frequency")
     return out
 
 
@@ -305,8 +331,8 @@ def step_summary(result) -> list[str]:
         f"edges:        {result.edges} ({result.edges_rising} rising, {result.edges_falling} falling)",
         f"levels:       {format_eng(result.levels_v[0], 'V')} / {format_eng(result.levels_v[1], 'V')} (output)"
         # A histogram mode has no simple standard uncertainty; the samples' spread says how well it is known.
-        + f" [settled samples spread {format_eng(result.levels_noise_v[0], digits=2)} / "
-          f"{format_eng(result.levels_noise_v[1], 'V rms', digits=2)}]"
+        + f" [settled samples spread {format_eng(result.levels_noise_v[0], 'V', digits=2)} / "
+          f"{format_eng(result.levels_noise_v[1], 'V', digits=2)} rms]"
         + ("" if result.input_levels_v is None else
            f";  {format_eng(result.input_levels_v[0], 'V')} / {format_eng(result.input_levels_v[1], 'V')} (input)"),
         f"10-90 %:      {vs(result.transition_10_90_s, result.transition_10_90_std_s, 's')}",
@@ -315,6 +341,9 @@ def step_summary(result) -> list[str]:
         + (f"  [{result.time_constant_method}]" if result.time_constant_s is not None else ""),
         f"  cross-check {vs(result.midpoint_time_constant_s, result.midpoint_time_constant_std_s, 's')}  [low-to-midpoint time / ln 2]",
     ]
+    note = cross_check_note(result)
+    if note is not None:
+        out.append(f"              {note}")
     r = result.ringing
     if r is None:
         out.append("ringing:      none found")
@@ -337,6 +366,25 @@ def step_summary(result) -> list[str]:
     # The notes say why a figure is n/a (no settled states, no slow edge to fit).
     out.extend(f"note:         {n}" for n in result.notes)
     return out
+
+
+def cross_check_note(result) -> str | None:
+    """One line when the time constant and its cross-check differ beyond their uncertainties, or None.
+
+    The cross-check's uncertainty is its noise alone: the low-to-midpoint
+    time / ln 2 of an ideal single-pole record is off by about 1 %, often
+    many times that (tests/test_step.py, scipy.signal.lsim references), so
+    such a difference is reported, not warned about; beyond 10 % the
+    analysis warns that the response is not one time constant.
+    """
+    tau, u, mid, um = (result.time_constant_s, result.time_constant_std_s,
+                       result.midpoint_time_constant_s, result.midpoint_time_constant_std_s)
+    if not disagree(tau, u, mid, um):
+        return None
+    k = abs(mid - tau) / math.hypot(u or 0.0, um or 0.0) if (u or um) else math.inf
+    return (f"they differ by {100 * abs(mid - tau) / tau:.2g} % ({k:.2g} standard uncertainties of the difference): "
+            "the cross-check's uncertainty is its noise alone, not the bias of the midpoint method (about 1 % on an "
+            "ideal single-pole record); beyond 10 % the response is not one time constant")
 
 
 def response_csv(result) -> str:
@@ -373,7 +421,7 @@ INFO_SCHEMA = "zfit.info/1"
 def info_dict(sweep) -> dict:
     """Return the ``zfit.info/1`` JSON object describing `sweep`.
 
-    Keys: ``schema``, ``source``, ``data_format``, ``connection``,
+    Keys: ``schema``, ``zfit_version``, ``source``, ``data_format``, ``connection``,
     ``reference_ohm`` (null for impedance data), ``points``, ``f_min_hz``,
     ``f_max_hz``, ``z_min_ohm``, ``z_min_at_hz``, ``z_max_ohm``,
     ``z_max_at_hz``, ``noise_model`` (text), ``noise`` (``{"on": "S"|"Z",
@@ -397,8 +445,11 @@ def info_dict(sweep) -> dict:
     i_min, i_max = int(np.argmin(mag)), int(np.argmax(mag))
     warning = conditioning_note(sweep)
     noise = noise_block(sweep)
+    from .._version import __version__
+
     return {
         "schema": INFO_SCHEMA,
+        "zfit_version": __version__,
         "source": sweep.source,
         "data_format": sweep.data_format,
         "connection": sweep.connection,
