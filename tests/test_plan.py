@@ -245,11 +245,11 @@ def test_option_aliases_in_any_case_and_the_usage_line():
     r = CliRunner().invoke(app, ["plan", "inductor", "--l", "10u", "--c-p", "6.33p", "--r-s", "50m", "--points", "41",
                                  "--band", "10k:100M"])
     assert r.exit_code == 0, r.output
-    assert "L = 10u H" in r.output and "C_p = 6.33p F" in r.output and "R_s = 50m ohm" in r.output
+    assert "L = 10 µH" in r.output and "C_p = 6.33 pF" in r.output and "R_s = 50 mΩ" in r.output
     r = CliRunner().invoke(app, ["plan", "capacitor", "--c", "100n", "--esr", "5m", "--Esl", "500p", "--R-LEAK", "1G",
                                  "--points", "41"])
     assert r.exit_code == 0, r.output
-    assert "ESR = 5m ohm" in r.output and "R_leak = 1G ohm" in r.output
+    assert "ESR = 5 mΩ" in r.output and "R_leak = 1 GΩ" in r.output
     # The usage line names the required options; no typer placeholders in any help.
     r = CliRunner().invoke(app, ["plan", "inductor", "-h"])
     assert "plan inductor --L HENRY --C_p FARAD --R_s OHM [OPTIONS]" in r.output

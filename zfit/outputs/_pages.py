@@ -214,7 +214,7 @@ def _spot_table(result):
 #: measures them).
 SWEEP_PAGE_SIZES = {"sweep": (7.3, 3.7), "q": (3.6, 2.2), "esr_d": (3.6, 2.4)}
 #: The same on a capture's page, which holds the capture's plots too.
-CAPTURE_PAGE_SIZES = {"sweep": (7.3, 3.4)}
+CAPTURE_PAGE_SIZES = {"sweep": (7.3, 3.2)}
 
 
 def identification_report(result, command=None, *, netlist_text: str | None = None, sizes: dict | None = None,
@@ -407,7 +407,7 @@ def step_report(result, command=None, *, netlist_text: str | None = None):
     d = step_page_data(result)
     ident = d.get("identification")
     # Drawn at the size shown; with an impedance the page holds it too, so the capture's plots are shorter.
-    h_time, h_bode = (2.2, 2.2) if ident is not None else (2.9, 3.0)
+    h_time, h_bode = (2.1, 2.1) if ident is not None else (2.9, 3.0)
     plots = step_plots(result, titles=False, impedance=False, sizes={"time": (3.6, h_time), "bode": (3.6, h_bode)})
     capture_sections = []
     for key, title, cap in (

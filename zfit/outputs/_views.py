@@ -13,6 +13,7 @@ import math
 
 import numpy as np
 
+from ..fit._models import is_lumped
 from .._units import format_band, format_dimensionless, format_eng, format_percent, format_value_std
 
 __all__ = [
@@ -258,13 +259,18 @@ def figure_model_notes(result) -> dict[str, str]:
     out = {}
     z, zm = m.z_at_srf, m.z_model_at_srf
     if z is not None and zm is not None and disagree(z.value, z.std, zm.value, zm.std):
-        out["z_at_srf"] = (f"the {zm.source} model gives {format_value_std(zm.value, zm.std, 'ohm')} at the SRF itself "
-                           f"({format_eng(zm.f_hz, 'Hz')}), where no point was measured")
+        out["z_at_srf"] = (f"{format_value_std(zm.value, zm.std, 'ohm')} from the {zm.source} model at the SRF "
+                           "itself, where no point was measured")
     q, qm = m.q_peak, m.q_model_at_q_peak
     if q is not None and qm is not None and disagree(q.value, q.std, qm.value, qm.std):
-        leaves = f" and leaves out {' and '.join(others)}, which the measured |X|/R includes" if others else ""
-        out["q_peak"] = (f"omega L / R_s of the circuit there is {format_value_std(qm.value, qm.std)}: "
-                         f"it counts the winding resistance R_s alone{leaves}")
+        circuit = None if result.refinement is None else result.refinement.circuit
+        if circuit is not None and not is_lumped(circuit):
+            out["q_peak"] = (f"the model's winding alone has Q {format_value_std(qm.value, qm.std)} there "
+                             "(without its parallel C_p, which the measured |X|/R includes)")
+        else:
+            leaves = f", without {' and '.join(others)}" if others else ""
+            out["q_peak"] = (f"omega L / R_s of the circuit there is {format_value_std(qm.value, qm.std)} "
+                             f"(R_s alone{leaves})")
     d, dm = m.d_at_f_min, m.d_model_at_f_min
     if d is not None and dm is not None and disagree(d.value, d.std, dm.value, dm.std):
         out["d_at_f_min"] = (f"the circuit's D there is {format_value_std(dm.value, dm.std)} ({dm.definition}): "
