@@ -16,6 +16,7 @@ _COMMAND_MODULES = (
     "_step",
     "_identify",
     "_batch",
+    "_bias",
     "_plan",
     "_demo",
 )
