@@ -130,3 +130,14 @@ def test_limits_file_takes_bias_figures_and_batch_skips_them_for_one_sweep():
         parse_limits('model = "capacitor"\n[limit.I_sat_20]\nmin = "3A"\n')
     with pytest.raises(ZfitInputError, match="is in V, but this quantity is in A"):
         parse_limits('[limit.I_sat_20]\nmin = "3V"\n')
+
+
+def test_batch_with_a_bias_limit_checks_and_counts_only_the_sweep_figures(tmp_path):
+    from zfit.lot._run import run_batch
+
+    inductor_set(tmp_path / "s", currents=(0.0,))
+    lim = parse_limits('[limit.L]\nnominal = "10u"\ntolerance_percent = 5\n[limit.I_sat_20]\nmin = "1A"\n')
+    res = run_batch([str(tmp_path / "s")], tmp_path / "o", limits=lim, jobs=1, progress=False)
+    # L = 10 uH within 1 % of the model (see above), inside 10u +- 5 %: pass; I_sat_20 is not a sweep's figure.
+    assert [r.verdict for r in res.rows] == ["pass"]
+    assert [q.name for q in res.lot.quantities] == ["L"]

@@ -82,3 +82,19 @@ def test_mixed_families_and_a_wrong_bias_unit_are_named(sweeps, tmp_path):
     assert "C_4V.csv: identified as a capacitor, but " in r.output and "as a inductor" not in r.output
     r = _run(*files[:3], "--bias", "0,1,2", "--bias-unit", "V", "-o", tmp_path / "o2", "-q", "-j", "1")
     assert r.exit_code == 2 and "the sweeps are of an inductor, biased with a current (A), but the biases are in V" in r.output
+
+
+def test_manifest_errors_name_the_file_and_line(sweeps, tmp_path):
+    root, files = sweeps
+    man = tmp_path / "m.csv"
+    man.write_text("file,bias\n" + "".join(f"{p},{i:g}\n" for p, i in zip(files[:3], CURRENTS_A)))
+    r = _run("--manifest", man, "-o", tmp_path / "o", "-q")
+    assert r.exit_code == 2 and f"{man}:1: the unit of the bias column 'bias' is not stated" in r.output
+    r = _run(*files[:4], "--manifest", man, "--bias-unit", "A", "-o", tmp_path / "o", "-q")
+    assert r.exit_code == 2 and f"{files[3]}: not listed in the manifest" in r.output
+    man.write_text("file,bias (V)\n" + "".join(f"{p},{i:g}\n" for p, i in zip(files[:3], CURRENTS_A)))
+    r = _run("--manifest", man, "--bias-unit", "A", "-o", tmp_path / "o", "-q")
+    assert r.exit_code == 2 and "the bias column is in V but --bias-unit is A" in r.output
+    man.write_text("file,bias (A)\n" + f"{files[0]},0\n{files[1]},x\n{files[2]},1\n")
+    r = _run("--manifest", man, "-o", tmp_path / "o", "-q")
+    assert r.exit_code == 2 and f"{man}:3: " in r.output
