@@ -22,6 +22,7 @@ from ._common import (
     echo,
     guarded,
     quantity,
+    read_options,
 )
 
 #: What the set writes in --out besides each sweep's identify JSON.
@@ -80,7 +81,6 @@ def bias_command(
     from ..io._limits_file import read_limits
     from ..lot._bias_inputs import bias_points
     from ..lot._bias_set import run_bias_set
-    from ..lot._tasks import ReadOptions
     from ..outputs._bias_views import bias_text
 
     if plot_format not in ("png", "svg"):
@@ -97,12 +97,9 @@ def bias_command(
     check_writable(json_path, force)
     if plot:
         check_writable(plot_path, force)
-    read = ReadOptions(
-        connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns,
-        open_=None if open_ is None else str(Path(open_).resolve()),
-        short=None if short is None else str(Path(short).resolve()),
-        load=None if load is None else str(Path(load).resolve()),
-        load_value=load_value, port_delay=port_delay, port_loss=port_loss,
+    read = read_options(
+        connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns, open_=open_,
+        short=short, load=load, load_value=load_value, port_delay=port_delay, port_loss=port_loss,
     )
     result = run_bias_set(points, unit, out, model=model, read=read, jobs=jobs, cluster=cluster, limits=lim,
                           bias_rel_std=rel, force=force, progress=False if quiet else None)

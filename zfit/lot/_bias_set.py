@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import math
 import os
-import warnings
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Sequence
@@ -20,15 +19,14 @@ from typing import Sequence
 from .._atomic import check_writable
 from .._errors import ZfitInputError
 from .._parameters import BIAS_FIGURES
-from ..identification._bias_curve import BiasCurve, FallPoint, bias_curve, curve_band, fall_point
+from ..identification._bias_curve import BiasCurve, FallPoint, bias_curve, fall_point
 from ..io._limits_file import Limits
 from ._bias_inputs import BiasPoint
 from ._conformity import PartDecision, decide
-from ._executors import import_all, preload_modules, run_tasks
+from ._executors import local_jobs, run_parts
 from ._inputs import output_names
 from ._progress import Progress, Quiet
 from ._tasks import PartTask, ReadOptions
-from ._threads import blas_threads, restore_blas_threads
 
 __all__ = ["BiasRow", "BiasFigureValue", "BiasSet", "run_bias_set", "bias_set", "SCHEMA", "CURVE_FORM",
            "FAMILY_KEYS"]
@@ -277,10 +275,7 @@ def run_bias_set(points: Sequence[BiasPoint], unit: str, out, *, model: str = "a
         raise ZfitInputError(f"the biases are in {unit} but --model is {model}: "
                              f"{'an inductor is biased with a current (A)' if model == 'inductor' else 'a capacitor is biased with a voltage (V)'}")
     out = Path(out)
-    n_jobs = jobs if jobs is not None else (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
-                                             else (os.cpu_count() or 1))
-    if n_jobs < 1:
-        raise ZfitInputError(f"--jobs {n_jobs}: give 1 or more")
+    n_jobs = local_jobs(jobs)
     stems = output_names([(p.path, p.name) for p in points])
     tasks = [PartTask(i, str(p.path), p.name, str(out / (stem + ".json")), None, model, (), read or ReadOptions())
              for i, (p, stem) in enumerate(zip(points, stems))]
@@ -295,15 +290,7 @@ def run_bias_set(points: Sequence[BiasPoint], unit: str, out, *, model: str = "a
         progress.update(len(outs), sum(1 for o in outs if o.error))
 
     progress = Progress(len(tasks), label="zfit bias") if progress is None else (Quiet() if progress is False else progress)
-    blas = []
-    if cluster or n_jobs == 1 or len(tasks) == 1:
-        import_all(preload_modules())
-        blas = blas_threads(1)
-    try:
-        with warnings.catch_warnings():
-            run_tasks(tasks, cluster, n_jobs, on_done, progress)
-    finally:
-        restore_blas_threads(blas)
+    run_parts(tasks, cluster, n_jobs, on_done, progress)
     rows = []
     families: dict[str, str] = {}
     for t, p in zip(tasks, points):
