@@ -42,13 +42,14 @@ def bias_text(result) -> str:
         p = f.point
         pct = f"{round(result.fall_of(f.key) * 100)} %"
         if p.value is not None:
-            shown = format_value_std(p.value, p.std, unit)
+            shown = "= " + format_value_std(p.value, p.std, unit)
         elif p.bound is not None:
             shown = f"> {format_eng(p.bound, unit)} (not reached at the largest bias)"
         else:
             shown = "not resolved (fallen already at the lowest bias)"
-        check = "" if f.curve_value is None else f"; curve {format_value_std(f.curve_value, f.curve_std, unit)}"
-        lines.append(f"{f.key} ({v} down {pct}) = {shown}{check}")
+        where = "curve" if p.value is not None else "curve, extrapolated"
+        check = "" if f.curve_value is None else f"; {where} {format_value_std(f.curve_value, f.curve_std, unit)}"
+        lines.append(f"{f.key} ({v} down {pct}) {shown}{check}")
     if result.decision is not None:
         lines.append(f"verdict: {result.decision.verdict}")
         lines += [f"  {d.verdict}: {d.reason}" for d in result.decision.decisions]
