@@ -27,6 +27,8 @@ __all__ = [
     "RESOLUTION_KIND",
     "FAMILY_OF",
     "LOSS_MODEL_UNITS",
+    "BiasFigure",
+    "BIAS_FIGURES",
 ]
 
 
@@ -125,3 +127,44 @@ LOSS_MODEL_UNITS = MappingProxyType({
     "C": "F", "D": "", "ESR_0": "ohm", "ESL": "H",
     **{f"{k}_{i}": u for i in (1, 2, 3) for k, u in (("R", "ohm"), ("L", "H"), ("C", "F"))},
 })
+
+
+# --------------------------------------------------------------- bias figures
+
+
+@dataclass(frozen=True)
+class BiasFigure:
+    """A figure of a sweep set against DC bias (``zfit bias``, docs/bias.md).
+
+    Attributes
+    ----------
+    key : str
+        Its name in results, limits files and JSON (``"I_sat_20"``).
+    unit : str
+        SI unit of the bias (``"A"`` for inductors, ``"V"`` for capacitors).
+    family : {'inductor', 'capacitor'}
+        The kind of part it describes.
+    fall : float
+        The fall of L (or C) from its zero-bias value that defines it (0.2 = 20 %).
+    description : str
+        What it stands for, in words.
+    """
+
+    key: str
+    unit: str
+    family: str
+    fall: float
+    description: str
+
+
+_BIAS = (
+    BiasFigure("I_sat_10", "A", "inductor", 0.10, "DC current where L has fallen 10 % from zero bias"),
+    BiasFigure("I_sat_20", "A", "inductor", 0.20, "DC current where L has fallen 20 % from zero bias"),
+    BiasFigure("I_sat_30", "A", "inductor", 0.30, "DC current where L has fallen 30 % from zero bias"),
+    BiasFigure("V_bias_20", "V", "capacitor", 0.20, "DC voltage where C has fallen 20 % from zero bias"),
+    BiasFigure("V_bias_50", "V", "capacitor", 0.50, "DC voltage where C has fallen 50 % from zero bias"),
+)
+
+#: The figures of a bias set by key, per family in order of their fall.
+#: Kept apart from `PARAMETERS`: they describe a set of sweeps, not one circuit.
+BIAS_FIGURES = MappingProxyType({b.key: b for b in _BIAS})

@@ -17,6 +17,7 @@ _COMMAND_MODULES = (
     "_response",
     "_identify",
     "_batch",
+    "_bias",
     "_plan",
     "_demo",
     "_core",

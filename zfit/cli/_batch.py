@@ -22,6 +22,7 @@ from ._common import (
     echo,
     guarded,
     quantities,
+    read_options,
     warn_line,
 )
 
@@ -80,7 +81,6 @@ def batch_command(
     from ..data._sweep import FREQUENCY_RANGE_HZ
     from ..io._limits_file import read_limits
     from ..lot._run import run_batch
-    from ..lot._tasks import ReadOptions
 
     if model is not None and model not in ("auto", "inductor", "capacitor", "rational"):
         from .._errors import ZfitInputError
@@ -93,12 +93,9 @@ def batch_command(
         raise ZfitInputError(f"--jobs {jobs} is out of range: give 1 to 1024 worker processes")
     lim = read_limits(limits) if limits is not None else None
     report_path = _report_target(report, out, force) if report is not None else None
-    read = ReadOptions(
-        connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns,
-        open_=None if open_ is None else str(Path(open_).resolve()),
-        short=None if short is None else str(Path(short).resolve()),
-        load=None if load is None else str(Path(load).resolve()),
-        load_value=load_value, port_delay=port_delay, port_loss=port_loss,
+    read = read_options(
+        connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns, open_=open_,
+        short=short, load=load, load_value=load_value, port_delay=port_delay, port_loss=port_loss,
     )
     result = run_batch(
         inputs, out, limits=lim, model=model, at=quantities(at, "--at", *FREQUENCY_RANGE_HZ, unit="Hz"), read=read, jobs=jobs,

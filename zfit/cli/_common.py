@@ -339,3 +339,20 @@ def sweep_from_options(*args, **kwargs):
     from ..io._prepared import prepared_sweep
 
     return prepared_sweep(*args, **kwargs)
+
+
+def read_options(*, connection=None, noise_rel=None, noise_floor=None, columns=None, open_=None, short=None,
+                 load=None, load_value=None, port_delay=None, port_loss=None):
+    """Return the lot's `ReadOptions` for the shared reading options of a command that runs many sweeps.
+
+    The fixture files are made absolute, so that a worker (another process,
+    a Dask worker) finds them whatever its working folder.
+    """
+    from ..lot._tasks import ReadOptions
+
+    absolute = lambda p: None if p is None else str(Path(p).resolve())  # noqa: E731
+    return ReadOptions(
+        connection=connection, noise_rel=noise_rel, noise_floor=noise_floor, columns=columns,
+        open_=absolute(open_), short=absolute(short), load=absolute(load),
+        load_value=load_value, port_delay=port_delay, port_loss=port_loss,
+    )

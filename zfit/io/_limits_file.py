@@ -21,6 +21,9 @@ layout of zfit's own, described in ``docs/batch.md``::
     at = "1M"
     min = 150
 
+    [limit.I_sat_20]            # a figure of a sweep set against DC bias (docs/bias.md)
+    min = "3A"
+
 A lot of wound cores adds a ``[core]`` table (turns and geometry, the
 options of ``zfit core``) and may then limit the material figures ``mu_i``,
 ``f_mu_peak``, ``f_mu_cross`` and ``loss_factor`` (at a frequency); a lot
@@ -41,7 +44,7 @@ from pathlib import Path
 from .._errors import ZfitInputError
 from .._units import bounded, format_eng, parse_quantity, written_unit
 from ..data._sweep import ELEMENT_RANGES, FREQUENCY_RANGE_HZ
-from .._parameters import FAMILY_OF, PARAMETER_KEYS, UNITS
+from .._parameters import BIAS_FIGURES, FAMILY_OF, PARAMETER_KEYS, UNITS
 from ._core_spec import CORE_TABLE_KEYS, CoreSpec, core_spec
 
 __all__ = [
@@ -129,6 +132,11 @@ class Limit:
     def is_spot(self) -> bool:
         """Whether the limit is on a figure at a frequency."""
         return self.f_hz is not None
+
+    @property
+    def is_bias(self) -> bool:
+        """Whether the limit is on a figure of a sweep set against DC bias (``I_sat_20``)."""
+        return self.quantity in BIAS_FIGURES
 
 
 @dataclass(frozen=True)
@@ -321,10 +329,16 @@ def _one_limit(quantity: str, table, occurrence: int, lines: _Lines,
             raise where_for()(f"{quantity} is {article} {family} parameter but the file is for model {model!r}")
     elif quantity == "SRF":
         unit = "Hz"
+    elif quantity in BIAS_FIGURES:
+        unit = BIAS_FIGURES[quantity].unit
+        if model is not None and BIAS_FIGURES[quantity].family != model:
+            family = BIAS_FIGURES[quantity].family
+            article = "an" if family[0] in "aeiou" else "a"
+            raise where_for()(f"{quantity} is {article} {family} bias figure but the file is for model {model!r}")
     elif quantity in SPOT_UNITS:
         raise where_for()(f"{quantity} is read at a frequency: give at = \"1M\" (say)")
     else:
-        known = ", ".join([*UNITS, "SRF", *(q + " (with at)" for q in SPOT_UNITS if q != "ESR")])
+        known = ", ".join([*UNITS, "SRF", *(q + " (with at)" for q in SPOT_UNITS if q != "ESR"), *BIAS_FIGURES])
         raise where_for()(f"unknown quantity {quantity!r}; limits can name {known}")
 
     k = default_k

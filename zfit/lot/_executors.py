@@ -7,13 +7,16 @@ batch of outcomes, in whatever order they finish; the run sorts them.
 from __future__ import annotations
 
 import math
+import os
 import threading
+import warnings
 
 from .._errors import ZfitInputError
 from ._tasks import PartOutcome
+from ._threads import blas_threads, restore_blas_threads
 from ._worker import identify_chunk, identify_part, worker_init
 
-__all__ = ["run_tasks", "preload_modules", "import_all"]
+__all__ = ["run_tasks", "run_parts", "local_jobs", "preload_modules", "import_all"]
 
 
 def _chunks(tasks: list, size: int) -> list[list]:
@@ -176,3 +179,32 @@ def run_tasks(todo, cluster, n_jobs, on_done, progress) -> str:
         return f"{n} local processes"
     finally:
         progress.close()
+
+
+def local_jobs(jobs: int | None) -> int:
+    """Return the number of local worker processes: `jobs`, or all the cores this process may use."""
+    n = jobs if jobs is not None else (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
+                                       else (os.cpu_count() or 1))
+    if n < 1:
+        raise ZfitInputError(f"--jobs {n}: give 1 or more")
+    return n
+
+
+def run_parts(todo, cluster, n_jobs, on_done, progress) -> str:
+    """Run the parts as `run_tasks` does, with the thread and warning settings of this process put back.
+
+    The workers route warnings to their parts (see `zfit.lot._warning_routing`); in
+    this process that changes the warning filters, which are put back here.
+    One BLAS thread for the parts run in this process (and in Dask threads
+    here); put back afterwards.  Worker processes set theirs at start.
+    """
+    blas = []
+    if todo and (cluster or n_jobs == 1 or len(todo) == 1):
+        # numpy and scipy each load their own OpenBLAS: import them first.
+        import_all(preload_modules())
+        blas = blas_threads(1)
+    try:
+        with warnings.catch_warnings():
+            return run_tasks(todo, cluster, n_jobs, on_done, progress)
+    finally:
+        restore_blas_threads(blas)

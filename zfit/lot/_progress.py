@@ -22,9 +22,13 @@ class Progress:
         Draw a bar (default: whether `stream` is a terminal).
     interval : float
         Seconds between plain log lines (bar redraws are 10 per second).
+    label : str
+        The command the log lines name.
     """
 
-    def __init__(self, total: int, stream=None, tty: bool | None = None, interval: float = 5.0):
+    def __init__(self, total: int, stream=None, tty: bool | None = None, interval: float = 5.0,
+                 label: str = "zfit batch"):
+        self.label = label
         self.total = int(total)
         self.stream = sys.stderr if stream is None else stream
         self.tty = bool(getattr(self.stream, "isatty", lambda: False)()) if tty is None else tty
@@ -78,7 +82,7 @@ class Progress:
                 self._drawn = True
         elif force or now - self._last >= self.interval or self.done == self.total:
             self._last = now
-            self._write(f"zfit batch: {self._status()}\n")
+            self._write(f"{self.label}: {self._status()}\n")
 
     def skip(self, n: int):
         """Count `n` parts whose earlier result is reused.

@@ -12,7 +12,6 @@ from __future__ import annotations
 import hashlib
 import os
 import time
-import warnings
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Sequence
@@ -20,7 +19,7 @@ from typing import Sequence
 from .._atomic import write_atomic
 from .._errors import ZfitInputError
 from ..io._limits_file import Limits
-from ._executors import import_all, preload_modules, run_tasks
+from ._executors import local_jobs, run_parts
 from ._inputs import expand_inputs, output_names
 from ._lot_files import LOT_CSV_NAME, LOT_JSON_NAME, SUMMARY_NAME, lot_csv_text, lot_json_text, summary_csv_text
 from ._manifest import MANIFEST_NAME, manifest_text, read_manifest
@@ -29,7 +28,6 @@ from ._reuse import input_key, read_options_digest, reusable_summary
 from ._rows import part_row
 from ._statistics import LotSummary, lot_summary
 from ._tasks import PartOutcome, PartTask, ReadOptions
-from ._threads import blas_threads, restore_blas_threads
 
 __all__ = ["BatchResult", "run_batch"]
 
@@ -139,10 +137,7 @@ def run_batch(
         batch's own (`zfit.lot._manifest`), and `force` is false.
     """
     t0 = time.perf_counter()
-    n_jobs = jobs if jobs is not None else (len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity")
-                                             else (os.cpu_count() or 1))
-    if n_jobs < 1:
-        raise ZfitInputError(f"--jobs {n_jobs}: give 1 or more")
+    n_jobs = local_jobs(jobs)
     out = Path(out)
     items = expand_inputs(inputs, exclude=out)
     if model is None:
@@ -216,24 +211,12 @@ def run_batch(
                 manifest.remove_owned(p for p in task.output_paths() if p not in done)
         progress.update(len(outs), bad)
 
-    # The workers route warnings to their parts (see `zfit.lot._warning_routing`); in
-    # this process that changes the warning filters, which are put back here.
-    # One BLAS thread for the parts run in this process (and in Dask threads
-    # here); put back afterwards.  Worker processes set theirs at start.
-    blas = []
-    if todo and (cluster or n_jobs == 1 or len(todo) == 1):
-        # numpy and scipy each load their own OpenBLAS: import them first.
-        import_all(preload_modules())
-        blas = blas_threads(1)
     try:
-        with warnings.catch_warnings():
-            workers = run_tasks(todo, cluster, n_jobs, on_done, progress)
+        workers = run_parts(todo, cluster, n_jobs, on_done, progress)
     except BaseException:
         # Interrupted: keep what is done, so that a rerun resumes from it.
         _write_quietly(manifest_path, manifest_text(manifest))
         raise
-    finally:
-        restore_blas_threads(blas)
 
     rows = tuple(part_row(outcomes[t.index], limits) for t in tasks)
     lot = lot_summary(rows, limits)

@@ -211,7 +211,10 @@ def lot_summary(rows: Sequence[PartRow], limits: Limits | None = None) -> LotSum
     for r in rows:
         verdicts[r.verdict] = verdicts.get(r.verdict, 0) + 1
     if limits is not None:
-        targets = [(lim.name, lim) for lim in limits.limits]
+        # A bias figure (``I_sat_20``) belongs to a set of sweeps (`zfit bias`): the
+        # decision rule passes over it where no part has it, and so do the statistics.
+        targets = [(lim.name, lim) for lim in limits.limits
+                   if not lim.is_bias or any(lim.name in r.figures for r in rows)]
     else:
         keys = {k for r in rows for k in r.figures if k in PARAMETERS}
         targets = [(k, None) for k in PARAMETERS if k in keys]
