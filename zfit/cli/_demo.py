@@ -1,9 +1,11 @@
 """``zfit demo``: the whole job, end to end, on the invented bench files in demo_sweeps/.
 
-Four parts of an invented incoming-inspection bench: an inductor measured
+Seven parts of an invented incoming-inspection bench: an inductor measured
 series-thru, a capacitor measured shunt-thru, a choke whose winding has a
-second resonance, and a coil captured on an oscilloscope through a sense
-resistor.  Each is identified exactly as ``zfit identify`` / ``zfit step``
+second resonance, a coil captured on an oscilloscope through a sense
+resistor, and three parts whose losses depend on frequency (a coil with a
+skin-effect winding, an aluminium electrolytic with a constant loss
+tangent, a ferrite-core inductor whose permeability relaxes).  Each is identified exactly as ``zfit identify`` / ``zfit step``
 would do it; the tables are printed, and the JSON, plots, SPICE netlists,
 Touchstone files and one-page reports are written into one folder, with an
 index page.
@@ -67,6 +69,16 @@ PARTS = (
     DemoPart("L-0233_4m7H_capture", "L-0233: 4.7 mH coil from an oscilloscope capture", "coil_4m7_square_1k.csv", "capture",
              ("--input", "CH1", "--output", "CH2", "--shunt", "1k"),
              "no analyser: a square wave through the coil and a 1 kohm sense resistor"),
+    DemoPart("L-0455_33uH_skin", "L-0455: 33 µH air-cored coil with a skin-effect winding", "coil_33u_skin_analyser.csv",
+             "sweep", ("--at", "100k", "--at", "1M"),
+             "the winding resistance rises as sqrt(f): the skin-effect model is chosen over the lumped circuit, "
+             "and the band where it holds within the noise is stated"),
+    DemoPart("C-0520_220uF_electrolytic", "C-0520: 220 µF aluminium electrolytic", "cap_220u_electrolytic_shunt_thru.s2p",
+             "sweep", ("--connection", "shunt-thru", "--at", "120", "--at", "100k"),
+             "a constant loss tangent: ESR falls as D/(omega C) to a plateau; D at 120 Hz from the measurement"),
+    DemoPart("L-0731_220uH_ferrite", "L-0731: 220 µH ferrite-core inductor", "ind_220u_ferrite_analyser.csv", "sweep",
+             ("--at", "100k", "--at", "3M"),
+             "the core's permeability relaxes (Debye): L falls 33-fold above 600 kHz while its loss peaks"),
 )
 
 
@@ -226,13 +238,15 @@ def demo_command(
     sweeps: Optional[Path] = typer.Option(None, "--sweeps", help="The demo files' folder (default: demo_sweeps/ of the checkout)."),
     force: bool = typer.Option(False, "--force", help="Write into --out even if it holds files (replacing the demo's own)."),
     part: Optional[list[str]] = typer.Option(None, "--part", help="Run only this part (its file stem, e.g. C-0342_100nF); "
-                                             "repeatable. Default: all four."),
+                                             "repeatable. Default: all of them."),
 ):
     """Run zfit end to end on the invented bench files of demo_sweeps/.
 
     Identifies an inductor measured series-thru, a capacitor measured
-    shunt-thru, a choke with a second resonance and a coil captured on an
-    oscilloscope through a sense resistor; prints each table and the command
+    shunt-thru, a choke with a second resonance, a coil captured on an
+    oscilloscope through a sense resistor, and three parts with
+    frequency-dependent losses (skin-effect coil, electrolytic, ferrite-core
+    inductor); runs a lot against limits with its report; prints each table and the command
     that reproduces it, and writes JSON, plots, SPICE netlists, Touchstone
     files and one-page HTML reports into one folder, named at the end.
 
@@ -322,16 +336,23 @@ def _demo_lot(folder: Path, force: bool) -> int:
     from .._atomic import write_atomic
 
     limits_path = write_atomic(lot / "limits.toml", LOT_LIMITS, force=True)
-    cmd = f"zfit batch {lot / 'sweeps'} --out {lot} --limits {limits_path} --connection shunt-thru"
+    report = lot / "lot-report.html"
+    cmd = (f"zfit batch {lot / 'sweeps'} --out {lot} --limits {limits_path} --connection shunt-thru "
+           f"--report {report}")
     echo("=== lot  C-0342: twelve 100 nF capacitors of one reel against incoming-inspection limits")
     echo("    (a lot: a verdict per part with guarded acceptance, the lot's statistics and Cpk)")
     echo(f"$ {cmd}")
-    result = run_batch([lot / "sweeps"], lot, limits=parse_limits(LOT_LIMITS, str(limits_path)),
-                       read=ReadOptions(connection="shunt-thru"), jobs=1, force=force, progress=False)
+    limits = parse_limits(LOT_LIMITS, str(limits_path))
+    result = run_batch([lot / "sweeps"], lot, limits=limits, read=ReadOptions(connection="shunt-thru"), jobs=1,
+                       force=force, progress=False)
     for line in verdict_lines(result.rows):
         echo(line)
     echo(lot_text(result.lot))
-    echo(f"wrote {lot}/ (summary.csv, lot.csv, lot.json and a JSON per part)")
+    # The lot report as `zfit batch --report` writes it (recorded in the lot's manifest).
+    from ._batch import _write_report
+
+    _write_report(report, result, limits, lot, command=cmd)
+    echo(f"wrote {lot}/ (summary.csv, lot.csv, lot.json, lot-report.html and a JSON per part)")
     echo()
     return len(parts) + 1 + sum(1 for p in lot.iterdir() if p.is_file() and not p.name.startswith("."))
 
