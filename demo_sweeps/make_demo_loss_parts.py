@@ -129,7 +129,7 @@ def main():
         "Part: sample L-0455, 33 uH air-cored filter coil, 0.5 mm copper (invented); OSC level 0.5 V; "
         "open/short compensated",
     ])
-    written.append(("coil_33u_skin_analyser.csv", text))
+    written.append(("ind_33u_skin_analyser.csv", text))
 
     f = np.geomspace(20, 20e6, 241)
     z = electrolytic(f)

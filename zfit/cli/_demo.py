@@ -69,7 +69,7 @@ PARTS = (
     DemoPart("L-0233_4m7H_capture", "L-0233: 4.7 mH coil from an oscilloscope capture", "coil_4m7_square_1k.csv", "capture",
              ("--input", "CH1", "--output", "CH2", "--shunt", "1k"),
              "no analyser: a square wave through the coil and a 1 kohm sense resistor"),
-    DemoPart("L-0455_33uH_skin", "L-0455: 33 µH air-cored coil with a skin-effect winding", "coil_33u_skin_analyser.csv",
+    DemoPart("L-0455_33uH_skin", "L-0455: 33 µH air-cored coil with a skin-effect winding", "ind_33u_skin_analyser.csv",
              "sweep", ("--at", "100k", "--at", "1M"),
              "the winding resistance rises as sqrt(f): the skin-effect model is chosen over the lumped circuit, "
              "and the band where it holds within the noise is stated"),
