@@ -119,36 +119,38 @@ def touchstone_two_port(f, s11, s21, header):
     return "\n".join(out) + "\n"
 
 
+def analyser_file(f, z, rng, part):
+    """The impedance analyser bench's |Z|-phase export of `z`, `part` the header line naming the sample."""
+    return zphase_table(f, analyser_reading(f, z, rng), [
+        "Larkspur Yard power electronics, impedance analyser bench (invented)",
+        f"Part: {part}; open/short compensated",
+    ])
+
+
 def main():
     rng = np.random.default_rng(SEED)
     written = []
 
     f = np.geomspace(40, 30e6, 241)
-    text = zphase_table(f, analyser_reading(f, skin_effect_coil(f), rng), [
-        "Larkspur Yard power electronics, impedance analyser bench (invented)",
-        "Part: sample L-0455, 33 uH air-cored filter coil, 0.5 mm copper (invented); OSC level 0.5 V; "
-        "open/short compensated",
-    ])
-    written.append(("ind_33u_skin_analyser.csv", text))
+    written.append(("ind_33u_skin_analyser.csv", analyser_file(
+        f, skin_effect_coil(f), rng,
+        "sample L-0455, 33 uH air-cored filter coil, 0.5 mm copper (invented); OSC level 0.5 V")))
 
     f = np.geomspace(20, 20e6, 241)
     z = electrolytic(f)
     s11, s21 = calibrated_two_port(-Z0 / (2 * z + Z0), 2 * z / (2 * z + Z0))
-    text = touchstone_two_port(f, trace_noise(s11, rng), trace_noise(s21, rng), [
-        "Larkspur Yard power electronics, low-frequency network analyser, EMI filter bench (invented)",
-        "Part: sample C-0520, 220 uF 35 V aluminium electrolytic, radial (invented); no DC bias",
-        "Fixture: shunt-thru, part from the through line to ground; full two-port calibration at the fixture",
-        "Discharge capacitors before connecting them to the analyser.",
-    ])
-    written.append(("cap_220u_electrolytic_shunt_thru.s2p", text))
+    written.append(("cap_220u_electrolytic_shunt_thru.s2p", touchstone_two_port(
+        f, trace_noise(s11, rng), trace_noise(s21, rng), [
+            "Larkspur Yard power electronics, low-frequency network analyser, EMI filter bench (invented)",
+            "Part: sample C-0520, 220 uF 35 V aluminium electrolytic, radial (invented); no DC bias",
+            "Fixture: shunt-thru, part from the through line to ground; full two-port calibration at the fixture",
+            "Discharge capacitors before connecting them to the analyser.",
+        ])))
 
     f = np.geomspace(100, 40e6, 241)
-    text = zphase_table(f, analyser_reading(f, ferrite_core_inductor(f), rng), [
-        "Larkspur Yard power electronics, impedance analyser bench (invented)",
-        "Part: sample L-0731, 220 uH ferrite drum-core inductor (invented); OSC level 0.2 V; "
-        "open/short compensated",
-    ])
-    written.append(("ind_220u_ferrite_analyser.csv", text))
+    written.append(("ind_220u_ferrite_analyser.csv", analyser_file(
+        f, ferrite_core_inductor(f), rng,
+        "sample L-0731, 220 uH ferrite drum-core inductor (invented); OSC level 0.2 V")))
 
     for name, text in written:
         (HERE / name).write_text(text, encoding="utf-8", newline="\n")

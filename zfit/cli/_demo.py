@@ -5,10 +5,11 @@ series-thru, a capacitor measured shunt-thru, a choke whose winding has a
 second resonance, a coil captured on an oscilloscope through a sense
 resistor, and three parts whose losses depend on frequency (a coil with a
 skin-effect winding, an aluminium electrolytic with a constant loss
-tangent, a ferrite-core inductor whose permeability relaxes).  Each is identified exactly as ``zfit identify`` / ``zfit step``
-would do it; the tables are printed, and the JSON, plots, SPICE netlists,
-Touchstone files and one-page reports are written into one folder, with an
-index page.
+tangent, a ferrite-core inductor whose permeability relaxes).  Each is
+identified exactly as ``zfit identify`` / ``zfit step`` would do it; the
+tables are printed, and the JSON, plots, SPICE netlists, Touchstone files
+and one-page reports are written into one folder, with an index page; a lot
+of capacitors is run against limits with its lot report.
 """
 
 from __future__ import annotations
@@ -246,9 +247,10 @@ def demo_command(
     shunt-thru, a choke with a second resonance, a coil captured on an
     oscilloscope through a sense resistor, and three parts with
     frequency-dependent losses (skin-effect coil, electrolytic, ferrite-core
-    inductor); runs a lot against limits with its report; prints each table and the command
-    that reproduces it, and writes JSON, plots, SPICE netlists, Touchstone
-    files and one-page HTML reports into one folder, named at the end.
+    inductor); runs a lot against limits with its report; prints each
+    table and the command that reproduces it, and writes JSON, plots, SPICE
+    netlists, Touchstone files and one-page HTML reports into one folder,
+    named at the end.
 
     Safety: the demo touches no instrument.  On the bench, discharge
     capacitors before connecting them, and remember that an oscilloscope's
