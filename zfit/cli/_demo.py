@@ -15,6 +15,7 @@ of capacitors is run against limits with its lot report.
 from __future__ import annotations
 
 import json
+import sys
 import time
 from dataclasses import dataclass
 from pathlib import Path
@@ -274,7 +275,7 @@ def demo_command(
         chosen = tuple(known[name] for name in dict.fromkeys(part))
     folder = _fresh_folder(out, force)
     folder.mkdir(parents=True, exist_ok=True)
-    jobs = _run_all(chosen, src, folder, force)
+    jobs, lot = _run_all(chosen, src, folder, force, with_lot=whole_job)
     rows = []
     n_files = 0
     for k, (part, job) in enumerate(zip(chosen, jobs), 1):
@@ -290,7 +291,8 @@ def demo_command(
         n_files += len(job["written"])
         rows.append((part, None, job["headline"], job["command"]))
     if whole_job:  # the whole job: a lot against limits, and a plan before the next part is measured
-        n_files += _demo_lot(folder, force)
+        sys.stdout.write(lot["text"])
+        n_files += lot["files"]
         _demo_plan()
     from .._atomic import write_atomic
     from ..outputs._report import Report
@@ -384,15 +386,27 @@ def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
     }
 
 
-def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
-    """Run the parts, two at a time where the machine has the cores."""
+def _lot_job(folder: Path, force: bool) -> dict:
+    """Run the demo lot and return what it prints and its file count (picklable, for a worker)."""
+    import contextlib
+    import io
+
+    buf = io.StringIO()
+    with contextlib.redirect_stdout(buf):
+        files = _demo_lot(folder, force)
+    return {"text": buf.getvalue(), "files": files}
+
+
+def _run_all(parts, sweeps: Path, folder: Path, force: bool, with_lot: bool = False) -> tuple:
+    """Run the parts (and the lot), two at a time where the machine has the cores; return (part jobs, lot job)."""
     import multiprocessing
     import os
     from concurrent.futures import ProcessPoolExecutor
 
-    workers = min(2, os.cpu_count() or 1, len(parts))
+    workers = min(2, os.cpu_count() or 1, len(parts) + with_lot)
     if workers < 2 or "fork" not in multiprocessing.get_all_start_methods():
-        return [_part_job(p, sweeps, folder, force) for p in parts]
+        jobs = [_part_job(p, sweeps, folder, force) for p in parts]
+        return jobs, _lot_job(folder, force) if with_lot else None
     # Import the heavy parts once, before the fork, so the workers start warm.
     import matplotlib  # noqa: F401
 
@@ -401,8 +415,9 @@ def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
     from ..outputs import _plots  # noqa: F401
 
     matplotlib.use("Agg")
-    # The slowest parts first, so the two workers finish together.
+    # The lot and the slowest parts first, so the two workers finish together.
     order = sorted(range(len(parts)), key=lambda i: parts[i].kind != "capture")
     with ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork")) as pool:
+        lot = pool.submit(_lot_job, folder, force) if with_lot else None
         futures = {i: pool.submit(_part_job, parts[i], sweeps, folder, force) for i in order}
-        return [futures[i].result() for i in range(len(parts))]
+        return [futures[i].result() for i in range(len(parts))], lot.result() if lot is not None else None
