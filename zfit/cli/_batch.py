@@ -156,7 +156,7 @@ def _inside(path: Path, folder: Path) -> bool:
     return True
 
 
-def _write_report(path: Path, result, limits, out: Path) -> None:
+def _write_report(path: Path, result, limits, out: Path, command: str | None = None) -> None:
     import hashlib
 
     from .._atomic import write_atomic
@@ -167,7 +167,7 @@ def _write_report(path: Path, result, limits, out: Path) -> None:
     from ..lot._lot_files import DECISION_RULE, MEASUREMENT_LIMITED_RULE
 
     text = lot_report_html(result.rows, result.lot, limits, decision_rule=DECISION_RULE,
-                           limited_rule=MEASUREMENT_LIMITED_RULE, command=command_line())
+                           limited_rule=MEASUREMENT_LIMITED_RULE, command=command or command_line())
     write_atomic(path, text, force=True)  # checked before the run (_report_target)
     if _inside(path, out):
         manifest = read_manifest(out, force=True)

@@ -1,17 +1,21 @@
 """``zfit demo``: the whole job, end to end, on the invented bench files in demo_sweeps/.
 
-Four parts of an invented incoming-inspection bench: an inductor measured
+Seven parts of an invented incoming-inspection bench: an inductor measured
 series-thru, a capacitor measured shunt-thru, a choke whose winding has a
-second resonance, and a coil captured on an oscilloscope through a sense
-resistor.  Each is identified exactly as ``zfit identify`` / ``zfit step``
-would do it; the tables are printed, and the JSON, plots, SPICE netlists,
-Touchstone files and one-page reports are written into one folder, with an
-index page.
+second resonance, a coil captured on an oscilloscope through a sense
+resistor, and three parts whose losses depend on frequency (a coil with a
+skin-effect winding, an aluminium electrolytic with a constant loss
+tangent, a ferrite-core inductor whose permeability relaxes).  Each is
+identified exactly as ``zfit identify`` / ``zfit step`` would do it; the
+tables are printed, and the JSON, plots, SPICE netlists, Touchstone files
+and one-page reports are written into one folder, with an index page; a lot
+of capacitors is run against limits with its lot report.
 """
 
 from __future__ import annotations
 
 import json
+import sys
 import time
 from dataclasses import dataclass
 from pathlib import Path
@@ -67,6 +71,16 @@ PARTS = (
     DemoPart("L-0233_4m7H_capture", "L-0233: 4.7 mH coil from an oscilloscope capture", "coil_4m7_square_1k.csv", "capture",
              ("--input", "CH1", "--output", "CH2", "--shunt", "1k"),
              "no analyser: a square wave through the coil and a 1 kohm sense resistor"),
+    DemoPart("L-0455_33uH_skin", "L-0455: 33 µH air-cored coil with a skin-effect winding", "ind_33u_skin_analyser.csv",
+             "sweep", ("--at", "100k", "--at", "1M"),
+             "the winding resistance rises as sqrt(f): the skin-effect model is chosen over the lumped circuit, "
+             "and the band where it holds within the noise is stated"),
+    DemoPart("C-0520_220uF_electrolytic", "C-0520: 220 µF aluminium electrolytic", "cap_220u_electrolytic_shunt_thru.s2p",
+             "sweep", ("--connection", "shunt-thru", "--at", "120", "--at", "100k"),
+             "a constant loss tangent: ESR falls as D/(omega C) to a plateau; D at 120 Hz from the measurement"),
+    DemoPart("L-0731_220uH_ferrite", "L-0731: 220 µH ferrite-core inductor", "ind_220u_ferrite_analyser.csv", "sweep",
+             ("--at", "100k", "--at", "3M"),
+             "the core's permeability relaxes (Debye): L falls 33-fold above 600 kHz while its loss peaks"),
 )
 
 
@@ -226,15 +240,18 @@ def demo_command(
     sweeps: Optional[Path] = typer.Option(None, "--sweeps", help="The demo files' folder (default: demo_sweeps/ of the checkout)."),
     force: bool = typer.Option(False, "--force", help="Write into --out even if it holds files (replacing the demo's own)."),
     part: Optional[list[str]] = typer.Option(None, "--part", help="Run only this part (its file stem, e.g. C-0342_100nF); "
-                                             "repeatable. Default: all four."),
+                                             "repeatable. Default: all of them."),
 ):
     """Run zfit end to end on the invented bench files of demo_sweeps/.
 
     Identifies an inductor measured series-thru, a capacitor measured
-    shunt-thru, a choke with a second resonance and a coil captured on an
-    oscilloscope through a sense resistor; prints each table and the command
-    that reproduces it, and writes JSON, plots, SPICE netlists, Touchstone
-    files and one-page HTML reports into one folder, named at the end.
+    shunt-thru, a choke with a second resonance, a coil captured on an
+    oscilloscope through a sense resistor, and three parts with
+    frequency-dependent losses (skin-effect coil, electrolytic, ferrite-core
+    inductor); runs a lot against limits with its report; prints each
+    table and the command that reproduces it, and writes JSON, plots, SPICE
+    netlists, Touchstone files and one-page HTML reports into one folder,
+    named at the end.
 
     Safety: the demo touches no instrument.  On the bench, discharge
     capacitors before connecting them, and remember that an oscilloscope's
@@ -258,7 +275,7 @@ def demo_command(
         chosen = tuple(known[name] for name in dict.fromkeys(part))
     folder = _fresh_folder(out, force)
     folder.mkdir(parents=True, exist_ok=True)
-    jobs = _run_all(chosen, src, folder, force)
+    jobs, lot = _run_all(chosen, src, folder, force, with_lot=whole_job)
     rows = []
     n_files = 0
     for k, (part, job) in enumerate(zip(chosen, jobs), 1):
@@ -274,7 +291,8 @@ def demo_command(
         n_files += len(job["written"])
         rows.append((part, None, job["headline"], job["command"]))
     if whole_job:  # the whole job: a lot against limits, and a plan before the next part is measured
-        n_files += _demo_lot(folder, force)
+        sys.stdout.write(lot["text"])
+        n_files += lot["files"]
         _demo_plan()
     from .._atomic import write_atomic
     from ..outputs._report import Report
@@ -322,16 +340,23 @@ def _demo_lot(folder: Path, force: bool) -> int:
     from .._atomic import write_atomic
 
     limits_path = write_atomic(lot / "limits.toml", LOT_LIMITS, force=True)
-    cmd = f"zfit batch {lot / 'sweeps'} --out {lot} --limits {limits_path} --connection shunt-thru"
+    report = lot / "lot-report.html"
+    cmd = (f"zfit batch {lot / 'sweeps'} --out {lot} --limits {limits_path} --connection shunt-thru "
+           f"--report {report}")
     echo("=== lot  C-0342: twelve 100 nF capacitors of one reel against incoming-inspection limits")
     echo("    (a lot: a verdict per part with guarded acceptance, the lot's statistics and Cpk)")
     echo(f"$ {cmd}")
-    result = run_batch([lot / "sweeps"], lot, limits=parse_limits(LOT_LIMITS, str(limits_path)),
-                       read=ReadOptions(connection="shunt-thru"), jobs=1, force=force, progress=False)
+    limits = parse_limits(LOT_LIMITS, str(limits_path))
+    result = run_batch([lot / "sweeps"], lot, limits=limits, read=ReadOptions(connection="shunt-thru"), jobs=1,
+                       force=force, progress=False)
     for line in verdict_lines(result.rows):
         echo(line)
     echo(lot_text(result.lot))
-    echo(f"wrote {lot}/ (summary.csv, lot.csv, lot.json and a JSON per part)")
+    # The lot report as `zfit batch --report` writes it (recorded in the lot's manifest).
+    from ._batch import _write_report
+
+    _write_report(report, result, limits, lot, command=cmd)
+    echo(f"wrote {lot}/ (summary.csv, lot.csv, lot.json, lot-report.html and a JSON per part)")
     echo()
     return len(parts) + 1 + sum(1 for p in lot.iterdir() if p.is_file() and not p.name.startswith("."))
 
@@ -361,15 +386,27 @@ def _part_job(part: DemoPart, sweeps: Path, folder: Path, force: bool) -> dict:
     }
 
 
-def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
-    """Run the parts, two at a time where the machine has the cores."""
+def _lot_job(folder: Path, force: bool) -> dict:
+    """Run the demo lot and return what it prints and its file count (picklable, for a worker)."""
+    import contextlib
+    import io
+
+    buf = io.StringIO()
+    with contextlib.redirect_stdout(buf):
+        files = _demo_lot(folder, force)
+    return {"text": buf.getvalue(), "files": files}
+
+
+def _run_all(parts, sweeps: Path, folder: Path, force: bool, with_lot: bool = False) -> tuple:
+    """Run the parts (and the lot), two at a time where the machine has the cores; return (part jobs, lot job)."""
     import multiprocessing
     import os
     from concurrent.futures import ProcessPoolExecutor
 
-    workers = min(2, os.cpu_count() or 1, len(parts))
+    workers = min(2, os.cpu_count() or 1, len(parts) + with_lot)
     if workers < 2 or "fork" not in multiprocessing.get_all_start_methods():
-        return [_part_job(p, sweeps, folder, force) for p in parts]
+        jobs = [_part_job(p, sweeps, folder, force) for p in parts]
+        return jobs, _lot_job(folder, force) if with_lot else None
     # Import the heavy parts once, before the fork, so the workers start warm.
     import matplotlib  # noqa: F401
 
@@ -378,8 +415,9 @@ def _run_all(parts, sweeps: Path, folder: Path, force: bool) -> list:
     from ..outputs import _plots  # noqa: F401
 
     matplotlib.use("Agg")
-    # The slowest parts first, so the two workers finish together.
+    # The lot and the slowest parts first, so the two workers finish together.
     order = sorted(range(len(parts)), key=lambda i: parts[i].kind != "capture")
     with ProcessPoolExecutor(workers, mp_context=multiprocessing.get_context("fork")) as pool:
+        lot = pool.submit(_lot_job, folder, force) if with_lot else None
         futures = {i: pool.submit(_part_job, parts[i], sweeps, folder, force) for i in order}
-        return [futures[i].result() for i in range(len(parts))]
+        return [futures[i].result() for i in range(len(parts))], lot.result() if lot is not None else None
