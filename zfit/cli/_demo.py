@@ -100,7 +100,7 @@ def demo_sweeps_dir() -> Path:
             return candidate
     raise ZfitInputError(
         "the demo files are not installed with this copy of zfit: demo_sweeps/ was looked for next to the "
-        f"package ({here.parent / 'demo_sweeps'}); run from a checkout of the repository "
+        f"package ({package.parent / 'demo_sweeps'}); run from a checkout of the repository "
         "(pip install -e .) or give --sweeps DIR"
     )
 

@@ -225,14 +225,23 @@ def _fit_loss(circuit, obs, rdc, rdc_std):
         return None
 
 
-def _loss_resolved(ref) -> bool:
-    """Whether the parameters that make a loss model what it is have relative uncertainties below `_LOSS_RESOLVED`."""
+def _loss_resolved(ref, band) -> bool:
+    """Whether the parameters that make a loss model what it is are resolved, its corner near the band.
+
+    Relative uncertainties below `_LOSS_RESOLVED`, and a skin-effect corner
+    f_c or a relaxation f_r within a decade of the band: a corner far below
+    it leaves only ``R_dc / sqrt(f_c)`` determined (the winding is all
+    sqrt(f) there), whatever the linearised uncertainties say.
+    """
     from ..fit._models import characteristic_keys
 
     idx = [ref.circuit.keys.index(k) for k in characteristic_keys(ref.circuit)]
     with np.errstate(all="ignore"):
         rel = np.sqrt(np.diag(ref.log_cov))[idx]
-    return bool(np.all(np.isfinite(rel) & (rel < _LOSS_RESOLVED)))
+    values = ref.circuit.mapping(ref.values)
+    corners = [values[k] for k in ("f_c", "f_r") if k in values]
+    near = all(band[0] / 10.0 <= fc <= band[1] * 10.0 for fc in corners)
+    return bool(near and np.all(np.isfinite(rel) & (rel < _LOSS_RESOLVED)))
 
 
 def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple:
@@ -257,7 +266,7 @@ def _loss_fits(circuits, obs, rdc, rdc_std, resolved_only: bool = True) -> tuple
         if ref is None:
             continue
         # A core whose permeability would rise with frequency is an active part: a calibration error, not a core.
-        if circuit.is_passive(ref.values) and (not resolved_only or _loss_resolved(ref)):
+        if circuit.is_passive(ref.values) and (not resolved_only or _loss_resolved(ref, (obs.f_hz[0], obs.f_hz[-1]))):
             out.append(ref)
     return tuple(out)
 

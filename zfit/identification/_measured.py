@@ -36,13 +36,14 @@ has the family's direction (+ to - for an inductor's parallel resonance,
 - to + for a capacitor's series resonance); (b) the sign persists on
 ``persist`` points on each side of the crossing and on each side at least
 one of them is beyond 3 standard uncertainties (not a crossing of X within
-its own noise); (c) |Z| there is above the low-frequency trend ``|R_0 + j omega L_0|``
-extrapolated to the crossing (inductor) or below ``|R_0 + 1/(j omega C_0)|``
-(capacitor), R_0, L_0, C_0 read at the low end. The contrast factor is 1,
-not more: a lossy part (a bead, an electrolytic whose ESR exceeds its
-reactance at resonance) has a genuine but flat resonance, and crossings
-made by noise or by a calibration offset near a short are already rejected
-by (b). The crossing is refined by a weighted quadratic fit of
+its own noise), all but one point of each side keeping the sign (noise
+flips single points near a series resonance down in the analyser's floor);
+(c) |Z| there is above its measured value at the low end (inductor) or
+below it (capacitor), and within a factor 2 of the |Z| maximum (minimum)
+over a factor 2 in frequency either side: a parallel resonance is a peak of
+|Z|, a series one a dip, however lossy (a bead's, a ferrite core's, whose
+|Z| at resonance lies far below the low-frequency omega L_0 extrapolated),
+while a calibration offset near a short crosses X = 0 nowhere near one. The crossing is refined by a weighted quadratic fit of
 ``Im(1/Z)`` (inductor) or ``Im Z`` (capacitor), both smooth and nearly
 linear through their zero, over up to three raw points each side; the
 root's uncertainty is propagated from the fit covariance through the slope.
@@ -78,7 +79,8 @@ __all__ = [
 _LN10 = math.log(10.0)
 _RESOLVED_K = 2.0  # a loss figure below 2 std is below resolution
 _NOISE_K = 3.0  # a reactance beyond 3 std is resolved
-_ZRATIO = 1.0  # |Z| at a resonance against the low-frequency trend
+_ZRATIO = 1.0  # |Z| at a resonance against its value at the low end
+_ZWINDOW = 2.0  # a resonance is within 2x of the |Z| extremum over a factor 2 in f either side
 # The smoothing window holds at most about this many points: on a dense sweep
 # (20 001 linear points) 0.04 decades would hold thousands and cost O(N^2)
 # for a variance already far below what a few dozen points give.
@@ -490,10 +492,11 @@ class LowFrequencyValue:
 def low_frequency_value(f_hz, z_ohm, sigma_ohm, figures: MeasuredFigures | None = None) -> LowFrequencyValue:
     """Return L or C at the low end of the band, or 'not resolved'.
 
-    The family is the sign of the smoothed X at the lowest frequency where it
-    is beyond 3 standard uncertainties, looked for in the lowest tenth of the
-    band in log-frequency; an inductive sweep is an inductor, a capacitive
-    one a capacitor.
+    The family is the sign that the smoothed X agrees on, weighted by
+    ``|X|/std``, over the points of the lowest tenth of the band (in
+    log-frequency) where it is beyond 3 standard uncertainties; the value is
+    read at the lowest of them with that sign.  An inductive sweep is an
+    inductor, a capacitive one a capacitor.
 
     Parameters
     ----------
@@ -509,13 +512,18 @@ def low_frequency_value(f_hz, z_ohm, sigma_ohm, figures: MeasuredFigures | None 
     fig = figures if figures is not None else measured_figures(f_hz, z_ohm, sigma_ohm)
     f, x, sd = fig.f_hz, fig.x_ohm, fig.std_ohm
     lim = math.exp(math.log(f[0]) + 0.1 * (math.log(f[-1]) - math.log(f[0])))
-    for i in np.nonzero(f <= max(lim, f[min(2, f.size - 1)]))[0]:
-        if abs(x[i]) > _NOISE_K * sd[i]:
-            w = 2.0 * math.pi * f[i]
-            if x[i] > 0:
-                return LowFrequencyValue("inductor", "L", x[i] / w, sd[i] / w, float(f[i]), True)
-            return LowFrequencyValue("capacitor", "C", -1.0 / (w * x[i]), sd[i] / (w * x[i] ** 2), float(f[i]), True)
-    return LowFrequencyValue(None, None, math.nan, math.nan, float(f[0]), False)
+    low = np.nonzero(f <= max(lim, f[min(2, f.size - 1)]))[0]
+    resolved = low[np.abs(x[low]) > _NOISE_K * sd[low]]
+    if resolved.size == 0:
+        return LowFrequencyValue(None, None, math.nan, math.nan, float(f[0]), False)
+    # The family is the sign the resolved points agree on, weighted by how far each is beyond its noise:
+    # one point flipped by a noise spike or an overrange code does not make an inductor a capacitor.
+    inductive = float(np.sum(x[resolved] / sd[resolved])) > 0
+    i = int(next(k for k in resolved if (x[k] > 0) == inductive))
+    w = 2.0 * math.pi * f[i]
+    if inductive:
+        return LowFrequencyValue("inductor", "L", x[i] / w, sd[i] / w, float(f[i]), True)
+    return LowFrequencyValue("capacitor", "C", -1.0 / (w * x[i]), sd[i] / (w * x[i] ** 2), float(f[i]), True)
 
 
 @dataclass(frozen=True)
@@ -590,25 +598,29 @@ def measured_srf(f_hz, z_ohm, sigma_ohm, persist: int = 3, figures: MeasuredFigu
     inductor = lf.family == "inductor"
     kind = "parallel" if inductor else "series"
     x, sd = fig.x_ohm, fig.std_ohm
-    r0 = fig.r_ohm[np.searchsorted(f, lf.f_hz)]
+    z_low = fig.abs_z_ohm[np.searchsorted(f, lf.f_hz)]
     rejected = []
     sign = 1.0 if inductor else -1.0
     for i in np.nonzero((sign * x[:-1] > 0) & (sign * x[1:] <= 0))[0]:
         before = slice(max(0, i - persist + 1), i + 1)
         after = slice(i + 1, min(f.size, i + 1 + persist))
         fc = math.sqrt(f[i] * f[i + 1])
-        wc = 2.0 * math.pi * fc
+        # All but one point of each side keep the sign: near a series resonance whose |Z| is down
+        # in the analyser's floor, noise flips single points.
+        need = max(1, persist - 1)
         persists = (
-            np.all(sign * x[before] > 0)
-            and np.all(sign * x[after] < 0)
+            int(np.sum(sign * x[before] > 0)) >= min(need, x[before].size)
+            and int(np.sum(sign * x[after] < 0)) >= min(need, x[after].size)
             and np.any(np.abs(x[before]) > _NOISE_K * sd[before])
             and np.any(np.abs(x[after]) > _NOISE_K * sd[after])
         )
-        zc = 0.5 * (fig.abs_z_ohm[i] + fig.abs_z_ohm[i + 1])
+        absz = fig.abs_z_ohm
+        zc = 0.5 * (absz[i] + absz[i + 1])
+        near = (f >= fc / _ZWINDOW) & (f <= fc * _ZWINDOW)
         if inductor:
-            contrast = zc > _ZRATIO * abs(complex(r0, wc * lf.value))
+            contrast = zc > _ZRATIO * z_low and zc >= 0.5 * float(np.max(absz[near]))
         else:
-            contrast = zc < abs(complex(r0, -1.0 / (wc * lf.value))) / _ZRATIO
+            contrast = zc < z_low / _ZRATIO and zc <= 2.0 * float(np.min(absz[near]))
         if not (persists and contrast):
             rejected.append(float(fc))
             continue
